@@ -1,0 +1,356 @@
+package pairs
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"slices"
+)
+
+// Errors wrapped by Count for invalid input; test with errors.Is.
+var (
+	ErrUnsorted  = errors.New("fingerprints not sorted ascending")
+	ErrDuplicate = errors.New("duplicate fingerprint")
+	ErrOption    = errors.New("invalid option")
+)
+
+const (
+	defaultMinShared          = 3
+	defaultMaxGroupCandidates = 200000
+)
+
+// DefaultMaxDocs is the common-text cap used when Options.MaxDocs is 0: a
+// unit found in more than DefaultMaxDocs(n) of n documents is common text.
+//
+// The rule is min(1000, max(5, n/2)) with integer n/2:
+//   - in a small batch a sentence shared by up to half of the documents is
+//     still reported: 12 of 30 essays copying one source stay under the cap
+//     of 15;
+//   - a sentence in more than half of the documents is treated as common
+//     text, such as a prompt every essay repeats;
+//   - the floor of 5 keeps a handful of documents from calling every
+//     shared sentence common;
+//   - on a large corpus the cap of 1000 bounds the work of one basket to
+//     C(1000, 2) = 499500 pair increments.
+func DefaultMaxDocs(n int) int {
+	return min(1000, max(5, n/2))
+}
+
+// config is Options with the defaults applied and checked.
+type config struct {
+	s         int
+	maxDocs   int
+	maxCand   int
+	counter   CounterKind
+	documents int
+}
+
+func resolve(in Input, opt Options) (config, error) {
+	c := config{
+		s:         opt.MinShared,
+		maxDocs:   opt.MaxDocs,
+		maxCand:   opt.MaxGroupCandidates,
+		counter:   opt.Counter,
+		documents: len(in.Docs),
+	}
+	if c.s == 0 {
+		c.s = defaultMinShared
+	}
+	if c.s < 1 {
+		return c, fmt.Errorf("pairs: MinShared %d < 1: %w", opt.MinShared, ErrOption)
+	}
+	if c.maxDocs == 0 {
+		c.maxDocs = DefaultMaxDocs(len(in.Docs))
+	}
+	if c.maxDocs < 1 {
+		return c, fmt.Errorf("pairs: MaxDocs %d < 1: %w", opt.MaxDocs, ErrOption)
+	}
+	if c.maxCand == 0 {
+		c.maxCand = defaultMaxGroupCandidates
+	}
+	if c.maxCand < 1 {
+		return c, fmt.Errorf("pairs: MaxGroupCandidates %d < 1: %w", opt.MaxGroupCandidates, ErrOption)
+	}
+	switch c.counter {
+	case CounterAuto, CounterTriangular, CounterSparse:
+	default:
+		return c, fmt.Errorf("pairs: Counter %v unknown: %w", opt.Counter, ErrOption)
+	}
+	if uint64(len(in.Docs)) > math.MaxUint32 {
+		return c, fmt.Errorf("pairs: %d documents exceed the 32-bit document IDs: %w", len(in.Docs), ErrOption)
+	}
+	for d, fps := range in.Docs {
+		if err := checkAscending(fps); err != nil {
+			return c, fmt.Errorf("pairs: document %d: %w", d, err)
+		}
+	}
+	if err := checkAscending(in.Excluded); err != nil {
+		return c, fmt.Errorf("pairs: excluded fingerprints: %w", err)
+	}
+	return c, nil
+}
+
+func checkAscending(fps []uint64) error {
+	for i := 1; i < len(fps); i++ {
+		switch {
+		case fps[i] == fps[i-1]:
+			return fmt.Errorf("index %d: %#x: %w", i, fps[i], ErrDuplicate)
+		case fps[i] < fps[i-1]:
+			return fmt.Errorf("index %d: %#x after %#x: %w", i, fps[i], fps[i-1], ErrUnsorted)
+		}
+	}
+	return nil
+}
+
+// Count finds the document pairs sharing at least MinShared counted units,
+// the groups of three or more documents that all do, and the clusters the
+// pairs connect. It returns an error only for invalid input: fingerprints
+// of a document or of Excluded not strictly ascending, or an option out of
+// range. The steps are described in the package documentation.
+func Count(in Input, opt Options) (*Result, error) {
+	cfg, err := resolve(in, opt)
+	if err != nil {
+		return nil, err
+	}
+	res := &Result{MaxDocs: cfg.maxDocs, MinShared: cfg.s}
+
+	// Step 1: baskets.
+	ents := gather(in.Docs)
+	bk, common, hits := formBaskets(ents, in.Excluded, cfg.maxDocs)
+	res.Common = common
+	res.Stats.ExcludedHits = hits
+	res.Stats.Baskets = bk.len()
+
+	// Step 2: A-Priori pruning, then compact the surviving document IDs.
+	res.Stats.Pruned = bk.prune(cfg.documents, cfg.s)
+	orig := bk.compact(cfg.documents)
+	m := len(orig)
+
+	// Step 3: count pairs.
+	incr := bk.increments()
+	res.Stats.Increments = incr
+	kind := cfg.counter
+	if kind == CounterAuto {
+		kind = ChooseCounter(m, min(incr, possiblePairs(m)))
+		if kind == CounterTriangular && possiblePairs(m) > maxTriangularCells {
+			kind = CounterSparse
+		}
+	}
+	res.Counter = kind
+	var found []countedPair
+	switch kind {
+	case CounterTriangular:
+		found, err = countTriangular(&bk, m, uint32(cfg.s))
+		if err != nil {
+			return nil, err
+		}
+	default:
+		found = countSparse(&bk, incr, uint32(cfg.s))
+	}
+
+	// Step 4: frequent pairs, in original IDs (compaction keeps order).
+	if len(found) > 0 {
+		res.Pairs = make([]Pair, len(found))
+		for i, p := range found {
+			res.Pairs[i] = Pair{A: orig[p.a], B: orig[p.b], Shared: p.n}
+		}
+	}
+
+	// Step 5: groups.
+	g := growGroups(&bk, m, found, cfg.s, cfg.maxCand)
+	res.GroupsTruncated = g.truncated
+	res.Stats.GroupCandidates = g.examined
+	res.Groups = g.groups(orig)
+
+	// Step 6: clusters.
+	res.Clusters = clusters(found, m, orig)
+	return res, nil
+}
+
+// entry is one (fingerprint, document) occurrence; sorting entries by
+// fingerprint turns them into baskets.
+type entry struct {
+	fp  uint64
+	doc uint32
+}
+
+// gather lists every occurrence, documents in ascending order, and sorts
+// the list by fingerprint. The sort is stable, so the documents of each
+// basket stay ascending.
+func gather(docs [][]uint64) []entry {
+	total := 0
+	for _, fps := range docs {
+		total += len(fps)
+	}
+	ents := make([]entry, 0, total)
+	for d, fps := range docs {
+		for _, fp := range fps {
+			ents = append(ents, entry{fp: fp, doc: uint32(d)})
+		}
+	}
+	return radixSortEntries(ents, make([]entry, len(ents)))
+}
+
+// baskets holds baskets in compressed rows: basket b has fingerprint fps[b]
+// and documents docs[start[b]:start[b+1]], ascending and distinct.
+type baskets struct {
+	fps   []uint64
+	start []int
+	docs  []uint32
+}
+
+func (b *baskets) len() int { return len(b.fps) }
+
+func (b *baskets) row(i int) []uint32 { return b.docs[b.start[i]:b.start[i+1]] }
+
+// formBaskets walks the runs of sorted entries. A run whose fingerprint is
+// excluded is skipped and counted in hits (whatever its size: exclusion
+// comes first, so an excluded unit is never listed as common either); a run
+// of one document is dropped; a run of more than maxDocs documents is common
+// text and listed; every other run becomes a basket.
+func formBaskets(ents []entry, excluded []uint64, maxDocs int) (b baskets, common []CommonUnit, hits int) {
+	b.start = append(b.start, 0)
+	xi := 0
+	for i := 0; i < len(ents); {
+		fp := ents[i].fp
+		j := i + 1
+		for j < len(ents) && ents[j].fp == fp {
+			j++
+		}
+		d := j - i
+		for xi < len(excluded) && excluded[xi] < fp {
+			xi++
+		}
+		switch {
+		case xi < len(excluded) && excluded[xi] == fp:
+			hits++
+		case d < 2:
+		case d > maxDocs:
+			common = append(common, CommonUnit{Hash: fp, Docs: uint32(d), First: ents[i].doc})
+		default:
+			b.fps = append(b.fps, fp)
+			for _, e := range ents[i:j] {
+				b.docs = append(b.docs, e.doc)
+			}
+			b.start = append(b.start, len(b.docs))
+		}
+		i = j
+	}
+	slices.SortFunc(common, func(x, y CommonUnit) int {
+		if x.Docs != y.Docs {
+			if x.Docs > y.Docs {
+				return -1
+			}
+			return 1
+		}
+		if x.Hash < y.Hash {
+			return -1
+		}
+		if x.Hash > y.Hash {
+			return 1
+		}
+		return 0
+	})
+	return b, common, hits
+}
+
+// prune removes, pass after pass, every document found in fewer than s
+// baskets, and every basket left with fewer than two documents, until a
+// pass removes nothing. It returns the number of documents that were in a
+// basket before pruning and are in none after.
+func (b *baskets) prune(n, s int) int {
+	deg := make([]uint32, n)
+	b.degrees(deg)
+	before := 0
+	for _, d := range deg {
+		if d > 0 {
+			before++
+		}
+	}
+	for {
+		changed := false
+		for _, d := range deg {
+			if d > 0 && int(d) < s {
+				changed = true
+				break
+			}
+		}
+		if !changed {
+			break
+		}
+		// Rewrite the rows in place without the weak documents; deg
+		// still holds the degrees of the previous pass.
+		w, kept := 0, 0
+		for i := range b.fps {
+			rowStart := w
+			for _, d := range b.row(i) {
+				if int(deg[d]) >= s {
+					b.docs[w] = d
+					w++
+				}
+			}
+			if w-rowStart < 2 {
+				w = rowStart
+				continue
+			}
+			b.fps[kept] = b.fps[i]
+			b.start[kept] = rowStart
+			kept++
+		}
+		b.fps = b.fps[:kept]
+		b.start = append(b.start[:kept], w)
+		b.docs = b.docs[:w]
+		b.degrees(deg)
+	}
+	after := 0
+	for _, d := range deg {
+		if d > 0 {
+			after++
+		}
+	}
+	return before - after
+}
+
+// degrees fills deg[d] with the number of baskets containing document d.
+func (b *baskets) degrees(deg []uint32) {
+	clear(deg)
+	for _, d := range b.docs {
+		deg[d]++
+	}
+}
+
+// compact renumbers the documents still in a basket 0..m-1 in ascending
+// order of their original IDs, rewrites the rows, and returns the original
+// ID of each compact one.
+func (b *baskets) compact(n int) []uint32 {
+	const none = math.MaxUint32
+	rank := make([]uint32, n)
+	for i := range rank {
+		rank[i] = none
+	}
+	for _, d := range b.docs {
+		rank[d] = 0
+	}
+	var orig []uint32
+	for d, r := range rank {
+		if r != none {
+			rank[d] = uint32(len(orig))
+			orig = append(orig, uint32(d))
+		}
+	}
+	for i, d := range b.docs {
+		b.docs[i] = rank[d]
+	}
+	return orig
+}
+
+// increments is the sum over baskets of C(d, 2): the pair increments the
+// counting step performs.
+func (b *baskets) increments() int64 {
+	var sum int64
+	for i := range b.fps {
+		d := int64(b.start[i+1] - b.start[i])
+		sum += d * (d - 1) / 2
+	}
+	return sum
+}

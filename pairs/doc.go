@@ -1,0 +1,125 @@
+// Package pairs is the market-basket engine: it finds the pairs (and larger
+// groups) of documents that share at least s units.
+//
+// # The model
+//
+// Baskets are units, items are documents. Every unit fingerprint that
+// occurs in the corpus is a basket holding the documents that contain it;
+// two documents sharing s distinct units are a pair found in s baskets, a
+// "frequent pair" with support s. The engine sees only document IDs
+// 0..n-1 and their sorted, distinct 64-bit fingerprints ([Input]); it knows
+// nothing of files or text, and its output is exact: the pairs, groups and
+// clusters a brute-force comparison of every pair and every subset of
+// documents would find (the property test checks exactly that).
+//
+// The simple approach, intersecting the unit sets of all n(n-1)/2 document
+// pairs, costs O(n²) set intersections whatever the overlap; 20,000
+// documents make 200 million of them. Almost all pairs share nothing, so the
+// engine works the other way round: it only ever touches pairs that occur
+// together in some basket.
+//
+// # Steps and their cost
+//
+// Let N be the total number of (document, fingerprint) entries.
+//
+//  1. Baskets. All entries are gathered, documents in order, and sorted by
+//     fingerprint with a stable MSD radix sort (O(N), about four times
+//     faster than slices.SortFunc on the same entries); each run of one
+//     fingerprint is a basket whose documents are already ascending. A
+//     basket whose fingerprint is in Input.Excluded is skipped (merge walk
+//     of two sorted lists, counted in Stats.ExcludedHits; an excluded unit
+//     is never listed as common either); a basket of one document pairs
+//     nothing and is dropped; a basket of more than MaxDocs documents is
+//     common text: dropped and listed in Result.Common, never silently
+//     hidden ([DefaultMaxDocs] gives the cap). The cap bounds the counting
+//     work of one basket to C(MaxDocs, 2) increments. Baskets are kept in
+//     compressed rows (fingerprints, row starts, documents), with no
+//     allocation per unit.
+//  2. A-Priori pruning. A document in fewer than s baskets cannot be in a
+//     pair with support s, so it leaves every basket; a basket left with
+//     fewer than two documents pairs nothing and is dropped, which can
+//     weaken other documents, so passes repeat until one removes nothing.
+//     Each pass is O(N); on real corpora a few passes suffice (a chain of
+//     documents each propping up the next is the worst case, one document
+//     per pass). The common-text cap was applied before pruning on
+//     purpose: how many documents contain a unit is a property of the
+//     corpus, not of what pruning leaves. The surviving documents are then
+//     renumbered 0..m-1 in ascending order, so the counting structures are
+//     sized by the m survivors, not by n.
+//  3. Counting. Every pair of every basket is counted once
+//     (Stats.Increments = sum of C(d, 2) over baskets) in one of two
+//     structures, see below.
+//  4. Pairs counted at least s times are kept, in (A, B) order of original
+//     IDs (renumbering preserves order, so no re-sort is needed).
+//  5. Groups grow from the frequent pairs, see below.
+//  6. Clusters are the connected components of the reported pairs
+//     (union-find, near O(pairs)), each ascending, ordered by their smallest
+//     member.
+//
+// # Why pruning is exact
+//
+// Removing document x from the baskets changes no basket's membership for
+// any other document, and a basket with fewer than two documents contains
+// no pair. So the support of every pair and every set of documents without
+// x is unchanged, while any pair or set with x had support at most x's
+// basket count, below s. By induction over the passes, pruning never loses a
+// frequent pair or group and never changes a reported count.
+//
+// # Two counters and the one-third rule
+//
+// The triangular array holds a uint32 for every possible pair of the m
+// survivors, in row-major order of the upper triangle ([TriangularIndex]):
+// 4 bytes per possible pair, m(m-1)/2 of them, with no hashing and purely
+// arithmetic addressing. The sparse table is an open-addressing hash table
+// (linear probing, Fibonacci hashing, at most 3/4 full, doubling) of packed
+// uint64 pair keys (the smaller ID in the high half) with uint32 counts: 12
+// bytes per occurring pair plus the free slots. The array is smaller as soon
+// as more than a third of the possible pairs occur (12 bytes × occurring >
+// 4 bytes × possible), so [ChooseCounter] picks it then. The number of
+// occurring pairs is estimated from above as min(Stats.Increments,
+// m(m-1)/2). The array is also capped at 2^31-1 cells; past that the
+// sparse table is used (a forced triangular counter is refused).
+//
+// The alternative of writing every increment as a packed key, sorting and
+// run-length counting, was rejected for now: it needs 8 bytes per increment
+// rather than per distinct pair, which only pays once the keys are spilled
+// to disk anyway (see "Scale" below).
+//
+// # Groups and their bound
+//
+// A group is a maximal set of three or more documents whose support (the
+// number of surviving baskets containing all of them) is at least s.
+// Frequent sets of size k grow from those of size k-1, A-Priori style: two
+// frequent (k-1)-sets in lexicographic order that agree on their first k-2
+// documents join into a k-set, which is a candidate only if all its other
+// (k-1)-subsets are frequent too (binary search in the sorted level). A
+// candidate's support is counted by intersecting the two joined sets'
+// support lists (the sorted basket indices containing each set), kept for
+// the current level only. That was chosen over scanning the baskets for
+// each level because the lists shrink as sets grow and each intersection
+// is linear in two short lists, while a basket scan would enumerate every
+// k-subset of every basket, C(d, k) of them, most of them infrequent. A
+// frequent set is maximal when no frequent set one larger contains it
+// (downward closure makes one size up enough).
+//
+// The number of frequent sets can grow exponentially with the size of a
+// group of near-identical documents, so at most
+// Options.MaxGroupCandidates candidates are counted (Stats.GroupCandidates
+// says how many were). When the next candidate would exceed the bound,
+// growth stops, the groups found so far are returned (each a true frequent
+// set, maximal among those found) and Result.GroupsTruncated is set.
+//
+// # Scale
+//
+// Everything here is held in memory. The later scale work will bound it:
+// partition the entries by fingerprint range, so that each partition's
+// baskets are formed and counted separately (step 1 is a shuffle by
+// fingerprint); when the pair counts do not fit, emit packed pair keys per
+// partition, spill them as sorted runs to temporary files and merge the
+// runs to sum the counts (a shuffle by pair key, then a reduce). Pruning
+// needs only per-document basket counts, which are small. Each step above
+// already takes and returns explicit values (entries, baskets in
+// compressed rows, counted pairs, levels of sets) rather than sharing
+// state, so each can be replaced by its partitioned or spilling version
+// without redesign.
+package pairs

@@ -1,0 +1,98 @@
+package pairs
+
+import "strconv"
+
+// Options tune the engine. The zero value is usable: zero fields take the
+// defaults documented on them.
+type Options struct {
+	// MinShared is the support threshold s: the distinct units a pair must
+	// share to be reported (0 means 3).
+	MinShared int
+	// MaxDocs: a unit found in more documents than this is common text and
+	// pairs nothing; it is returned in Result.Common (0 means DefaultMaxDocs(n)).
+	MaxDocs int
+	// MaxGroupCandidates bounds the candidate sets examined while growing
+	// groups; when reached, growth stops and Result.GroupsTruncated is set
+	// (0 means 200000).
+	MaxGroupCandidates int
+	// Counter forces a counting structure (for tests and benchmarks); the
+	// zero value chooses one from the estimated pair density.
+	Counter CounterKind
+}
+
+// CounterKind names a pair-counting structure.
+type CounterKind int
+
+const (
+	CounterAuto       CounterKind = iota // chosen from estimated density
+	CounterTriangular                    // 4 bytes per possible pair
+	CounterSparse                        // open-addressing table of occurring pairs
+)
+
+// String names the kind: "auto", "triangular" or "sparse".
+func (k CounterKind) String() string {
+	switch k {
+	case CounterAuto:
+		return "auto"
+	case CounterTriangular:
+		return "triangular"
+	case CounterSparse:
+		return "sparse"
+	}
+	return "CounterKind(" + strconv.Itoa(int(k)) + ")"
+}
+
+// Input is what the engine sees: fingerprints only, no text or files.
+type Input struct {
+	// Docs[i] holds document i's distinct unit fingerprints, sorted ascending.
+	Docs [][]uint64
+	// Excluded holds fingerprints that never count (from template documents),
+	// sorted ascending, distinct.
+	Excluded []uint64
+}
+
+// A Pair is two documents (A < B) sharing Shared distinct counted units.
+type Pair struct {
+	A, B   uint32
+	Shared uint32
+}
+
+// A Group is a maximal set of three or more documents (sorted ascending) that
+// all share at least MinShared units; Shared is how many they all share.
+type Group struct {
+	Docs   []uint32
+	Shared uint32
+}
+
+// A CommonUnit is a unit found in more than MaxDocs documents: common text,
+// set aside and reported, never silently hidden.
+type CommonUnit struct {
+	Hash  uint64
+	Docs  uint32 // documents containing it
+	First uint32 // the lowest document ID containing it (to quote its text)
+}
+
+// Stats count the engine's work, for the report's summary.
+type Stats struct {
+	Baskets      int   // units in two or more documents, not common, not excluded (before pruning)
+	ExcludedHits int   // distinct excluded units found in the input documents
+	Pruned       int   // documents removed by A-Priori pruning (in a basket before it, in none after)
+	Increments   int64 // pair increments counted: sum over the baskets left after pruning of C(d, 2)
+	// GroupCandidates counts the candidate sets of three or more documents
+	// whose support was counted while growing groups (at most
+	// Options.MaxGroupCandidates).
+	GroupCandidates int
+}
+
+// Result is the engine's output. Every slice is in a deterministic order.
+type Result struct {
+	Pairs           []Pair       // sorted by (A, B)
+	Groups          []Group      // by size desc, Shared desc, then Docs
+	Clusters        [][]uint32   // connected components of Pairs, each sorted; ordered by first member
+	Common          []CommonUnit // by Docs desc, then Hash
+	MaxDocs         int          // the effective common-text cap
+	MinShared       int          // the effective support threshold
+	Counter         CounterKind  // the structure that counted
+	GroupsTruncated bool
+	Stats           Stats
+}
