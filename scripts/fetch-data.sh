@@ -29,7 +29,11 @@ fetch_npm spdx-license-list 6.12.0 spdx
 
 if [ ! -f "$data/unicode/SentenceBreakTest.txt" ]; then
   mkdir -p "$data/unicode"
-  (cd "$work" && apt-get download unicode-data=15.0.0-1 >/dev/null 2>&1 || apt-get download unicode-data >/dev/null)
+  # apt-get download needs no root, but needs package lists; refresh them once if missing.
+  if ! (cd "$work" && apt-get download unicode-data=15.0.0-1 >/dev/null 2>&1); then
+    apt-get update -qq >/dev/null
+    (cd "$work" && apt-get download unicode-data=15.0.0-1 >/dev/null)
+  fi
   dpkg-deb -x "$work"/unicode-data_*.deb "$work/ud"
   cp "$work/ud/usr/share/unicode/auxiliary/SentenceBreakTest.txt" "$data/unicode/"
   echo "fetched SentenceBreakTest.txt into $data/unicode"

@@ -1,0 +1,76 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"runtime"
+	"testing"
+
+	"reprise/report"
+)
+
+// dataDir returns the folder scripts/fetch-data.sh fills, failing the test
+// in CI and skipping it elsewhere when sub is missing from it.
+func dataDir(t *testing.T, sub string) string {
+	t.Helper()
+	dir := os.Getenv("REPRISE_DATA")
+	if dir == "" {
+		_, file, _, _ := runtime.Caller(0)
+		dir = filepath.Join(filepath.Dir(file), "..", "..", ".cache", "data")
+	}
+	p := filepath.Join(dir, sub)
+	if _, err := os.Stat(p); err != nil {
+		if os.Getenv("CI") != "" {
+			t.Fatalf("reference data %s missing (run scripts/fetch-data.sh): %v", p, err)
+		}
+		t.Skipf("reference data %s missing: run scripts/fetch-data.sh to fetch it", p)
+	}
+	return p
+}
+
+// scanJSON runs 'reprise scan --format json ARGS...' in process and decodes
+// the report; it fails the test unless the exit code is want.
+func scanJSON(t *testing.T, want int, args ...string) *report.Result {
+	t.Helper()
+	var out, errs bytes.Buffer
+	code := run(append([]string{"scan", "--format", "json", "-q"}, args...), &out, &errs)
+	if code != want {
+		t.Fatalf("reprise scan %v: exit %d, want %d; stderr:\n%s", args, code, want, errs.String())
+	}
+	var res report.Result
+	if err := json.Unmarshal(out.Bytes(), &res); err != nil {
+		t.Fatalf("reprise scan %v: output is not the JSON contract: %v\n%s", args, err, out.String())
+	}
+	return &res
+}
+
+// findPair returns the reported pair of the two paths, in either order.
+func findPair(res *report.Result, x, y string) *report.Pair {
+	for i := range res.Pairs {
+		p := &res.Pairs[i]
+		if (p.A == x && p.B == y) || (p.A == y && p.B == x) {
+			return p
+		}
+	}
+	return nil
+}
+
+// coverageOf returns the coverage of path's side of p.
+func coverageOf(p *report.Pair, path string) float64 {
+	if p.A == path {
+		return p.CoverageA
+	}
+	return p.CoverageB
+}
+
+func writeFile(t *testing.T, path, text string) {
+	t.Helper()
+	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+}

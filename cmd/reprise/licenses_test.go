@@ -1,0 +1,89 @@
+package main
+
+import (
+	"encoding/json"
+	"fmt"
+	"os"
+	"path/filepath"
+	"testing"
+
+	"reprise/report"
+)
+
+// TestLicenseTexts checks the whole pipeline on real, independently
+// published texts: the SPDX license list (npm package spdx-license-list
+// 6.12.0, licenses/*.json, field licenseText) and, where present, Debian's
+// /usr/share/common-licenses.
+func TestLicenseTexts(t *testing.T) {
+	spdx := dataDir(t, "spdx/licenses")
+	dir := t.TempDir()
+	ids := []string{"GPL-2.0-only", "GPL-2.0-or-later", "GPL-3.0-only", "LGPL-3.0-only",
+		"MIT", "Apache-2.0", "BSD-3-Clause", "MPL-2.0"}
+	for _, id := range ids {
+		raw, err := os.ReadFile(filepath.Join(spdx, id+".json"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		var lic struct {
+			LicenseText string `json:"licenseText"`
+		}
+		if err := json.Unmarshal(raw, &lic); err != nil {
+			t.Fatalf("%s: %v", id, err)
+		}
+		writeFile(t, filepath.Join(dir, id+".txt"), lic.LicenseText)
+	}
+	debianGPL3 := "/usr/share/common-licenses/GPL-3"
+	haveDebian := false
+	if raw, err := os.ReadFile(debianGPL3); err == nil {
+		writeFile(t, filepath.Join(dir, "debian-GPL-3"), string(raw))
+		haveDebian = true
+	}
+
+	res := scanJSON(t, exitOK, dir)
+	path := func(id string) string { return filepath.ToSlash(filepath.Join(dir, id+".txt")) }
+
+	// GPL-2.0-only and GPL-2.0-or-later carry the same license text in SPDX.
+	p := findPair(res, path("GPL-2.0-only"), path("GPL-2.0-or-later"))
+	if p == nil || p.CoverageA < 0.95 || p.CoverageB < 0.95 {
+		t.Errorf("GPL-2.0-only ~ GPL-2.0-or-later: %s, want coverage >= 0.95 both ways", brief(p))
+	}
+
+	// SPDX's LGPL-3.0-only text is the LGPL's own 1,234 words followed by
+	// the whole GPL-3.0 text (5,644 words, measured with wc -w on the
+	// fetched files), so the GPL lies inside it: nearly all of the GPL is
+	// covered, about 5644/6878 = 0.82 of the LGPL.
+	p = findPair(res, path("GPL-3.0-only"), path("LGPL-3.0-only"))
+	if p == nil {
+		t.Fatalf("GPL-3.0-only ~ LGPL-3.0-only not reported")
+	}
+	gpl, lgpl := coverageOf(p, path("GPL-3.0-only")), coverageOf(p, path("LGPL-3.0-only"))
+	if gpl < 0.9 || lgpl > gpl-0.1 {
+		t.Errorf("GPL-3.0-only inside LGPL-3.0-only: GPL side %.4f (want >= 0.9), LGPL side %.4f (want clearly lower)", gpl, lgpl)
+	}
+
+	// Debian's GPL-3 file is the same text as SPDX GPL-3.0-only with other
+	// line breaks and spacing.
+	if haveDebian {
+		deb := filepath.ToSlash(filepath.Join(dir, "debian-GPL-3"))
+		p = findPair(res, deb, path("GPL-3.0-only"))
+		if p == nil || p.CoverageA < 0.9 || p.CoverageB < 0.9 {
+			t.Errorf("%s ~ GPL-3.0-only: %s, want coverage >= 0.9 both ways", debianGPL3, brief(p))
+		}
+	} else {
+		t.Logf("%s not present: Debian comparison not run", debianGPL3)
+	}
+
+	// Unrelated licenses do not pair.
+	if p := findPair(res, path("MIT"), path("Apache-2.0")); p != nil {
+		t.Errorf("MIT ~ Apache-2.0 reported: %s", brief(p))
+	}
+}
+
+// brief is a pair's numbers without its passages, for messages.
+func brief(p *report.Pair) string {
+	if p == nil {
+		return "not reported"
+	}
+	return fmt.Sprintf("%s ~ %s: shared %d, coverage %.4f / %.4f, %d passages",
+		p.A, p.B, p.Shared, p.CoverageA, p.CoverageB, len(p.Passages))
+}

@@ -1,0 +1,63 @@
+// Command reprise finds documents that share passages.
+//
+// This package is the only place with side effects: it owns flags, reads
+// the inputs, shows progress, writes outputs atomically and chooses exit
+// codes. The stages it wires together (corpus, shingle, pairs, report)
+// neither print nor exit.
+package main
+
+import (
+	"fmt"
+	"io"
+	"os"
+)
+
+// version is the program's version, printed by --version and recorded in
+// every report's settings.
+const version = "0.1.0"
+
+// Exit codes.
+const (
+	exitOK     = 0 // done
+	exitFailOn = 1 // a pair reached the --fail-on score
+	exitUsage  = 2 // bad usage, or no readable document
+)
+
+const mainUsage = `reprise finds documents that share passages, and shows which passages.
+
+Usage:
+  reprise scan [flags] PATH...     compare every document with every other
+  reprise help [COMMAND]           show help
+  reprise --version                print the version
+
+Run 'reprise scan --help' for the flags and examples.
+
+Shared passages are leads for a human reviewer, not proof of misconduct.
+`
+
+func main() {
+	os.Exit(run(os.Args[1:], os.Stdout, os.Stderr))
+}
+
+// run executes one command line and returns the exit code.
+func run(args []string, stdout, stderr io.Writer) int {
+	if len(args) == 0 {
+		fmt.Fprint(stderr, mainUsage)
+		return exitUsage
+	}
+	switch args[0] {
+	case "scan":
+		return runScan(args[1:], stdout, stderr)
+	case "help", "-h", "--help":
+		if len(args) > 1 && args[1] == "scan" {
+			return runScan([]string{"--help"}, stdout, stderr)
+		}
+		fmt.Fprint(stdout, mainUsage)
+		return exitOK
+	case "version", "--version":
+		fmt.Fprintf(stdout, "reprise %s\n", version)
+		return exitOK
+	}
+	fmt.Fprintf(stderr, "reprise: unknown command %q\n\n%s", args[0], mainUsage)
+	return exitUsage
+}

@@ -1,0 +1,253 @@
+package main
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"runtime"
+	"slices"
+	"strconv"
+	"strings"
+
+	"github.com/spf13/pflag"
+
+	"reprise/corpus"
+	"reprise/pairs"
+	"reprise/report"
+	"reprise/shingle"
+)
+
+const scanUsage = `Usage: reprise scan [flags] PATH...
+
+Reads every document under the given files and folders (plain text and
+Markdown), splits each into sentences, and reports every pair of documents
+that share at least --min-shared sentences, with the shared passages, their
+line numbers, and how much of each document they cover.
+
+Sentences count as the same when they match after Unicode NFKC
+normalization, case folding, and removal of punctuation, quote styles and
+extra white space. Sentences with fewer than --min-words words are ignored.
+
+Examples:
+  reprise scan essays/
+      compare every essay with every other; a ranked table on the terminal
+  reprise scan --exclude prompt.txt essays/
+      sentences of the assignment prompt never count
+  reprise scan --format json -o result.json submissions/ archive/
+      the full result, every passage with byte offsets, as JSON
+  reprise scan --fail-on 0.5 -q policies/
+      exit status 1 when any pair covers 50% or more of one document
+
+Exit status: 0 done; 1 a pair reached --fail-on; 2 bad usage or no readable
+document.
+
+Flags:
+`
+
+// scanFlags holds the parsed command line of 'reprise scan'.
+type scanFlags struct {
+	minShared   int
+	minWords    int
+	maxDocs     int
+	exclude     []string
+	format      string
+	output      string
+	top         int
+	jobs        int
+	include     []string
+	skip        []string
+	maxFileSize string
+	quiet       bool
+	failOn      string
+	help        bool
+}
+
+func newScanFlagSet(f *scanFlags, stderr io.Writer) *pflag.FlagSet {
+	fs := pflag.NewFlagSet("scan", pflag.ContinueOnError)
+	fs.SetOutput(stderr)
+	fs.SortFlags = false
+	fs.IntVar(&f.minShared, "min-shared", 3, "support threshold: distinct sentences a pair must share to be reported")
+	fs.IntVar(&f.minWords, "min-words", 5, "a sentence with fewer words does not count")
+	fs.IntVar(&f.maxDocs, "max-docs", 0, "a sentence in more than N documents is common text, listed and not counted\n(default: half the documents, at least 5 and at most 1000)")
+	fs.StringArrayVar(&f.exclude, "exclude", nil, "template `PATH` (prompt, disclaimer) whose sentences never count; repeatable")
+	fs.StringVar(&f.format, "format", "text", "output format: "+strings.Join(report.Formats, ", "))
+	fs.StringVarP(&f.output, "output", "o", "", "write the report to `FILE` (via a temporary file, then renamed) instead of standard output")
+	fs.IntVar(&f.top, "top", 20, "pairs shown in the text table")
+	fs.IntVar(&f.jobs, "jobs", runtime.NumCPU(), "documents read and split at once")
+	fs.StringArrayVar(&f.include, "include", nil, "read only files whose name matches `GLOB` (e.g. '*.txt'); repeatable")
+	fs.StringArrayVar(&f.skip, "skip", nil, "do not read files or folders whose name or path matches `GLOB`; repeatable")
+	fs.StringVar(&f.maxFileSize, "max-file-size", "32MiB", "skip files larger than `SIZE` (bytes, or with k, KiB, MB, MiB, GB, GiB)")
+	fs.BoolVarP(&f.quiet, "quiet", "q", false, "no progress or warnings on standard error")
+	fs.StringVar(&f.failOn, "fail-on", "", "exit with status 1 when any pair's score reaches `SCORE` (0..1, or a percentage such as 80%)")
+	fs.BoolVarP(&f.help, "help", "h", false, "show this help")
+	return fs
+}
+
+func runScan(args []string, stdout, stderr io.Writer) int {
+	var f scanFlags
+	fs := newScanFlagSet(&f, stderr)
+	fs.Usage = func() {}
+	if err := fs.Parse(args); err != nil {
+		if errors.Is(err, pflag.ErrHelp) {
+			printScanHelp(stdout, fs)
+			return exitOK
+		}
+		fmt.Fprintf(stderr, "reprise scan: %v\nRun 'reprise scan --help' for usage.\n", err)
+		return exitUsage
+	}
+	if f.help {
+		printScanHelp(stdout, fs)
+		return exitOK
+	}
+	cfg, failOn, err := f.config(fs.Args())
+	if err != nil {
+		fmt.Fprintf(stderr, "reprise scan: %v\nRun 'reprise scan --help' for usage.\n", err)
+		return exitUsage
+	}
+	warn := func(format string, args ...any) {
+		if !f.quiet {
+			fmt.Fprintf(stderr, "reprise: "+format+"\n", args...)
+		}
+	}
+	var prog *progress
+	if !f.quiet && isTerminal(stderr) {
+		prog = &progress{w: stderr}
+		cfg.Progress = prog.show
+	}
+
+	res, err := scan(cfg)
+	prog.done()
+	if err != nil {
+		if errors.Is(err, errNoDocuments) {
+			fmt.Fprintf(stderr, "reprise scan: no readable document in %s\n", strings.Join(cfg.Paths, " "))
+			return exitUsage
+		}
+		fmt.Fprintf(stderr, "reprise scan: %v\n", err)
+		return exitUsage
+	}
+	if len(res.Documents) == 1 {
+		warn("only one document was read: nothing to compare it with")
+	}
+
+	color := f.output == "" && isTerminal(stdout) && os.Getenv("NO_COLOR") == ""
+	opt := report.TextOptions{Top: f.top, Color: color}
+	if err := writeOutput(f.output, stdout, func(w io.Writer) error { return report.Write(w, res, f.format, opt) }); err != nil {
+		fmt.Fprintf(stderr, "reprise scan: %v\n", err)
+		return exitUsage
+	}
+	if failOn >= 0 {
+		for _, p := range res.Pairs {
+			if p.Score >= failOn {
+				warn("pair %s ~ %s has score %.4f, at or above --fail-on %s", p.A, p.B, p.Score, f.failOn)
+				return exitFailOn
+			}
+		}
+	}
+	return exitOK
+}
+
+func printScanHelp(w io.Writer, fs *pflag.FlagSet) {
+	fmt.Fprint(w, scanUsage)
+	fmt.Fprint(w, fs.FlagUsages())
+	fmt.Fprint(w, "\nShared passages are leads for a human reviewer, not proof of misconduct.\n")
+}
+
+// config checks the flags and builds the scan configuration; failOn is -1
+// when --fail-on is not set.
+func (f *scanFlags) config(paths []string) (cfg scanConfig, failOn float64, err error) {
+	failOn = -1
+	if len(paths) == 0 {
+		return cfg, failOn, errors.New("no PATH given")
+	}
+	if f.minShared < 1 {
+		return cfg, failOn, fmt.Errorf("--min-shared must be at least 1, not %d", f.minShared)
+	}
+	if f.minWords < 1 {
+		return cfg, failOn, fmt.Errorf("--min-words must be at least 1, not %d", f.minWords)
+	}
+	if f.maxDocs < 0 || f.maxDocs == 1 {
+		return cfg, failOn, fmt.Errorf("--max-docs must be at least 2 (a sentence in one document pairs nothing), not %d", f.maxDocs)
+	}
+	if !slices.Contains(report.Formats, f.format) {
+		return cfg, failOn, fmt.Errorf("--format %q: want one of %s", f.format, strings.Join(report.Formats, ", "))
+	}
+	if f.top < 1 {
+		return cfg, failOn, fmt.Errorf("--top must be at least 1, not %d", f.top)
+	}
+	if f.jobs < 1 {
+		return cfg, failOn, fmt.Errorf("--jobs must be at least 1, not %d", f.jobs)
+	}
+	size, err := parseSize(f.maxFileSize)
+	if err != nil {
+		return cfg, failOn, fmt.Errorf("--max-file-size: %w", err)
+	}
+	if f.failOn != "" {
+		if failOn, err = parseScore(f.failOn); err != nil {
+			return cfg, -1, fmt.Errorf("--fail-on: %w", err)
+		}
+	}
+	for _, g := range slices.Concat(f.include, f.skip) {
+		if _, err := filepath.Match(g, ""); err != nil {
+			return cfg, -1, fmt.Errorf("bad glob %q: %w", g, err)
+		}
+	}
+	rule := "default: half the documents, at least 5, at most 1000"
+	if f.maxDocs > 0 {
+		rule = "set by --max-docs"
+	}
+	cfg = scanConfig{
+		Paths:     paths,
+		Exclude:   f.exclude,
+		Corpus:    corpus.Options{Include: f.include, Skip: f.skip, MaxFileSize: size},
+		Shingle:   shingle.Options{MinWords: f.minWords},
+		Pairs:     pairs.Options{MinShared: f.minShared, MaxDocs: f.maxDocs},
+		Jobs:      f.jobs,
+		MaxDocsBy: rule,
+	}
+	return cfg, failOn, nil
+}
+
+// parseSize reads a byte count such as 4096, 512k, 10MB or 32MiB.
+func parseSize(s string) (int64, error) {
+	t := strings.TrimSpace(s)
+	units := []struct {
+		suffix string
+		factor int64
+	}{
+		{"KiB", 1 << 10}, {"MiB", 1 << 20}, {"GiB", 1 << 30},
+		{"kB", 1000}, {"KB", 1000}, {"MB", 1000 * 1000}, {"GB", 1000 * 1000 * 1000},
+		{"k", 1000}, {"K", 1000}, {"M", 1000 * 1000}, {"G", 1000 * 1000 * 1000}, {"B", 1},
+	}
+	factor := int64(1)
+	for _, u := range units {
+		if strings.HasSuffix(t, u.suffix) {
+			t, factor = strings.TrimSpace(strings.TrimSuffix(t, u.suffix)), u.factor
+			break
+		}
+	}
+	n, err := strconv.ParseFloat(t, 64)
+	if err != nil || n <= 0 || n*float64(factor) > 1<<62 {
+		return 0, fmt.Errorf("%q is not a size (try 4096, 512KiB or 32MiB)", s)
+	}
+	return int64(n * float64(factor)), nil
+}
+
+// parseScore reads a score as a fraction (0.8) or a percentage (80%).
+func parseScore(s string) (float64, error) {
+	t := strings.TrimSpace(s)
+	scale := 1.0
+	if strings.HasSuffix(t, "%") {
+		t, scale = strings.TrimSuffix(t, "%"), 100
+	}
+	v, err := strconv.ParseFloat(t, 64)
+	if err != nil {
+		return 0, fmt.Errorf("%q is not a score (try 0.8 or 80%%)", s)
+	}
+	v /= scale
+	if v < 0 || v > 1 {
+		return 0, fmt.Errorf("%q is outside 0..1 (0%%..100%%)", s)
+	}
+	return v, nil
+}

@@ -1,0 +1,356 @@
+package report
+
+import (
+	"cmp"
+	"fmt"
+	"math"
+	"slices"
+	"strings"
+
+	"reprise/pairs"
+	"reprise/shingle"
+)
+
+// FormatVersion is the version of the JSON contract, written as "format".
+const FormatVersion = 1
+
+// Caution is said by every report, in every format.
+const Caution = "Shared passages are leads for a human reviewer, not proof of misconduct. " +
+	"Quoted and cited material, common phrases and templates are legitimate reasons for text to match; " +
+	"read the passages in context, and decide only under your institution's own procedures."
+
+// Result is a complete report: the JSON contract, and the single source of
+// every number any renderer shows.
+type Result struct {
+	Format    int        `json:"format"`
+	Caution   string     `json:"caution"`
+	Settings  Settings   `json:"settings"`
+	Summary   Summary    `json:"summary"`
+	Documents []Document `json:"documents"`
+	Skipped   []Skipped  `json:"skipped"`
+	Common    []Common   `json:"common"`
+	Pairs     []Pair     `json:"pairs"`
+	Groups    []Group    `json:"groups"`
+	Clusters  []Cluster  `json:"clusters"`
+}
+
+// Settings are every effective setting that shaped the result.
+type Settings struct {
+	Version      string   `json:"version"`
+	Unit         string   `json:"unit"`
+	MinShared    int      `json:"min_shared"`
+	MinWords     int      `json:"min_words"`
+	MaxDocs      int      `json:"max_docs"`
+	MaxDocsRule  string   `json:"max_docs_rule"`
+	MaxUnitBytes int      `json:"max_unit_bytes"`
+	Exclude      []string `json:"exclude"`
+	Include      []string `json:"include"`
+	Skip         []string `json:"skip"`
+	MaxFileSize  int64    `json:"max_file_size"`
+}
+
+// Summary counts what the run read, set aside and found.
+type Summary struct {
+	Documents       int    `json:"documents"`
+	Skipped         int    `json:"skipped"`
+	Words           int    `json:"words"`
+	Units           int    `json:"units"`
+	Templates       int    `json:"templates"`
+	TemplateUnits   int    `json:"template_units"`
+	CommonUnits     int    `json:"common_units"`
+	Pruned          int    `json:"pruned"`
+	Counter         string `json:"counter"`
+	Pairs           int    `json:"pairs"`
+	Groups          int    `json:"groups"`
+	GroupsTruncated bool   `json:"groups_truncated"`
+}
+
+// Document describes one document that was read.
+type Document struct {
+	Path     string   `json:"path"`
+	Format   string   `json:"format"`
+	Encoding string   `json:"encoding"`
+	Words    int      `json:"words"`
+	Units    int      `json:"units"`
+	Reused   float64  `json:"reused"`
+	Notes    []string `json:"notes"`
+}
+
+// Skipped is an input that gave no document.
+type Skipped struct {
+	Path   string `json:"path"`
+	Reason string `json:"reason"`
+}
+
+// Common is a unit set aside because too many documents contain it.
+type Common struct {
+	Text      string `json:"text"`
+	Documents int    `json:"documents"`
+}
+
+// Pair is two documents that share passages; A sorts before B.
+type Pair struct {
+	A         string    `json:"a"`
+	B         string    `json:"b"`
+	Shared    int       `json:"shared"`
+	CoverageA float64   `json:"coverage_a"`
+	CoverageB float64   `json:"coverage_b"`
+	Jaccard   float64   `json:"jaccard"`
+	Score     float64   `json:"score"`
+	Passages  []Passage `json:"passages"`
+}
+
+// Passage is a maximal run of shared units, in the same order in both documents.
+// Offsets are byte offsets into each document's extracted text, start
+// inclusive, end exclusive; lines count from 1.
+type Passage struct {
+	AStart int    `json:"a_start"`
+	AEnd   int    `json:"a_end"`
+	BStart int    `json:"b_start"`
+	BEnd   int    `json:"b_end"`
+	ALine  int    `json:"a_line"`
+	BLine  int    `json:"b_line"`
+	Units  int    `json:"units"`
+	Words  int    `json:"words"`
+	Text   string `json:"text"`
+}
+
+// Group is a maximal set of three or more documents that all share Shared units.
+type Group struct {
+	Documents []string `json:"documents"`
+	Shared    int      `json:"shared"`
+}
+
+// Cluster is a connected component of the reported pairs.
+type Cluster struct {
+	Documents []string `json:"documents"`
+}
+
+// LongestWords is the number of words in the pair's longest passage.
+func (p *Pair) LongestWords() int {
+	longest := 0
+	for _, g := range p.Passages {
+		longest = max(longest, g.Words)
+	}
+	return longest
+}
+
+// Doc is one document as the report needs it: its text and its units in
+// text order (as shingle produced them).
+type Doc struct {
+	Path     string
+	Format   string
+	Encoding string
+	Notes    []string
+	Text     string
+	Words    int
+	Units    []shingle.Unit
+}
+
+// Input is everything Build combines.
+type Input struct {
+	Docs      []Doc // index = document ID given to the engine
+	Skipped   []Skipped
+	Engine    *pairs.Result
+	Excluded  []uint64 // template fingerprints, sorted
+	Templates int      // template documents read
+	Settings  Settings
+}
+
+// Build aligns every reported pair, scores and ranks them, and assembles the Result.
+func Build(in Input) (*Result, error) {
+	eng := in.Engine
+	if eng == nil {
+		return nil, fmt.Errorf("report: no engine result")
+	}
+	n := len(in.Docs)
+	aside := newSetAside(eng.Common, in.Excluded)
+
+	res := &Result{
+		Format:    FormatVersion,
+		Caution:   Caution,
+		Settings:  in.Settings,
+		Documents: make([]Document, n),
+		Skipped:   slices.Clone(in.Skipped),
+		Common:    make([]Common, 0, len(eng.Common)),
+		Pairs:     make([]Pair, 0, len(eng.Pairs)),
+		Groups:    make([]Group, 0, len(eng.Groups)),
+		Clusters:  make([]Cluster, 0, len(eng.Clusters)),
+	}
+	if res.Skipped == nil {
+		res.Skipped = []Skipped{}
+	}
+	res.Settings.Exclude = nonNil(res.Settings.Exclude)
+	res.Settings.Include = nonNil(res.Settings.Include)
+	res.Settings.Skip = nonNil(res.Settings.Skip)
+
+	// Each document's counted units, for Jaccard and alignment.
+	seqs := make([]sequence, n)
+	for i := range in.Docs {
+		seqs[i] = newSequence(in.Docs[i].Units, aside)
+	}
+
+	reusedSpans := make([][]span, n)
+	type ranked struct {
+		pair Pair
+		a, b uint32
+	}
+	rankedPairs := make([]ranked, 0, len(eng.Pairs))
+	for _, ep := range eng.Pairs {
+		if int(ep.A) >= n || int(ep.B) >= n {
+			return nil, fmt.Errorf("report: engine pair (%d, %d) outside %d documents", ep.A, ep.B, n)
+		}
+		da, db := &in.Docs[ep.A], &in.Docs[ep.B]
+		passages := align(&seqs[ep.A], &seqs[ep.B])
+		if len(passages) == 0 {
+			return nil, fmt.Errorf("report: %s and %s share %d units but no passage aligns", da.Path, db.Path, ep.Shared)
+		}
+		p := Pair{A: da.Path, B: db.Path, Shared: int(ep.Shared)}
+		var aSpans, bSpans []span
+		for _, r := range passages {
+			ua, ub := da.Units[r.a], db.Units[r.b]
+			la, lb := da.Units[r.a+r.n-1], db.Units[r.b+r.n-1]
+			g := Passage{
+				AStart: int(ua.Start), AEnd: int(la.End),
+				BStart: int(ub.Start), BEnd: int(lb.End),
+				Units: r.n,
+			}
+			g.Text = da.Text[g.AStart:g.AEnd]
+			g.Words = shingle.CountWords(g.Text)
+			aSpans = append(aSpans, span{g.AStart, g.AEnd})
+			bSpans = append(bSpans, span{g.BStart, g.BEnd})
+			p.Passages = append(p.Passages, g)
+		}
+		p.CoverageA = fraction(wordsIn(da.Text, aSpans), da.Words)
+		p.CoverageB = fraction(wordsIn(db.Text, bSpans), db.Words)
+		union := seqs[ep.A].distinct + seqs[ep.B].distinct - int(ep.Shared)
+		p.Jaccard = fraction(int(ep.Shared), union)
+		p.Score = max(p.CoverageA, p.CoverageB)
+		reusedSpans[ep.A] = append(reusedSpans[ep.A], aSpans...)
+		reusedSpans[ep.B] = append(reusedSpans[ep.B], bSpans...)
+		rankedPairs = append(rankedPairs, ranked{p, ep.A, ep.B})
+	}
+	slices.SortStableFunc(rankedPairs, func(x, y ranked) int {
+		return cmp.Or(
+			cmp.Compare(y.pair.Score, x.pair.Score),
+			cmp.Compare(y.pair.Shared, x.pair.Shared),
+			strings.Compare(x.pair.A, y.pair.A),
+			strings.Compare(x.pair.B, y.pair.B),
+		)
+	})
+	lines := make([]lineIndex, n)
+	for _, rp := range rankedPairs {
+		p := rp.pair
+		for k := range p.Passages {
+			g := &p.Passages[k]
+			g.ALine = lines[rp.a].line(in.Docs[rp.a].Text, g.AStart)
+			g.BLine = lines[rp.b].line(in.Docs[rp.b].Text, g.BStart)
+		}
+		res.Pairs = append(res.Pairs, p)
+	}
+
+	totalUnits, totalWords := 0, 0
+	for i := range in.Docs {
+		d := &in.Docs[i]
+		res.Documents[i] = Document{
+			Path:     d.Path,
+			Format:   d.Format,
+			Encoding: d.Encoding,
+			Words:    d.Words,
+			Units:    len(d.Units),
+			Reused:   fraction(wordsIn(d.Text, reusedSpans[i]), d.Words),
+			Notes:    nonNil(slices.Clone(d.Notes)),
+		}
+		totalUnits += len(d.Units)
+		totalWords += d.Words
+	}
+
+	for _, c := range eng.Common {
+		if int(c.First) >= n {
+			return nil, fmt.Errorf("report: common unit in document %d outside %d documents", c.First, n)
+		}
+		res.Common = append(res.Common, Common{Text: unitText(&in.Docs[c.First], c.Hash), Documents: int(c.Docs)})
+	}
+	slices.SortStableFunc(res.Common, func(x, y Common) int {
+		return cmp.Or(cmp.Compare(y.Documents, x.Documents), strings.Compare(x.Text, y.Text))
+	})
+
+	paths := func(ids []uint32) []string {
+		out := make([]string, len(ids))
+		for k, id := range ids {
+			out[k] = in.Docs[id].Path
+		}
+		return out
+	}
+	for _, g := range eng.Groups {
+		res.Groups = append(res.Groups, Group{Documents: paths(g.Docs), Shared: int(g.Shared)})
+	}
+	for _, c := range eng.Clusters {
+		res.Clusters = append(res.Clusters, Cluster{Documents: paths(c)})
+	}
+
+	res.Summary = Summary{
+		Documents:       n,
+		Skipped:         len(res.Skipped),
+		Words:           totalWords,
+		Units:           totalUnits,
+		Templates:       in.Templates,
+		TemplateUnits:   eng.Stats.ExcludedHits,
+		CommonUnits:     len(eng.Common),
+		Pruned:          eng.Stats.Pruned,
+		Counter:         eng.Counter.String(),
+		Pairs:           len(res.Pairs),
+		Groups:          len(res.Groups),
+		GroupsTruncated: eng.GroupsTruncated,
+	}
+	return res, nil
+}
+
+// unitText quotes the first unit of d with the given fingerprint.
+func unitText(d *Doc, hash uint64) string {
+	for _, u := range d.Units {
+		if u.Hash == hash {
+			return d.Text[u.Start:u.End]
+		}
+	}
+	return ""
+}
+
+// fraction is part/whole rounded to four decimals (0 when whole is 0),
+// the only place a score's precision is decided.
+func fraction(part, whole int) float64 {
+	if whole <= 0 {
+		return 0
+	}
+	f := float64(part) / float64(whole)
+	return math.Round(min(f, 1)*10000) / 10000
+}
+
+func nonNil[T any](s []T) []T {
+	if s == nil {
+		return []T{}
+	}
+	return s
+}
+
+// lineIndex maps byte offsets to 1-based line numbers, built on first use.
+type lineIndex struct {
+	starts []int // byte offset at which each line starts
+}
+
+func (x *lineIndex) line(text string, offset int) int {
+	if x.starts == nil {
+		x.starts = append(x.starts, 0)
+		for i := 0; i < len(text); i++ {
+			if text[i] == '\n' {
+				x.starts = append(x.starts, i+1)
+			}
+		}
+	}
+	// The line is the number of line starts at or before offset.
+	k, found := slices.BinarySearch(x.starts, offset)
+	if found {
+		return k + 1
+	}
+	return k
+}
