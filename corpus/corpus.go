@@ -1,0 +1,77 @@
+package corpus
+
+import (
+	"fmt"
+	"path"
+	"runtime"
+)
+
+// A Document is one readable input file, decoded to UTF-8 text.
+type Document struct {
+	ID       int    // index in the slice Read returns; documents are sorted by Path
+	Path     string // as given on the command line, joined with the relative path inside a folder
+	Format   string // "text" or "markdown"
+	Encoding string // "utf-8", "utf-8-bom", "utf-16le", "utf-16be" or "windows-1252"
+	Size     int64  // bytes on disk
+	// Text is the extracted text. For UTF-8 text files it is the file's bytes
+	// unchanged (BOM and CR included), so offsets into Text are offsets into
+	// the file. For Markdown, markup is replaced by spaces of the same byte
+	// length, so offsets and lines still match the file.
+	Text string
+	// Notes say what was done to the text that a reader should know
+	// (e.g. "not valid UTF-8: decoded as Windows-1252").
+	Notes []string
+}
+
+// Skipped is an input that gave no document, with the reason in plain words.
+type Skipped struct {
+	Path   string
+	Reason string
+}
+
+// Options control the walk. The zero value is usable.
+type Options struct {
+	// Include: when non-empty, only files whose base name matches one of
+	// these globs (path.Match syntax) are read.
+	Include []string
+	// Skip: files or folders whose base name, or whose path as displayed
+	// (as given or cleaned: "./docs/x" is also "docs/x"), matches one of
+	// these globs are not read, and not listed as skipped.
+	Skip []string
+	// MaxFileSize: larger files are skipped with a reason (0 means 32 MiB).
+	MaxFileSize int64
+	// Jobs: files read and decoded at once (0 means runtime.NumCPU()).
+	// Negative sizes and job counts are invalid options.
+	Jobs int
+}
+
+// DefaultMaxFileSize is the size limit used when Options.MaxFileSize is 0.
+const DefaultMaxFileSize = 32 << 20
+
+// withDefaults validates o and fills in the defaults of its zero fields.
+// It is the one place defaults are applied.
+func (o Options) withDefaults() (Options, error) {
+	for _, g := range o.Include {
+		if _, err := path.Match(g, ""); err != nil {
+			return o, fmt.Errorf("corpus: include glob %q: %w", g, err)
+		}
+	}
+	for _, g := range o.Skip {
+		if _, err := path.Match(g, ""); err != nil {
+			return o, fmt.Errorf("corpus: skip glob %q: %w", g, err)
+		}
+	}
+	switch {
+	case o.MaxFileSize < 0:
+		return o, fmt.Errorf("corpus: maximum file size %d is negative", o.MaxFileSize)
+	case o.MaxFileSize == 0:
+		o.MaxFileSize = DefaultMaxFileSize
+	}
+	switch {
+	case o.Jobs < 0:
+		return o, fmt.Errorf("corpus: jobs %d is negative", o.Jobs)
+	case o.Jobs == 0:
+		o.Jobs = runtime.NumCPU()
+	}
+	return o, nil
+}

@@ -1,0 +1,175 @@
+package corpus
+
+import (
+	"bytes"
+	"unicode"
+	"unicode/utf8"
+
+	"golang.org/x/text/encoding/charmap"
+	xunicode "golang.org/x/text/encoding/unicode"
+)
+
+// Plain-words reasons for files that give no text. They are the Reason of
+// a Skipped entry, so they are written for the person reading the list.
+const (
+	reasonEmpty       = "empty file"
+	reasonBlank       = "no text (white space only)"
+	reasonMarkupOnly  = "no text (markup only)"
+	reasonBinary      = "binary file (not text)"
+	reasonUnsupported = "unsupported format"
+)
+
+// Encodings, as stored in Document.Encoding.
+const (
+	encUTF8        = "utf-8"
+	encUTF8BOM     = "utf-8-bom"
+	encUTF16LE     = "utf-16le"
+	encUTF16BE     = "utf-16be"
+	encWindows1252 = "windows-1252"
+)
+
+const (
+	noteUTF16LE = "decoded from UTF-16LE: offsets refer to the decoded UTF-8 text"
+	noteUTF16BE = "decoded from UTF-16BE: offsets refer to the decoded UTF-8 text"
+	noteCP1252  = "not valid UTF-8: decoded as Windows-1252 (offsets refer to the decoded text)"
+	noteBOMBad  = "not valid UTF-8 despite its UTF-8 byte-order mark: mark dropped, decoded as Windows-1252 (offsets refer to the decoded text)"
+)
+
+// Byte-order marks.
+const (
+	bomUTF8    = "\xEF\xBB\xBF"
+	bomUTF16LE = "\xFF\xFE"
+	bomUTF16BE = "\xFE\xFF"
+)
+
+// decoded is a file's content as valid UTF-8.
+type decoded struct {
+	text     []byte // valid UTF-8; the file's own bytes for "utf-8" and "utf-8-bom"
+	encoding string
+	note     string // "" when offsets are file offsets
+}
+
+func (d decoded) notes() []string {
+	if d.note == "" {
+		return nil
+	}
+	return []string{d.note}
+}
+
+// decode detects the encoding of raw and returns its text as UTF-8, or a
+// refusal. The order of the tests matters:
+//
+//  1. no bytes: "empty file";
+//  2. a UTF-16 byte-order mark (FF FE little-endian, FE FF big-endian):
+//     decoded with x/text, mark dropped, unpaired surrogates become U+FFFD;
+//     the binary test then runs on the decoded text;
+//  3. the binary test on the raw bytes (looksBinary);
+//  4. a UTF-8 byte-order mark followed by valid UTF-8: "utf-8-bom", bytes
+//     kept as they are, mark included, so offsets stay file offsets;
+//  5. valid UTF-8: "utf-8", bytes kept;
+//  6. anything else is taken as Windows-1252, the usual encoding of older
+//     Western text files; every byte decodes (the five bytes it leaves
+//     undefined become U+FFFD), so the result is always valid UTF-8.
+//
+// Text that is empty or only white space once decoded is refused.
+func decode(raw []byte) (decoded, error) {
+	if len(raw) == 0 {
+		return decoded{}, refuse(reasonEmpty)
+	}
+	var d decoded
+	switch {
+	case bytes.HasPrefix(raw, []byte(bomUTF16LE)) || bytes.HasPrefix(raw, []byte(bomUTF16BE)):
+		order, enc, note := xunicode.LittleEndian, encUTF16LE, noteUTF16LE
+		if raw[0] == 0xFE {
+			order, enc, note = xunicode.BigEndian, encUTF16BE, noteUTF16BE
+		}
+		text, err := xunicode.UTF16(order, xunicode.ExpectBOM).NewDecoder().Bytes(raw)
+		if err != nil { // not expected: the decoder replaces what it cannot read
+			return decoded{}, err
+		}
+		if len(text) == 0 {
+			return decoded{}, refuse(reasonEmpty)
+		}
+		if looksBinary(text) {
+			return decoded{}, refuse(reasonBinary)
+		}
+		d = decoded{text: text, encoding: enc, note: note}
+	case looksBinary(raw):
+		return decoded{}, refuse(reasonBinary)
+	case bytes.HasPrefix(raw, []byte(bomUTF8)):
+		if len(raw) == len(bomUTF8) {
+			return decoded{}, refuse(reasonEmpty)
+		}
+		if utf8.Valid(raw) {
+			d = decoded{text: raw, encoding: encUTF8BOM}
+		} else {
+			d = decoded{text: fromWindows1252(raw[len(bomUTF8):]), encoding: encWindows1252, note: noteBOMBad}
+		}
+	case utf8.Valid(raw):
+		d = decoded{text: raw, encoding: encUTF8}
+	default:
+		d = decoded{text: fromWindows1252(raw), encoding: encWindows1252, note: noteCP1252}
+	}
+	if onlySpace(d.text) {
+		return decoded{}, refuse(reasonBlank)
+	}
+	return d, nil
+}
+
+// fromWindows1252 decodes raw, which need not be valid in any encoding.
+func fromWindows1252(raw []byte) []byte {
+	// Windows-1252 maps every byte, so the decoder cannot fail; if a
+	// future x/text did fail, keeping the valid-UTF-8 promise matters more
+	// than the exact characters.
+	text, err := charmap.Windows1252.NewDecoder().Bytes(raw)
+	if err != nil {
+		return bytes.ToValidUTF8(raw, []byte("\uFFFD"))
+	}
+	return text
+}
+
+// Binary test. A file is binary when it contains a NUL byte anywhere
+// (after UTF-16 decoding, for UTF-16 files) or when more than
+// binaryControlShare of the bytes in its first sniffLen (8 KiB) are C0
+// control characters other than tab, line feed, form feed and carriage
+// return (DEL counts as a control). Text in any single-byte or UTF-8
+// encoding almost never has either; executables, images and archives
+// almost always have NUL bytes early. The share (1 in 10) leaves room for
+// terminal colour escapes in logs, about 1 byte in 25 (threshold chosen
+// here; the NUL rule is common practice).
+const binaryControlShare = 10 // more than 1 in binaryControlShare
+
+func looksBinary(b []byte) bool {
+	if bytes.IndexByte(b, 0) >= 0 {
+		return true
+	}
+	head := b[:min(len(b), sniffLen)]
+	controls := 0
+	for _, c := range head {
+		if (c < 0x20 && c != '\t' && c != '\n' && c != '\f' && c != '\r') || c == 0x7F {
+			controls++
+		}
+	}
+	return controls*binaryControlShare > len(head)
+}
+
+// onlySpace reports whether valid UTF-8 text holds nothing but white space
+// and byte-order marks.
+func onlySpace(text []byte) bool {
+	for len(text) > 0 {
+		c := text[0]
+		if c < utf8.RuneSelf {
+			if c != ' ' && c != '\t' && c != '\n' && c != '\r' && c != '\f' && c != '\v' {
+				return false
+			}
+			text = text[1:]
+			continue
+		}
+		r, n := utf8.DecodeRune(text)
+		if r != '\uFEFF' && !unicode.IsSpace(r) {
+			return false
+		}
+		text = text[n:]
+	}
+	return true
+}

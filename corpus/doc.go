@@ -1,0 +1,135 @@
+// Package corpus turns the paths a user gives into Documents: UTF-8 text
+// with a stable ID, the path as the user will recognise it, its format and
+// encoding. It is the first stage of reprise; the later stages see only
+// the Documents.
+//
+// # The problem
+//
+// Real collections are untidy: folders with hidden version-control
+// folders, editor backups and images beside the essays, files saved by old
+// Windows editors in Windows-1252 or UTF-16, Markdown whose markup would
+// otherwise be counted as words, symbolic links that loop or lead nowhere,
+// and the same file reached twice ("docs" and "./docs"). The simple
+// approach, reading every file as UTF-8 and dropping whatever fails,
+// loses files silently and puts markup and mojibake into the comparison.
+// Here nothing is lost silently: every input that gives no document is
+// returned in Skipped with a reason in plain words, and every change made
+// to a text that a reader should know of is a Note on its Document.
+//
+// # The walk
+//
+// Arguments may be files or folders, in any mix. Folders are walked
+// recursively, entries in lexical order; a document's Path is the argument
+// as given joined with "/" and its path inside the folder ("docs" gives
+// "docs/a.txt", "docs/" gives "docs/a.txt", "./docs" gives
+// "./docs/a.txt"). The walk only stats; files are then sorted by Path and
+// the same file reached twice (same cleaned absolute path, or same device
+// and inode) is kept once, under the Path that sorts first. Then
+// Options.Jobs workers read and decode the files, each into its own slot,
+// so the result does not depend on the number of workers.
+//
+// Policy, in the order it is applied to each entry:
+//
+//   - Options.Skip (glob on the base name or on the displayed path): not
+//     read and not listed, as the user asked.
+//   - Names starting with a dot, inside a walked folder: not read, not
+//     descended into, listed once as hidden. A hidden file an
+//     Options.Include would have left out anyway is not listed. A dot
+//     name given as an argument is read: the user named it.
+//   - Options.Include (glob on the base name of files): files that do not
+//     match are not read and not listed. It applies to files given as
+//     arguments too.
+//   - Symbolic links to files are followed; inside a folder, links to
+//     folders are listed and not followed (this rules out cycles), broken
+//     links and loops are listed. A link given as an argument is followed
+//     even to a folder.
+//   - Devices, pipes and sockets are listed, never opened.
+//   - A file over Options.MaxFileSize is listed from its stat without
+//     being opened; reading stops one byte past the limit, so a file that
+//     grew meanwhile is caught too.
+//   - Unreadable files and folders are listed ("permission denied", ...).
+//
+// A folder with nothing readable gives no documents and no error; what
+// that means is the caller's decision. Read returns an error only for
+// invalid options: every glob is checked before anything is read.
+//
+// # Formats
+//
+// Each format is an extractor (extract.go) in its own file: text.go and
+// markdown.go today. The format of a file is chosen from its content
+// first (signatures), then from its extension (".md" and ".markdown" are
+// Markdown, ".txt" is text), and any other file whose content is text is
+// read as plain text, whatever its extension. Formats whose bytes look
+// like text but are markup for another program, and so would fill the
+// comparison with markup (PDF, PostScript, RTF, HTML, SVG, by signature
+// or extension), are listed as "unsupported format" until their extractor
+// exists; binary formats (DOCX, ODT, EPUB, ZIP, images) fail the binary
+// test and are listed as "binary file (not text)". An extractor returns a
+// struct, not a string, so that a later task can add DOCX, ODT, PDF, HTML,
+// EPUB, RTF, e-mail and ZIP extractors with per-document locations
+// (paragraph, page) through the same interface.
+//
+// # Decoding
+//
+// decode.go, in this order: an empty file is skipped; a UTF-16 byte-order
+// mark (FF FE or FE FF) means UTF-16, decoded to UTF-8 with the mark
+// dropped ("utf-16le", "utf-16be", with a Note that offsets refer to the
+// decoded text); a NUL byte anywhere, or more than one byte in ten of the
+// first 8 KiB being a control character other than tab, line feed, form
+// feed and carriage return, means binary; a UTF-8 byte-order mark and
+// valid UTF-8 give "utf-8-bom" with the bytes kept, mark included, so
+// offsets are file offsets; valid UTF-8 gives "utf-8", bytes kept; any
+// other text is decoded as Windows-1252 (with a Note; offsets then refer
+// to the decoded text). Text that is only white space is skipped. UTF-16
+// without a byte-order mark is not guessed: its NUL bytes make it binary.
+// The cost is one pass over the bytes to test for NUL and control bytes
+// and one to validate UTF-8; UTF-8 files, by far the most common, are not
+// copied until they become the Document's string.
+//
+// # Markdown
+//
+// Markdown is not rendered. Its markup is overwritten, byte for byte, with
+// ASCII spaces, so Text has exactly the file's length, every visible word
+// stays at its offset, and line ends are never touched, so line numbers
+// match the file and a blank line stays blank. Removed: front matter
+// (--- YAML --- at the top), ATX heading marks (#, and closing #s), setext
+// underlines, thematic breaks, block quote marks, list markers and
+// numbers, code fences with their info strings, backslash escapes (the
+// backslash; the escaped character stays), emphasis (* _ ~ ~~, paired
+// CommonMark style; unpaired runs are literal and stay), inline code
+// backticks (the code stays), link and image syntax (the text and alt text
+// stay; brackets, destination and title go), reference links' [label] and
+// one-line reference definitions, autolink brackets (the address is the
+// visible text and stays), HTML tags, comments and declarations, table
+// pipes and delimiter rows.
+//
+// Fenced code is kept: it is visible content, copied code is copied
+// content just as much as inline code is, and the boilerplate cap of the
+// later stages deals with snippets everybody shares. Its fence lines
+// become blank, so the code stands apart from the prose around it.
+//
+// Headings: a setext heading is followed by its underline, which becomes a
+// blank line, so its text is a paragraph of its own. An ATX heading has
+// no spare byte after its text in the common case ("# Title\n"), and
+// turning any byte into a line break would shift every later line number,
+// so a heading directly followed by a text line runs into that line's
+// first sentence; with the blank line that most Markdown styles put after
+// a heading, it stands alone. This was chosen over dropping such headings
+// (which loses their words) and over inserting bytes (which breaks
+// offsets). For the same reason consecutive list items and table rows are
+// single line breaks apart, so items without closing punctuation read as
+// one sentence.
+//
+// The blanker is a line pass for blocks and a paragraph pass for inline
+// markup, linear in the input except for link and HTML scans, which stop
+// at the paragraph's end. It is not a CommonMark parser, which was
+// rejected for the size of the code and because a parser produces a tree,
+// not a length-preserving text: containers are recognised on the line
+// where they start (lazy continuation lines are plain text), indented code
+// blocks are treated as text (unpaired markup characters in them stay),
+// code spans and links must close within their paragraph, a "[text]"
+// without a destination is left as it is (its brackets are punctuation,
+// which the later stages ignore), HTML entities (&amp;) are kept as
+// written, and the contents of <script> and <style> are kept as text.
+// It never panics, whatever the input (it is fuzzed).
+package corpus
