@@ -21,6 +21,20 @@ type Document struct {
 	// Notes say what was done to the text that a reader should know
 	// (e.g. "not valid UTF-8: decoded as Windows-1252").
 	Notes []string
+	// Marks locate the numbered parts of formats that have them (pages,
+	// chapters, paragraphs), sorted by Offset. Empty for text and Markdown,
+	// whose locations are line numbers.
+	Marks []Mark
+}
+
+// A Mark says that the part of Text from Offset on (up to the next Mark)
+// lies on the given page, in the given chapter and paragraph. A zero field
+// means the format has no such unit.
+type Mark struct {
+	Offset    int
+	Page      int
+	Chapter   int
+	Paragraph int
 }
 
 // Skipped is an input that gave no document, with the reason in plain words.

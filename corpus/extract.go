@@ -39,6 +39,7 @@ type extraction struct {
 	Text     string   // UTF-8 text; see Document.Text
 	Encoding string   // see Document.Encoding
 	Notes    []string // see Document.Notes
+	Marks    []Mark   // see Document.Marks
 }
 
 // sniffLen is how much of a file the signatures and the binary test look at.

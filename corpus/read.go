@@ -74,6 +74,7 @@ func Read(paths []string, opt Options) ([]Document, []Skipped, error) {
 			Size:     r.size,
 			Text:     r.Text,
 			Notes:    r.Notes,
+			Marks:    r.Marks,
 		})
 	}
 	slices.SortStableFunc(skipped, func(a, b Skipped) int { return strings.Compare(a.Path, b.Path) })

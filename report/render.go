@@ -226,7 +226,7 @@ func WriteText(w io.Writer, r *Result, opt TextOptions) error {
 					t.linef("   … and %s more.", plural(len(p.Passages)-k, "passage"))
 					break
 				}
-				t.dimf("   A line %d, B line %d: %s, %s", g.ALine, g.BLine, plural(g.Units, r.Settings.Unit), plural(g.Words, "word"))
+				t.dimf("   A %s, B %s: %s, %s", g.AWhere, g.BWhere, plural(g.Units, r.Settings.Unit), plural(g.Words, "word"))
 				t.linef("   “%s”", trim(clean(g.Text), 300))
 			}
 		}

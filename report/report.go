@@ -5,8 +5,10 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"strconv"
 	"strings"
 
+	"reprise/corpus"
 	"reprise/pairs"
 	"reprise/shingle"
 )
@@ -110,6 +112,8 @@ type Passage struct {
 	BEnd   int    `json:"b_end"`
 	ALine  int    `json:"a_line"`
 	BLine  int    `json:"b_line"`
+	AWhere string `json:"a_where"`
+	BWhere string `json:"b_where"`
 	Units  int    `json:"units"`
 	Words  int    `json:"words"`
 	Text   string `json:"text"`
@@ -145,6 +149,7 @@ type Doc struct {
 	Text     string
 	Words    int
 	Units    []shingle.Unit
+	Marks    []corpus.Mark // pages, chapters, paragraphs; none for line-based formats
 }
 
 // Input is everything Build combines.
@@ -245,6 +250,8 @@ func Build(in Input) (*Result, error) {
 			g := &p.Passages[k]
 			g.ALine = lines[rp.a].line(in.Docs[rp.a].Text, g.AStart)
 			g.BLine = lines[rp.b].line(in.Docs[rp.b].Text, g.BStart)
+			g.AWhere = where(in.Docs[rp.a].Marks, g.AStart, g.ALine)
+			g.BWhere = where(in.Docs[rp.b].Marks, g.BStart, g.BLine)
 		}
 		res.Pairs = append(res.Pairs, p)
 	}
@@ -331,6 +338,34 @@ func nonNil[T any](s []T) []T {
 		return []T{}
 	}
 	return s
+}
+
+// where names the place of offset that a reader can find in the original:
+// the page, chapter and paragraph of the last mark at or before it, or the
+// line for formats without marks.
+func where(marks []corpus.Mark, offset, line int) string {
+	k, found := slices.BinarySearchFunc(marks, offset, func(m corpus.Mark, off int) int { return cmp.Compare(m.Offset, off) })
+	if !found {
+		k--
+	}
+	if k < 0 {
+		return "line " + strconv.Itoa(line)
+	}
+	m := marks[k]
+	var parts []string
+	if m.Chapter > 0 {
+		parts = append(parts, "chapter "+strconv.Itoa(m.Chapter))
+	}
+	if m.Page > 0 {
+		parts = append(parts, "page "+strconv.Itoa(m.Page))
+	}
+	if m.Paragraph > 0 {
+		parts = append(parts, "paragraph "+strconv.Itoa(m.Paragraph))
+	}
+	if len(parts) == 0 {
+		return "line " + strconv.Itoa(line)
+	}
+	return strings.Join(parts, ", ")
 }
 
 // lineIndex maps byte offsets to 1-based line numbers, built on first use.

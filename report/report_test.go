@@ -8,6 +8,7 @@ import (
 	"strings"
 	"testing"
 
+	"reprise/corpus"
 	"reprise/pairs"
 	"reprise/shingle"
 )
@@ -202,6 +203,29 @@ func TestGolden(t *testing.T) {
 		}
 		if !strings.Contains(buf.String(), "not proof of misconduct") {
 			t.Errorf("%s rendering lacks the caution", format)
+		}
+	}
+}
+
+func TestWhereNamesPagesParagraphsOrLines(t *testing.T) {
+	marks := []corpus.Mark{{Offset: 0, Page: 1, Paragraph: 1}, {Offset: 100, Page: 1, Paragraph: 2}, {Offset: 250, Page: 2, Paragraph: 3}}
+	chapters := []corpus.Mark{{Offset: 10, Chapter: 2, Paragraph: 7}}
+	tests := []struct {
+		name   string
+		marks  []corpus.Mark
+		offset int
+		want   string
+	}{
+		{"no marks: the line", nil, 40, "line 3"},
+		{"at a mark: that mark", marks, 100, "page 1, paragraph 2"},
+		{"between marks: the earlier one", marks, 249, "page 1, paragraph 2"},
+		{"after the last mark", marks, 9000, "page 2, paragraph 3"},
+		{"chapter and paragraph", chapters, 11, "chapter 2, paragraph 7"},
+		{"before the first mark: the line", chapters, 5, "line 3"},
+	}
+	for _, tc := range tests {
+		if got := where(tc.marks, tc.offset, 3); got != tc.want {
+			t.Errorf("%s: where = %q, want %q", tc.name, got, tc.want)
 		}
 	}
 }

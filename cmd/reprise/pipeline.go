@@ -122,7 +122,7 @@ func scan(cfg scanConfig) (*report.Result, error) {
 		}
 		rin.Docs[i] = report.Doc{
 			Path: d.Path, Format: d.Format, Encoding: d.Encoding, Notes: notes,
-			Text: d.Text, Words: stats[i].Words, Units: units[i],
+			Text: d.Text, Words: stats[i].Words, Units: units[i], Marks: d.Marks,
 		}
 	}
 	for i, s := range skipped {
