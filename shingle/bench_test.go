@@ -1,0 +1,59 @@
+package shingle
+
+import (
+	"strings"
+	"testing"
+)
+
+// benchParagraph is invented prose, hard-wrapped like a real document.
+const benchParagraph = `The committee met on a grey morning to weigh the proposal, which had
+been circulated in draft a week before. Several members asked whether the
+figures were current; the chair said they were, "as of last Friday." After
+a short debate about over-all costs, the motion carried without dissent.
+Nobody expected the vote to be close, but the minutes record it anyway.
+
+`
+
+// benchText returns at least n bytes of repeated invented prose.
+func benchText(n int) string {
+	return strings.Repeat(benchParagraph, n/len(benchParagraph)+1)
+}
+
+func BenchmarkSentences(b *testing.B) {
+	text := benchText(400 << 10)
+	sp := New(Options{})
+	var units []Unit
+	b.SetBytes(int64(len(text)))
+	b.ReportAllocs()
+	for b.Loop() {
+		units, _ = sp.Sentences(text, units)
+	}
+	if len(units) == 0 {
+		b.Fatal("no units")
+	}
+}
+
+func BenchmarkNormalize(b *testing.B) {
+	n := newNormalizer()
+	s := "The committee met on a grey morning to weigh the “proposal”, which had been circulated."
+	var out []byte
+	b.SetBytes(int64(len(s)))
+	for b.Loop() {
+		out = n.append(out[:0], s)
+	}
+}
+
+// BenchmarkSentencesCutting splits 1 MB without a space or sentence break,
+// so that every piece is cut at the byte limit (this was quadratic once).
+func BenchmarkSentencesCutting(b *testing.B) {
+	text := strings.Repeat("a.", 512<<10) // one UAX #29 word
+	sp := New(Options{MinWords: 1})
+	var units []Unit
+	b.SetBytes(int64(len(text)))
+	for b.Loop() {
+		units, _ = sp.Sentences(text, units)
+	}
+	if len(units) < len(text)/sp.Options().MaxUnitBytes {
+		b.Fatalf("%d units from %d bytes: not cut", len(units), len(text))
+	}
+}

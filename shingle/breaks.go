@@ -1,0 +1,120 @@
+package shingle
+
+import (
+	"unicode"
+	"unicode/utf8"
+)
+
+// isBlankByte reports whether c is white space within a line: space, tab,
+// vertical tab or form feed.
+func isBlankByte(c byte) bool {
+	return c == ' ' || c == '\t' || c == '\v' || c == '\f'
+}
+
+// unwrap appends text to dst with every single line break inside a paragraph
+// replaced by spaces, byte for byte, so that offsets into the result are
+// offsets into text. A line break is LF, CR or CRLF. A run of blanks and line
+// breaks holding two or more line breaks (a blank line) is kept as it is: it
+// stays a paragraph break for UAX #29 (rule SB4). Other separators (NEL,
+// U+2028, U+2029) are left alone.
+func unwrap(dst []byte, text string) []byte {
+	base := len(dst)
+	dst = append(dst, text...)
+	b := dst[base:]
+	for i := 0; i < len(b); {
+		c := b[i]
+		if c != '\n' && c != '\r' {
+			i++
+			continue
+		}
+		// b[i] starts a run of line breaks and blanks; count its breaks.
+		j, breaks := i, 0
+	scan:
+		for j < len(b) {
+			switch {
+			case b[j] == '\r':
+				breaks++
+				if j+1 < len(b) && b[j+1] == '\n' {
+					j++
+				}
+			case b[j] == '\n':
+				breaks++
+			case isBlankByte(b[j]):
+			default:
+				break scan
+			}
+			j++
+		}
+		if breaks == 1 {
+			for k := i; k < j; k++ {
+				if b[k] == '\n' || b[k] == '\r' {
+					b[k] = ' '
+				}
+			}
+		}
+		i = j
+	}
+	return dst
+}
+
+// hasTerminator reports whether text holds a character with the UAX #29
+// Sentence_Break property STerm or ATerm. STerm is Sentence_Terminal=Yes minus
+// the ATerm characters, and ATerm is U+002E, U+2024, U+FE52 and U+FF0E
+// (UAX #29, table 4), so the union is Sentence_Terminal plus those four.
+func hasTerminator(text string) bool {
+	for i := 0; i < len(text); {
+		c := text[i]
+		if c < utf8.RuneSelf {
+			if c == '.' || c == '!' || c == '?' {
+				return true
+			}
+			i++
+			continue
+		}
+		r, size := utf8.DecodeRuneInString(text[i:])
+		if isTerminator(r) {
+			return true
+		}
+		i += size
+	}
+	return false
+}
+
+// isTerminator reports whether r has Sentence_Break STerm or ATerm.
+func isTerminator(r rune) bool {
+	switch r {
+	case '.', 0x2024, 0xFE52, 0xFF0E:
+		return true
+	}
+	return unicode.Is(unicode.Sentence_Terminal, r)
+}
+
+// isTrimmable reports whether r may be dropped from either end of a span:
+// white space and format characters (Cf, such as a byte order mark or a zero
+// width space).
+func isTrimmable(r rune) bool {
+	if r < utf8.RuneSelf {
+		return r == ' ' || r == '\t' || r == '\n' || r == '\r' || r == '\v' || r == '\f'
+	}
+	return unicode.IsSpace(r) || unicode.Is(unicode.Cf, r)
+}
+
+// trimSpan narrows [start, end) of text past trimmable runes at both ends.
+// Invalid bytes are never trimmed.
+func trimSpan(text string, start, end int) (int, int) {
+	for start < end {
+		r, size := utf8.DecodeRuneInString(text[start:end])
+		if r == utf8.RuneError || !isTrimmable(r) {
+			break
+		}
+		start += size
+	}
+	for end > start {
+		r, size := utf8.DecodeLastRuneInString(text[start:end])
+		if r == utf8.RuneError || !isTrimmable(r) {
+			break
+		}
+		end -= size
+	}
+	return start, end
+}
