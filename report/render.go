@@ -71,50 +71,32 @@ func WriteNDJSON(w io.Writer, r *Result) error {
 		return err
 	}
 	for i := range r.Documents {
-		if err := put(struct {
-			Type string `json:"type"`
-			*Document
-		}{"document", &r.Documents[i]}); err != nil {
+		if err := putTyped(bw, "document", &r.Documents[i]); err != nil {
 			return err
 		}
 	}
 	for i := range r.Skipped {
-		if err := put(struct {
-			Type string `json:"type"`
-			*Skipped
-		}{"skipped", &r.Skipped[i]}); err != nil {
+		if err := putTyped(bw, "skipped", &r.Skipped[i]); err != nil {
 			return err
 		}
 	}
 	for i := range r.Common {
-		if err := put(struct {
-			Type string `json:"type"`
-			*Common
-		}{"common", &r.Common[i]}); err != nil {
+		if err := putTyped(bw, "common", &r.Common[i]); err != nil {
 			return err
 		}
 	}
 	for i := range r.Pairs {
-		if err := put(struct {
-			Type string `json:"type"`
-			*Pair
-		}{"pair", &r.Pairs[i]}); err != nil {
+		if err := putTyped(bw, "pair", &r.Pairs[i]); err != nil {
 			return err
 		}
 	}
 	for i := range r.Groups {
-		if err := put(struct {
-			Type string `json:"type"`
-			*Group
-		}{"group", &r.Groups[i]}); err != nil {
+		if err := putTyped(bw, "group", &r.Groups[i]); err != nil {
 			return err
 		}
 	}
 	for i := range r.Clusters {
-		if err := put(struct {
-			Type string `json:"type"`
-			*Cluster
-		}{"cluster", &r.Clusters[i]}); err != nil {
+		if err := putTyped(bw, "cluster", &r.Clusters[i]); err != nil {
 			return err
 		}
 	}
@@ -122,6 +104,21 @@ func WriteNDJSON(w io.Writer, r *Result) error {
 		return fmt.Errorf("report: ndjson: %w", err)
 	}
 	return nil
+}
+
+// putTyped writes v as one JSON line whose first field is "type": kind.
+// v must encode as a JSON object.
+func putTyped(w *bufio.Writer, kind string, v any) error {
+	b, err := json.Marshal(v)
+	if err != nil || len(b) < 2 || b[0] != '{' {
+		return fmt.Errorf("report: ndjson: %s: cannot encode as an object: %v", kind, err)
+	}
+	fmt.Fprintf(w, "{\"type\":%q", kind)
+	if len(b) > 2 {
+		w.WriteByte(',')
+	}
+	w.Write(b[1:])
+	return w.WriteByte('\n')
 }
 
 // csvHeader names the CSV columns. One table holds every record kind, told
