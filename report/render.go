@@ -13,13 +13,15 @@ import (
 )
 
 // Formats lists the renderings Write knows, in the order --help shows them.
-var Formats = []string{"text", "json", "ndjson", "csv"}
+var Formats = []string{"text", "json", "ndjson", "csv", "html"}
 
 // TextOptions shape the terminal rendering.
 type TextOptions struct {
 	Top      int  // pairs in the table (0 means 20)
 	Passages int  // top pairs whose first passages are quoted (0 means 5)
 	Color    bool // ANSI bold and dim, for a terminal
+
+	HTMLPairs int // html: top pairs with a detail view (0 means DefaultHTMLPairs)
 }
 
 // Write renders r in the named format.
@@ -33,6 +35,8 @@ func Write(w io.Writer, r *Result, format string, opt TextOptions) error {
 		return WriteNDJSON(w, r)
 	case "csv":
 		return WriteCSV(w, r)
+	case "html":
+		return WriteHTML(w, r, HTMLOptions{Pairs: opt.HTMLPairs})
 	}
 	return fmt.Errorf("report: unknown format %q (want one of %s)", format, strings.Join(Formats, ", "))
 }

@@ -34,6 +34,12 @@ type Result struct {
 	Pairs     []Pair     `json:"pairs"`
 	Groups    []Group    `json:"groups"`
 	Clusters  []Cluster  `json:"clusters"`
+
+	// Texts holds each document's extracted text, parallel to Documents,
+	// for renderers that show passages in context (HTML). It is not part of
+	// the JSON contract: Build fills it; a Result decoded from JSON has none
+	// until the caller re-reads the documents (cmd/reprise's report command).
+	Texts []SourceText `json:"-"`
 }
 
 // Settings are every effective setting that shaped the result.
@@ -176,6 +182,7 @@ func Build(in Input) (*Result, error) {
 		Caution:   Caution,
 		Settings:  in.Settings,
 		Documents: make([]Document, n),
+		Texts:     make([]SourceText, n),
 		Skipped:   slices.Clone(in.Skipped),
 		Common:    make([]Common, 0, len(eng.Common)),
 		Pairs:     make([]Pair, 0, len(eng.Pairs)),
@@ -268,6 +275,7 @@ func Build(in Input) (*Result, error) {
 			Reused:   fraction(wordsIn(d.Text, reusedSpans[i]), d.Words),
 			Notes:    nonNil(slices.Clone(d.Notes)),
 		}
+		res.Texts[i] = SourceText{Text: d.Text}
 		totalUnits += len(d.Units)
 		totalWords += d.Words
 	}

@@ -27,6 +27,7 @@ const mainUsage = `reprise finds documents that share passages, and shows which 
 
 Usage:
   reprise scan [flags] PATH...     compare every document with every other
+  reprise report [flags] RESULT    render a saved JSON result again (text, csv, html, ...)
   reprise help [COMMAND]           show help
   reprise --version                print the version
 
@@ -48,9 +49,14 @@ func run(args []string, stdout, stderr io.Writer) int {
 	switch args[0] {
 	case "scan":
 		return runScan(args[1:], stdout, stderr)
+	case "report":
+		return runReport(args[1:], stdout, stderr)
 	case "help", "-h", "--help":
 		if len(args) > 1 && args[1] == "scan" {
 			return runScan([]string{"--help"}, stdout, stderr)
+		}
+		if len(args) > 1 && args[1] == "report" {
+			return runReport([]string{"--help"}, stdout, stderr)
 		}
 		fmt.Fprint(stdout, mainUsage)
 		return exitOK

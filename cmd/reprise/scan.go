@@ -55,6 +55,7 @@ type scanFlags struct {
 	format      string
 	output      string
 	top         int
+	htmlPairs   int
 	jobs        int
 	include     []string
 	skip        []string
@@ -75,6 +76,7 @@ func newScanFlagSet(f *scanFlags, stderr io.Writer) *pflag.FlagSet {
 	fs.StringVar(&f.format, "format", "text", "output format: "+strings.Join(report.Formats, ", "))
 	fs.StringVarP(&f.output, "output", "o", "", "write the report to `FILE` (via a temporary file, then renamed) instead of standard output")
 	fs.IntVar(&f.top, "top", 20, "pairs shown in the text table")
+	fs.IntVar(&f.htmlPairs, "html-pairs", report.DefaultHTMLPairs, "html: the top `N` pairs get a side-by-side view; the rest are in the table only")
 	fs.IntVar(&f.jobs, "jobs", runtime.NumCPU(), "documents read and split at once")
 	fs.StringArrayVar(&f.include, "include", nil, "read only files whose name matches `GLOB` (e.g. '*.txt'); repeatable")
 	fs.StringArrayVar(&f.skip, "skip", nil, "do not read files or folders whose name or path matches `GLOB`; repeatable")
@@ -132,7 +134,7 @@ func runScan(args []string, stdout, stderr io.Writer) int {
 	}
 
 	color := f.output == "" && isTerminal(stdout) && os.Getenv("NO_COLOR") == ""
-	opt := report.TextOptions{Top: f.top, Color: color}
+	opt := report.TextOptions{Top: f.top, Color: color, HTMLPairs: htmlPairsOption(f.htmlPairs)}
 	if err := writeOutput(f.output, stdout, func(w io.Writer) error { return report.Write(w, res, f.format, opt) }); err != nil {
 		fmt.Fprintf(stderr, "reprise scan: %v\n", err)
 		return exitUsage
@@ -175,6 +177,9 @@ func (f *scanFlags) config(paths []string) (cfg scanConfig, failOn float64, err 
 	}
 	if f.top < 1 {
 		return cfg, failOn, fmt.Errorf("--top must be at least 1, not %d", f.top)
+	}
+	if f.htmlPairs < 0 {
+		return cfg, failOn, fmt.Errorf("--html-pairs must be 0 or more, not %d", f.htmlPairs)
 	}
 	if f.jobs < 1 {
 		return cfg, failOn, fmt.Errorf("--jobs must be at least 1, not %d", f.jobs)

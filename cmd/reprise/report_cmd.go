@@ -1,0 +1,227 @@
+package main
+
+import (
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"slices"
+	"strconv"
+	"strings"
+
+	"github.com/spf13/pflag"
+
+	"reprise/corpus"
+	"reprise/report"
+	"reprise/shingle"
+)
+
+const reportUsage = `Usage: reprise report [flags] RESULT.json
+
+Renders a result saved with 'reprise scan --format json' again, in another
+format, without scanning: text, json, ndjson, csv or html.
+
+The HTML page shows the two documents of a pair side by side. The JSON holds
+only the shared passages, so for html the documents of the detailed pairs are
+read again from their paths as recorded (relative to the folder the scan ran
+in). A document is shown only when it still has the word count the result
+recorded and every passage's text is where the result says; otherwise that
+pair shows its passages and locations only, and the page says why.
+
+Examples:
+  reprise scan --format json -o result.json essays/
+  reprise report --format html -o review.html result.json
+      the review page; open review.html in a browser (it works offline)
+  reprise report --format csv result.json > pairs.csv
+
+Flags:
+`
+
+type reportFlags struct {
+	format    string
+	output    string
+	top       int
+	htmlPairs int
+	help      bool
+}
+
+func runReport(args []string, stdout, stderr io.Writer) int {
+	var f reportFlags
+	fs := pflag.NewFlagSet("report", pflag.ContinueOnError)
+	fs.SetOutput(stderr)
+	fs.SortFlags = false
+	fs.Usage = func() {}
+	fs.StringVar(&f.format, "format", "text", "output format: "+strings.Join(report.Formats, ", "))
+	fs.StringVarP(&f.output, "output", "o", "", "write the report to `FILE` (via a temporary file, then renamed) instead of standard output")
+	fs.IntVar(&f.top, "top", 20, "pairs shown in the text table")
+	fs.IntVar(&f.htmlPairs, "html-pairs", report.DefaultHTMLPairs, "html: the top `N` pairs get a side-by-side view; the rest are in the table only")
+	fs.BoolVarP(&f.help, "help", "h", false, "show this help")
+	usage := func() {
+		fmt.Fprint(stdout, reportUsage)
+		fmt.Fprint(stdout, fs.FlagUsages())
+		fmt.Fprint(stdout, "\nShared passages are leads for a human reviewer, not proof of misconduct.\n")
+	}
+	fail := func(format string, a ...any) int {
+		fmt.Fprintf(stderr, "reprise report: "+format+"\n", a...)
+		return exitUsage
+	}
+	if err := fs.Parse(args); err != nil {
+		if errors.Is(err, pflag.ErrHelp) {
+			usage()
+			return exitOK
+		}
+		return fail("%v\nRun 'reprise report --help' for usage.", err)
+	}
+	if f.help {
+		usage()
+		return exitOK
+	}
+	if fs.NArg() != 1 {
+		return fail("want one RESULT.json, got %d arguments\nRun 'reprise report --help' for usage.", fs.NArg())
+	}
+	if !slices.Contains(report.Formats, f.format) {
+		return fail("--format %q: want one of %s", f.format, strings.Join(report.Formats, ", "))
+	}
+	if f.top < 1 {
+		return fail("--top must be at least 1, not %d", f.top)
+	}
+	if f.htmlPairs < 0 {
+		return fail("--html-pairs must be 0 or more, not %d", f.htmlPairs)
+	}
+	res, err := readResult(fs.Arg(0))
+	if err != nil {
+		return fail("%v", err)
+	}
+	if f.format == "html" {
+		res.Texts = reloadTexts(res, htmlPairsOption(f.htmlPairs))
+	}
+	color := f.output == "" && isTerminal(stdout) && os.Getenv("NO_COLOR") == ""
+	opt := report.TextOptions{Top: f.top, Color: color, HTMLPairs: htmlPairsOption(f.htmlPairs)}
+	if err := writeOutput(f.output, stdout, func(w io.Writer) error { return report.Write(w, res, f.format, opt) }); err != nil {
+		return fail("%v", err)
+	}
+	return exitOK
+}
+
+// htmlPairsOption maps the --html-pairs flag (0: no detail view) onto
+// report.HTMLOptions.Pairs (0: the default; negative: none).
+func htmlPairsOption(n int) int {
+	if n == 0 {
+		return -1
+	}
+	return n
+}
+
+// readResult decodes a saved JSON result and checks that it is one.
+func readResult(name string) (*report.Result, error) {
+	raw, err := os.ReadFile(name)
+	if err != nil {
+		return nil, err
+	}
+	var res report.Result
+	if err := json.Unmarshal(raw, &res); err != nil {
+		return nil, fmt.Errorf("%s: not a reprise JSON result: %w", name, err)
+	}
+	if res.Format != report.FormatVersion {
+		return nil, fmt.Errorf("%s: result format %d, this reprise reads format %d (is it a 'reprise scan --format json' file?)",
+			name, res.Format, report.FormatVersion)
+	}
+	if res.Caution == "" {
+		res.Caution = report.Caution
+	}
+	return &res, nil
+}
+
+// reloadTexts reads again, by their recorded paths, the documents of the
+// pairs the page details, and keeps a text only when it still matches the
+// result: the same word count and, for every passage, the recorded text at
+// the recorded offsets (A side) and offsets inside the text (B side).
+func reloadTexts(res *report.Result, htmlPairs int) []report.SourceText {
+	texts := make([]report.SourceText, len(res.Documents))
+	for i := range texts {
+		texts[i].Missing = "not needed for the pairs shown side by side"
+	}
+	detailed := len(res.Pairs)
+	switch {
+	case htmlPairs < 0:
+		detailed = 0
+	case htmlPairs > 0:
+		detailed = min(detailed, htmlPairs)
+	default:
+		detailed = min(detailed, report.DefaultHTMLPairs)
+	}
+	index := make(map[string]int, len(res.Documents))
+	for i, d := range res.Documents {
+		index[d.Path] = i
+	}
+	want := map[string]bool{}
+	for _, p := range res.Pairs[:detailed] {
+		want[p.A], want[p.B] = true, true
+	}
+	paths := make([]string, 0, len(want))
+	for p := range want {
+		paths = append(paths, p)
+	}
+	slices.Sort(paths)
+	for _, p := range paths {
+		if _, ok := index[p]; !ok {
+			continue
+		}
+		texts[index[p]].Missing = "the file could not be read again"
+	}
+	if len(paths) == 0 {
+		return texts
+	}
+	docs, skipped, err := corpus.Read(paths, corpus.Options{MaxFileSize: res.Settings.MaxFileSize})
+	if err != nil {
+		for _, p := range paths {
+			if i, ok := index[p]; ok {
+				texts[i].Missing = "the file could not be read again: " + err.Error()
+			}
+		}
+		return texts
+	}
+	for _, s := range skipped {
+		if i, ok := index[s.Path]; ok {
+			texts[i].Missing = "the file could not be read again (" + s.Reason + ")"
+		}
+	}
+	sp := shingle.New(shingle.Options{MinWords: res.Settings.MinWords, MaxUnitBytes: res.Settings.MaxUnitBytes})
+	for _, d := range docs {
+		i, ok := index[d.Path]
+		if !ok {
+			continue
+		}
+		_, st := sp.Sentences(d.Text, nil)
+		if st.Words != res.Documents[i].Words {
+			texts[i].Missing = "the file has changed since the scan (" + strconv.Itoa(st.Words) + " words now, " +
+				strconv.Itoa(res.Documents[i].Words) + " recorded)"
+			continue
+		}
+		if why := passagesMismatch(res, d.Path, d.Text); why != "" {
+			texts[i].Missing = why
+			continue
+		}
+		texts[i] = report.SourceText{Text: d.Text}
+	}
+	return texts
+}
+
+// passagesMismatch says why text is not the one the result's passages
+// point into, or "" when every passage fits.
+func passagesMismatch(res *report.Result, path, text string) string {
+	for _, p := range res.Pairs {
+		for _, g := range p.Passages {
+			if p.A == path {
+				if g.AStart < 0 || g.AEnd > len(text) || g.AStart > g.AEnd || text[g.AStart:g.AEnd] != g.Text {
+					return "the file has changed since the scan (a passage is no longer at its recorded offsets)"
+				}
+			}
+			if p.B == path && (g.BStart < 0 || g.BEnd > len(text) || g.BStart > g.BEnd) {
+				return "the file has changed since the scan (a passage's offsets lie outside the text)"
+			}
+		}
+	}
+	return ""
+}

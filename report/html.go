@@ -1,0 +1,564 @@
+package report
+
+// The HTML review page.
+//
+// # Design
+//
+// One file that a reviewer opens straight from disk, offline: the style
+// sheet and the script are embedded in the binary (html/page.css,
+// html/page.js) and written inline; the two pictures are inline SVG whose
+// geometry Go computes (svg.go); there are no fonts, images, frames or
+// requests of any kind. A Content-Security-Policy <meta> allows exactly the
+// one inline style sheet and the one inline script, by their SHA-256 hashes,
+// and nothing else: even if an escaping mistake let document text become
+// markup, an injected script or a request to anywhere would be refused by
+// the browser.
+//
+// Everything derived from input (file names, document text, notes, reasons)
+// goes through html/template's contextual escaping; the only trusted values
+// (template.CSS, template.JS) are the embedded files. Numbers are formatted
+// from the Result's fields, never recomputed, so the page says what the JSON
+// says. The script only sorts, filters and shows one pair at a time; it
+// never builds markup from strings. Without the script every pair's detail
+// is shown one after the other, so the page still reads (and prints).
+//
+// # Size
+//
+// A page for a big corpus must stay openable. Only the top Pairs pairs
+// (HTMLOptions.Pairs, default 200) get a detail view; every pair is a row of
+// the table. A detail view shows a document whole when its text is at most
+// htmlFullText bytes ("short"); a longer document ("long") shows each passage
+// with htmlContext bytes of context either side, a passage longer than
+// htmlWindowMax bytes shown by its head and tail, and at most htmlSideBudget
+// bytes of text per side; at most htmlMaxPassages passages per pair are
+// marked and listed. HTMLSizeBound turns these caps into a bound on the
+// file's size that the tests check; the README states it.
+//
+// # Rejected alternatives
+//
+// One page per pair in a folder would keep each page small but is no
+// longer one file to mail or archive; a client-side renderer fed with the
+// JSON (templates in JavaScript) would move escaping into the browser,
+// where html/template's contextual escaping is not available, and would
+// need the JSON inline anyway. A charting library in the browser is neither
+// offline-safe to fetch nor deterministic; Go draws the SVG.
+
+import (
+	"bytes"
+	"cmp"
+	"crypto/sha256"
+	_ "embed"
+	"encoding/base64"
+	"fmt"
+	"html/template"
+	"io"
+	"path"
+	"slices"
+	"strconv"
+	"strings"
+	"unicode/utf8"
+)
+
+// Limits of the detail views (see "Size" above).
+const (
+	// DefaultHTMLPairs is the number of top pairs given a detail view.
+	DefaultHTMLPairs = 200
+	// htmlFullText: a document of at most this many bytes is shown whole.
+	htmlFullText = 24 << 10
+	// htmlContext: bytes of context shown either side of a passage in a long document.
+	htmlContext = 320
+	// htmlWindowMax: a passage window longer than this is shown by its head and tail.
+	htmlWindowMax = 4 << 10
+	// htmlSideBudget: bytes of document text shown per side of a long document.
+	htmlSideBudget = 24 << 10
+	// htmlMaxPassages: passages marked and listed per detailed pair.
+	htmlMaxPassages = 200
+	// htmlMaxPartners: partners listed per document in the documents table.
+	htmlMaxPartners = 8
+)
+
+// HTMLOptions shape the HTML page.
+type HTMLOptions struct {
+	Pairs int // top pairs with a detail view (0 means DefaultHTMLPairs; negative means none)
+}
+
+func (o HTMLOptions) detailed(total int) int {
+	n := o.Pairs
+	if n == 0 {
+		n = DefaultHTMLPairs
+	}
+	return max(0, min(n, total))
+}
+
+// SourceText is one document's extracted text, kept beside the Result for
+// renderers that show passages in context. It is not part of the JSON
+// contract: a Result read back from JSON has no texts until the caller
+// supplies them.
+type SourceText struct {
+	Text    string
+	Missing string // why Text is not available ("" when it is)
+}
+
+//go:embed html/page.tmpl
+var pageTemplate string
+
+//go:embed html/page.css
+var pageCSS string
+
+//go:embed html/page.js
+var pageJS string
+
+var pageTmpl = template.Must(template.New("page").Funcs(template.FuncMap{
+	"pct":    percent,
+	"num":    func(f float64) string { return strconv.FormatFloat(f, 'f', -1, 64) },
+	"plural": plural,
+	"bytes":  formatBytes[int64],
+}).Parse(pageTemplate))
+
+// cspFor is the page's Content-Security-Policy: nothing from anywhere, except
+// the one inline style sheet and the one inline script, named by hash.
+func cspFor(css, js string) string {
+	h := func(s string) string {
+		sum := sha256.Sum256([]byte(s))
+		return "'sha256-" + base64.StdEncoding.EncodeToString(sum[:]) + "'"
+	}
+	return "default-src 'none'; style-src " + h(css) + "; script-src " + h(js) +
+		"; img-src 'none'; font-src 'none'; connect-src 'none'; media-src 'none'; object-src 'none'; " +
+		"frame-src 'none'; worker-src 'none'; manifest-src 'none'; form-action 'none'; base-uri 'none'"
+}
+
+// WriteHTML writes the self-contained review page.
+func WriteHTML(w io.Writer, r *Result, opt HTMLOptions) error {
+	data := buildPage(r, opt)
+	var buf bytes.Buffer
+	if err := pageTmpl.Execute(&buf, data); err != nil {
+		return fmt.Errorf("report: html: %w", err)
+	}
+	if _, err := w.Write(buf.Bytes()); err != nil {
+		return fmt.Errorf("report: html: %w", err)
+	}
+	return nil
+}
+
+// The page's view model: everything the template shows, already formatted
+// or ready for a format function; nothing in it is computed anew.
+type page struct {
+	CSS        template.CSS
+	JS         template.JS
+	CSP        string
+	R          *Result
+	Title      string
+	Detailed   int
+	Undetailed int // pairs in the table only
+	Rows       []pairRow
+	Details    []pairDetail
+	Docs       []docRow
+	Quiet      int // documents in no reported pair
+	Noted      []Document
+	Hist       histogram
+	Net        network
+}
+
+type pairRow struct {
+	Rank     int
+	ID       string // detail section id, "" when the pair has no detail view
+	P        *Pair
+	Longest  int
+	Passages int
+}
+
+type pairDetail struct {
+	Rank     int
+	ID       string
+	P        *Pair
+	Longest  int
+	Items    []passageItem
+	More     int // passages neither marked nor listed (htmlMaxPassages)
+	A, B     side
+	Unit     string
+	Previous string // id of the previous and next detail, for keyboard paging
+	Next     string
+}
+
+type passageItem struct {
+	N       int
+	G       *Passage
+	AID     string // id of the passage's first mark in each column ("" when not shown)
+	BID     string
+	Excerpt string
+}
+
+type side struct {
+	Label    string // "A" or "B"
+	Path     string
+	Missing  string // why the text cannot be shown
+	Segments []segment
+	Short    bool // shown whole
+}
+
+// A segment is a run of shown text: plain, inside passages, or a gap.
+type segment struct {
+	Text  string
+	Marks string // passage numbers covering the run, space separated ("" for plain text)
+	Label int    // passage number starting here, 0 when none
+	ID    string // id of the passage's first mark, with Label
+	Gap   string // when set, the segment is a gap with this explanation
+}
+
+type docRow struct {
+	D        *Document
+	Partners []partner
+	More     int
+}
+
+type partner struct {
+	Path string
+	Rank int
+	ID   string
+}
+
+func buildPage(r *Result, opt HTMLOptions) *page {
+	p := &page{
+		CSS:      template.CSS(pageCSS),
+		JS:       template.JS(pageJS),
+		CSP:      cspFor(pageCSS, pageJS),
+		R:        r,
+		Detailed: opt.detailed(len(r.Pairs)),
+		Noted:    notedDocuments(r),
+	}
+	p.Undetailed = len(r.Pairs) - p.Detailed
+	p.Title = "reprise: " + plural(r.Summary.Pairs, "pair", "pairs") + " among " + plural(r.Summary.Documents, "document")
+	p.Rows = make([]pairRow, len(r.Pairs))
+	for i := range r.Pairs {
+		pr := &r.Pairs[i]
+		p.Rows[i] = pairRow{Rank: i + 1, P: pr, Longest: pr.LongestWords(), Passages: len(pr.Passages)}
+		if i < p.Detailed {
+			p.Rows[i].ID = pairID(i + 1)
+		}
+	}
+	texts := textIndex(r)
+	for i := 0; i < p.Detailed; i++ {
+		d := buildDetail(r, i, texts)
+		if i > 0 {
+			d.Previous = pairID(i)
+		}
+		if i+1 < p.Detailed {
+			d.Next = pairID(i + 2)
+		}
+		p.Details = append(p.Details, d)
+	}
+	p.Docs, p.Quiet = documentRows(r, p.Detailed)
+	p.Hist = buildHistogram(r)
+	p.Net = buildNetwork(r, p.Detailed)
+	return p
+}
+
+func pairID(rank int) string { return "pair-" + strconv.Itoa(rank) }
+
+func notedDocuments(r *Result) []Document {
+	var out []Document
+	for _, d := range r.Documents {
+		if len(d.Notes) > 0 {
+			out = append(out, d)
+		}
+	}
+	return out
+}
+
+// textIndex maps each document path to its text, or to why there is none.
+func textIndex(r *Result) map[string]SourceText {
+	m := make(map[string]SourceText, len(r.Documents))
+	for i, d := range r.Documents {
+		if i < len(r.Texts) {
+			m[d.Path] = r.Texts[i]
+		} else {
+			m[d.Path] = SourceText{Missing: "the document's text is not part of this result"}
+		}
+	}
+	return m
+}
+
+func buildDetail(r *Result, i int, texts map[string]SourceText) pairDetail {
+	pr := &r.Pairs[i]
+	rank := i + 1
+	d := pairDetail{Rank: rank, ID: pairID(rank), P: pr, Longest: pr.LongestWords(), Unit: r.Settings.Unit}
+	shown := min(len(pr.Passages), htmlMaxPassages)
+	d.More = len(pr.Passages) - shown
+	aSpans := make([]span, shown)
+	bSpans := make([]span, shown)
+	for k := 0; k < shown; k++ {
+		g := &pr.Passages[k]
+		aSpans[k] = span{g.AStart, g.AEnd}
+		bSpans[k] = span{g.BStart, g.BEnd}
+	}
+	prefix := "p" + strconv.Itoa(rank)
+	var aFirst, bFirst []string
+	d.A, aFirst = buildSide("A", pr.A, texts[pr.A], aSpans, prefix+"a")
+	d.B, bFirst = buildSide("B", pr.B, texts[pr.B], bSpans, prefix+"b")
+	for k := 0; k < shown; k++ {
+		d.Items = append(d.Items, passageItem{N: k + 1, G: &pr.Passages[k], AID: aFirst[k], BID: bFirst[k],
+			Excerpt: trim(clean(pr.Passages[k].Text), 160)})
+	}
+	return d
+}
+
+// buildSide cuts one document's text into the segments a column shows, and
+// returns for each passage the id of its first mark ("" when not shown).
+func buildSide(label, docPath string, src SourceText, spans []span, idPrefix string) (side, []string) {
+	s := side{Label: label, Path: docPath}
+	first := make([]string, len(spans))
+	text := src.Text
+	if src.Missing != "" {
+		s.Missing = src.Missing
+		return s, first
+	}
+	for _, sp := range spans {
+		if sp.start < 0 || sp.end > len(text) || sp.start > sp.end {
+			s.Missing = "the passages' offsets do not fit this text"
+			return s, first
+		}
+	}
+	windows := sideWindows(text, spans)
+	s.Short = len(windows) == 1 && windows[0] == span{0, len(text)}
+	lines := &lineIndex{}
+	pos := 0
+	for _, w := range windows {
+		if w.start > pos {
+			s.Segments = append(s.Segments, segment{Gap: gapText(text, lines, pos, w.start)})
+		}
+		s.Segments = appendMarked(s.Segments, text, w, spans, idPrefix, first)
+		pos = w.end
+	}
+	if pos < len(text) {
+		s.Segments = append(s.Segments, segment{Gap: gapText(text, lines, pos, len(text))})
+	}
+	return s, first
+}
+
+// sideWindows chooses the parts of text a column shows, in order and
+// disjoint: all of a short text; for a long one, each passage with its
+// context, long windows by head and tail, within htmlSideBudget bytes.
+func sideWindows(text string, spans []span) []span {
+	if len(text) <= htmlFullText {
+		return []span{{0, len(text)}}
+	}
+	ws := make([]span, 0, len(spans))
+	for _, sp := range spans {
+		ws = append(ws, span{runeStart(text, max(0, sp.start-htmlContext)), runeStart(text, min(len(text), sp.end+htmlContext))})
+	}
+	slices.SortFunc(ws, func(x, y span) int { return cmp.Or(cmp.Compare(x.start, y.start), cmp.Compare(x.end, y.end)) })
+	var merged []span
+	for _, w := range ws {
+		if n := len(merged); n > 0 && w.start <= merged[n-1].end {
+			merged[n-1].end = max(merged[n-1].end, w.end)
+			continue
+		}
+		merged = append(merged, w)
+	}
+	var out []span
+	budget := htmlSideBudget
+	for _, w := range merged {
+		parts := []span{w}
+		if w.end-w.start > htmlWindowMax {
+			half := htmlWindowMax / 2
+			parts = []span{{w.start, runeStart(text, w.start+half)}, {runeStart(text, w.end-half), w.end}}
+		}
+		for _, p := range parts {
+			n := p.end - p.start
+			if n > budget {
+				return out
+			}
+			budget -= n
+			out = append(out, p)
+		}
+	}
+	return out
+}
+
+// runeStart moves i back to the start of the UTF-8 sequence it falls in.
+func runeStart(text string, i int) int {
+	for i > 0 && i < len(text) && !utf8.RuneStart(text[i]) {
+		i--
+	}
+	return i
+}
+
+func gapText(text string, lines *lineIndex, from, to int) string {
+	la := lines.line(text, from)
+	lb := lines.line(text, max(from, to-1))
+	where := "line " + strconv.Itoa(la)
+	if lb > la {
+		where = "lines " + strconv.Itoa(la) + "–" + strconv.Itoa(lb)
+	}
+	return "… " + formatBytes(to-from) + " not shown (" + where + ") …"
+}
+
+// appendMarked cuts window w of text at every passage edge inside it; each
+// piece lists the passages covering it.
+func appendMarked(segs []segment, text string, w span, spans []span, idPrefix string, first []string) []segment {
+	cuts := []int{w.start, w.end}
+	for _, sp := range spans {
+		for _, c := range []int{sp.start, sp.end} {
+			if c > w.start && c < w.end {
+				cuts = append(cuts, c)
+			}
+		}
+	}
+	slices.Sort(cuts)
+	cuts = slices.Compact(cuts)
+	var nums []string
+	for c := 0; c+1 < len(cuts); c++ {
+		from, to := cuts[c], cuts[c+1]
+		nums = nums[:0]
+		label, id := 0, ""
+		for k, sp := range spans {
+			if sp.start <= from && to <= sp.end && sp.start < sp.end {
+				nums = append(nums, strconv.Itoa(k+1))
+				if first[k] == "" {
+					first[k] = idPrefix + "-" + strconv.Itoa(k+1)
+					if label == 0 {
+						label, id = k+1, first[k]
+					} else {
+						// Two passages start in the same piece: the second's
+						// jump lands on the first's mark, which covers it.
+						first[k] = id
+					}
+				}
+			}
+		}
+		segs = append(segs, segment{Text: text[from:to], Marks: strings.Join(nums, " "), Label: label, ID: id})
+	}
+	return segs
+}
+
+// documentRows lists the documents that take part in a reported pair, each
+// with its reused share and its partners in rank order; quiet counts the rest.
+func documentRows(r *Result, detailed int) ([]docRow, int) {
+	idx := make(map[string]int, len(r.Documents))
+	for i, d := range r.Documents {
+		idx[d.Path] = i
+	}
+	partners := make([][]partner, len(r.Documents))
+	for i := range r.Pairs {
+		pr := &r.Pairs[i]
+		id := ""
+		if i < detailed {
+			id = pairID(i + 1)
+		}
+		if a, ok := idx[pr.A]; ok {
+			partners[a] = append(partners[a], partner{Path: pr.B, Rank: i + 1, ID: id})
+		}
+		if b, ok := idx[pr.B]; ok {
+			partners[b] = append(partners[b], partner{Path: pr.A, Rank: i + 1, ID: id})
+		}
+	}
+	var rows []docRow
+	quiet := 0
+	for i := range r.Documents {
+		if len(partners[i]) == 0 {
+			quiet++
+			continue
+		}
+		shown := min(len(partners[i]), htmlMaxPartners)
+		rows = append(rows, docRow{D: &r.Documents[i], Partners: partners[i][:shown], More: len(partners[i]) - shown})
+	}
+	slices.SortStableFunc(rows, func(x, y docRow) int {
+		return cmp.Or(cmp.Compare(y.D.Reused, x.D.Reused), strings.Compare(x.D.Path, y.D.Path))
+	})
+	return rows, quiet
+}
+
+// formatBytes writes a byte count for a reader: 812 bytes, 4.2 KiB, 1.5 MiB.
+func formatBytes[N int | int64](n N) string {
+	switch {
+	case n < 1<<10:
+		return plural(int(n), "byte")
+	case n < 1<<20:
+		return strconv.FormatFloat(float64(n)/(1<<10), 'f', 1, 64) + " KiB"
+	}
+	return strconv.FormatFloat(float64(n)/(1<<20), 'f', 1, 64) + " MiB"
+}
+
+// baseName is the last element of a slash path, for short labels.
+func baseName(p string) string { return path.Base(p) }
+
+// Size bound constants: the most markup the template writes around each
+// element, with a margin, and the most bytes html/template's escaping turns
+// one byte of text into ("&#39;" is five bytes; six leaves room).
+const (
+	boundFixed    = 96 << 10 // head, style sheet, script, headings, summary, legend, both pictures' frames
+	boundEscape   = 6
+	boundRow      = 1 << 10 // markup of one table row
+	boundDocRow   = 1 << 10 // markup of one documents-table row
+	boundPartner  = 256     // markup of one partner link
+	boundItem     = 1 << 10 // markup of one passage in a detail's list
+	boundSegment  = 160     // markup of one marked piece or gap
+	boundDetail   = 4 << 10 // markup of one detail view around its texts and list
+	boundNode     = 512     // one network node with its title and label
+	boundEdge     = 256     // one network edge with its title
+	boundListItem = 512     // one skipped, common, note, group or cluster entry
+)
+
+// HTMLSizeBound is an upper bound on the size in bytes of the page WriteHTML
+// writes for r, from the caps in this file: fixed parts; per table row and
+// per document row, markup plus the escaped paths; per detailed pair, markup,
+// at most two sides of shown text (escaped), at most htmlMaxPassages listed
+// passages, and their marks; the network's nodes and edges; and every
+// listed note, reason and common sentence, escaped. L is the longest path.
+func HTMLSizeBound(r *Result, opt HTMLOptions) int64 {
+	longest := 0
+	for _, d := range r.Documents {
+		longest = max(longest, len(d.Path))
+	}
+	for _, s := range r.Skipped {
+		longest = max(longest, len(s.Path))
+	}
+	L := int64(boundEscape * longest)
+	n := int64(boundFixed)
+	n += int64(len(r.Pairs)) * (boundRow + 2*L + 2*whereBound(r))
+	n += int64(len(r.Documents)) * (boundDocRow + L + htmlMaxPartners*(boundPartner+L))
+	detailed := int64(opt.detailed(len(r.Pairs)))
+	sideText := int64(max(htmlFullText, htmlSideBudget))
+	perDetail := boundDetail + 2*L +
+		2*(boundEscape*sideText+(4*htmlMaxPassages+2)*boundSegment) +
+		htmlMaxPassages*(boundItem+2*whereBound(r)+boundEscape*4*160)
+	n += detailed * int64(perDetail)
+	nodes := min(int64(len(r.Documents)), maxNetworkNodes)
+	n += nodes*(boundNode+2*L) + min(int64(len(r.Pairs)), maxNetworkEdges)*(boundEdge+2*L)
+	text := 0
+	for _, s := range r.Skipped {
+		text += len(s.Reason)
+	}
+	for _, c := range r.Common {
+		text += len(c.Text) + 16
+	}
+	for _, d := range r.Documents {
+		for _, note := range d.Notes {
+			text += len(note)
+		}
+	}
+	settings := 0
+	for _, s := range slices.Concat(r.Settings.Exclude, r.Settings.Include, r.Settings.Skip) {
+		settings += len(s)
+	}
+	items := int64(len(r.Skipped) + len(r.Common) + len(r.Documents) + len(r.Groups) + len(r.Clusters) + len(r.Settings.Exclude) + len(r.Settings.Include) + len(r.Settings.Skip))
+	n += items*(boundListItem+L) + int64(boundEscape*(text+settings+len(r.Settings.MaxDocsRule)+len(r.Settings.Version)+len(r.Caution)))
+	for _, g := range r.Groups {
+		n += int64(len(g.Documents)) * (L + 16)
+	}
+	for _, c := range r.Clusters {
+		n += int64(len(c.Documents)) * (L + 16)
+	}
+	return n
+}
+
+// whereBound is the longest escaped location string of any passage.
+func whereBound(r *Result) int64 {
+	w := 0
+	for i := range r.Pairs {
+		for _, g := range r.Pairs[i].Passages {
+			w = max(w, len(g.AWhere), len(g.BWhere))
+		}
+	}
+	return int64(boundEscape * w)
+}
