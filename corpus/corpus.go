@@ -4,15 +4,16 @@ import (
 	"fmt"
 	"path"
 	"runtime"
+	"time"
 )
 
 // A Document is one readable input file, decoded to UTF-8 text.
 type Document struct {
 	ID       int    // index in the slice Read returns; documents are sorted by Path
 	Path     string // as given on the command line, joined with the relative path inside a folder
-	Format   string // "text" or "markdown"
-	Encoding string // "utf-8", "utf-8-bom", "utf-16le", "utf-16be" or "windows-1252"
-	Size     int64  // bytes on disk
+	Format   string // "text", "markdown", "docx", "odt", "epub", "html", "pdf", "rtf" or "email"
+	Encoding string // "utf-8", "utf-8-bom", "utf-16le", "utf-16be" or "windows-1252"; for other formats the source's character set
+	Size     int64  // bytes on disk (for a ZIP member: its uncompressed size)
 	// Text is the extracted text. For UTF-8 text files it is the file's bytes
 	// unchanged (BOM and CR included), so offsets into Text are offsets into
 	// the file. For Markdown, markup is replaced by spaces of the same byte
@@ -57,6 +58,36 @@ type Options struct {
 	// Jobs: files read and decoded at once (0 means runtime.NumCPU()).
 	// Negative sizes and job counts are invalid options.
 	Jobs int
+
+	// Limits for untrusted containers and markup (see limits.go). Zero
+	// means the default; negative values are invalid.
+
+	// MaxContainerBytes: uncompressed bytes read from the members of one
+	// container (ZIP, DOCX, ODT, EPUB, nested ZIPs included); 0 means
+	// DefaultMaxContainerBytes.
+	MaxContainerBytes int64
+	// MaxMemberBytes: uncompressed size of one ZIP member; 0 means
+	// DefaultMaxMemberBytes.
+	MaxMemberBytes int64
+	// MaxMembers: entries in one archive's directory; 0 means
+	// DefaultMaxMembers.
+	MaxMembers int
+	// MaxRatio: uncompressed size over compressed size of one member of
+	// more than MinRatioCheck bytes; 0 means DefaultMaxRatio.
+	MaxRatio int
+	// MaxDepth: element nesting in HTML and XML, group nesting in RTF,
+	// part nesting in e-mail; 0 means DefaultMaxDepth.
+	MaxDepth int
+	// PDFTimeout: how long pdftotext may run on one PDF; 0 means
+	// DefaultPDFTimeout.
+	PDFTimeout time.Duration
+	// SkipQuotedReplies: leave out the lines of an e-mail body that start
+	// with ">" (quoted replies), with a Note saying how many. By default
+	// they are kept and the Note says how many there are.
+	SkipQuotedReplies bool
+	// PDFToText: the pdftotext program; "" means "pdftotext" looked up on
+	// PATH. Tests set it to check the behaviour when it is missing.
+	PDFToText string
 }
 
 // DefaultMaxFileSize is the size limit used when Options.MaxFileSize is 0.
@@ -80,6 +111,9 @@ func (o Options) withDefaults() (Options, error) {
 		return o, fmt.Errorf("corpus: maximum file size %d is negative", o.MaxFileSize)
 	case o.MaxFileSize == 0:
 		o.MaxFileSize = DefaultMaxFileSize
+	}
+	if err := o.limitDefaults(); err != nil {
+		return o, err
 	}
 	switch {
 	case o.Jobs < 0:

@@ -55,19 +55,56 @@
 //
 // # Formats
 //
-// Each format is an extractor (extract.go) in its own file: text.go and
-// markdown.go today. The format of a file is chosen from its content
-// first (signatures), then from its extension (".md" and ".markdown" are
-// Markdown, ".txt" is text), and any other file whose content is text is
-// read as plain text, whatever its extension. Formats whose bytes look
-// like text but are markup for another program, and so would fill the
-// comparison with markup (PDF, PostScript, RTF, HTML, SVG, by signature
-// or extension), are listed as "unsupported format" until their extractor
-// exists; binary formats (DOCX, ODT, EPUB, ZIP, images) fail the binary
-// test and are listed as "binary file (not text)". An extractor returns a
-// struct, not a string, so that a later task can add DOCX, ODT, PDF, HTML,
-// EPUB, RTF, e-mail and ZIP extractors with per-document locations
-// (paragraph, page) through the same interface.
+// Each format is an extractor (extract.go) in its own file: text.go,
+// markdown.go, docx.go, odt.go, epub.go, html.go, pdf.go, rtf.go,
+// email.go, and zip.go for ZIP archives, the one container. The format of
+// a file is chosen from its content first, then from its extension: a
+// ZIP is told apart by its member names (word/document.xml is DOCX; a
+// "mimetype" member naming OpenDocument text or EPUB is ODT or EPUB; any
+// other ZIP is an archive), then come the signatures of PDF ("%PDF-"),
+// RTF ("{\rtf"), HTML (a doctype or <html> first) and e-mail (a header
+// block with From: and Date: or Subject:); without one, the extension
+// decides (".docx", ".md", ".eml", ...), and any other file whose content
+// is text is read as plain text. PostScript and SVG are listed as
+// "unsupported format"; other binary files as "binary file (not text)".
+// A file whose extension claims a format its content does not have is
+// skipped saying so ("not a DOCX file: no ZIP signature").
+//
+// Structured formats give text with paragraphs separated by a blank line
+// (the sentence splitter's paragraph break), white space inside a
+// paragraph collapsed, and a Mark at every paragraph with its number
+// (paragraphs.go): a reader's location ("paragraph 12", "chapter 2,
+// paragraph 5" for EPUB, "page 3" for PDF). Their offsets refer to the
+// extracted text, not to the file. Plain text, Markdown and e-mail keep
+// line numbers. Each extractor's own file says which parts of its format
+// it reads and which it leaves out (headers and footers, notes in RTF,
+// attachments of e-mail), citing the section of its standard.
+//
+// A ZIP archive given as input gives one document per supported member,
+// named "archive.zip!/inner/path.docx", sorted with the other documents;
+// a ZIP inside it is read the same way ("a.zip!/b.zip!/c.txt"), one level
+// deep only. Members are read into memory, never written to disk under
+// their names (a PDF member goes to pdftotext through a private temporary
+// file, mode 0600, removed afterwards). Hidden members (a dot name,
+// __MACOSX), a second member of the same name, encrypted members and
+// members over a limit are listed in Skipped under their member name.
+//
+// # Untrusted input
+//
+// Every file may be hostile, so every costly step has a limit (Options,
+// limits.go, each with a flag): uncompressed bytes read from one
+// container (256 MiB), bytes per member and per extracted text (64 MiB),
+// members per archive (10,000), compression ratio of a member over 1 MiB
+// (100; checked from the central directory, so a ZIP bomb is refused
+// before a byte is inflated), nesting depth of HTML and XML elements, RTF
+// groups and MIME parts (256), and pdftotext's run time (30 s) and output.
+// XML is streamed with encoding/xml, which expands no entity a document
+// declares; a document that declares some is refused by name. pdftotext
+// runs with no shell, its arguments passed directly. A malformed file is
+// skipped with a reason; it never stops the others, and the extractors
+// are fuzzed (fuzz_test.go). The rejected alternative, a full parse into
+// a tree for each format (x/net/html's parser, a DOM for XML), costs
+// memory in proportion to the nesting and gains nothing for plain text.
 //
 // # Decoding
 //

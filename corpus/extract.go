@@ -1,6 +1,7 @@
 package corpus
 
 import (
+	"archive/zip"
 	"bytes"
 	"errors"
 	"path"
@@ -9,8 +10,10 @@ import (
 
 // An extractor turns the raw bytes of one file of its format into a
 // document's text. Each format lives in its own file (text.go,
-// markdown.go) and is listed in extractors; a later task adds DOCX, ODT,
-// PDF, HTML, EPUB, RTF, e-mail and ZIP the same way.
+// markdown.go, docx.go, odt.go, epub.go, html.go, pdf.go, rtf.go,
+// email.go) and is listed in extractors; ZIP archives (zip.go) are the
+// one container, handled by extractFile because one archive gives many
+// documents.
 //
 // An extractor is stateless: it may be used by several workers at once, so
 // scratch memory it needs lives in the extraction it returns or on the
@@ -20,21 +23,30 @@ type extractor interface {
 	format() string
 	// sniff reports whether head (the first bytes of the file, up to
 	// sniffLen) carries this format's signature. Content is asked first,
-	// so a PDF named notes.txt is still a PDF.
+	// so a PDF named notes.txt is still a PDF. Formats stored in a ZIP
+	// (DOCX, ODT, EPUB) are recognised by zipKind from the member names
+	// instead, and their sniff is false.
 	sniff(head []byte) bool
 	// claims reports whether a lower-case file name extension such as
 	// ".md" belongs to this format. It is asked when no signature matched.
 	claims(ext string) bool
-	// extract returns the document text of raw. A file that gives no text
-	// returns a *refusal saying why in plain words; any other error means
-	// the file is damaged and is reported as such.
-	extract(raw []byte) (extraction, error)
+	// extract returns the document text of in.raw. A file that gives no
+	// text returns a *refusal saying why in plain words; any other error
+	// means the file is damaged and is reported as such.
+	extract(in *input) (extraction, error)
 }
 
-// An extraction is what an extractor hands back. It is a struct rather
-// than a bare string so that formats with structure can say more later:
-// the DOCX, ODT and PDF extractors will add here the locations (paragraph,
-// page) that map byte offsets of Text back to places a reader can find.
+// An input is one file (or ZIP member) to extract, with what the
+// extractors need beside its bytes.
+type input struct {
+	raw    []byte
+	osPath string   // a file on disk holding raw, "" for a ZIP member
+	opt    *Options // defaults applied
+	budget *int64   // uncompressed container bytes still allowed (see readMember)
+	depth  int      // ZIP nesting: 0 for a file on disk, 1 inside a ZIP, ...
+}
+
+// An extraction is what an extractor hands back.
 type extraction struct {
 	Text     string   // UTF-8 text; see Document.Text
 	Encoding string   // see Document.Encoding
@@ -42,13 +54,29 @@ type extraction struct {
 	Marks    []Mark   // see Document.Marks
 }
 
+// A part is one outcome of extracting a file: a document, or the reason
+// there is none. A plain file gives one part; a ZIP archive one per member.
+type part struct {
+	sub    string // appended to the file's display path: "" or "!/inner/path"
+	format string
+	size   int64
+	extraction
+	reason string
+}
+
 // sniffLen is how much of a file the signatures and the binary test look at.
 const sniffLen = 8 << 10
 
 // extractors are the formats read, in the order their signatures are
-// tried. plainText is the fallback for any other file whose content is
-// text and so claims only ".txt" here.
-var extractors = [...]extractor{markdown{}, plainText{}}
+// tried: signatures that cannot be confused first (PDF, RTF), then the
+// text-like ones (HTML, e-mail), whose tests look at the first line.
+// plainText is the fallback for any other file whose content is text and
+// so claims only ".txt" here.
+var extractors = [...]extractor{
+	pdfText{}, rtfText{}, htmlText{}, emailText{},
+	docxText{}, odtText{}, epubText{},
+	markdown{}, plainText{},
+}
 
 // A refusal is an expected reason for a file to give no document
 // ("empty file", "binary file (not text)"). It is an error so extractors
@@ -70,29 +98,36 @@ func reasonOf(err error) string {
 }
 
 // A refusedFormat is a format that is known not to be plain text even
-// though its bytes often look like text (it is markup a later task will
-// extract). Reading it as text would fill the corpus with markup, so such
-// files are skipped with reasonUnsupported. Binary formats (DOCX, ODT,
-// EPUB, ZIP, images) need no entry: the binary test already refuses them.
-// Keep this list short: every entry is a format users will ask for.
+// though its bytes often look like text. Reading it as text would fill the
+// corpus with markup, so such files are skipped with reasonUnsupported.
 type refusedFormat struct {
 	magic string   // signature at the start of the file, "" if none
 	exts  []string // lower-case extensions, with the dot
 }
 
 var refusedFormats = [...]refusedFormat{
-	{magic: "%PDF-", exts: []string{".pdf"}},
 	{magic: "%!PS", exts: []string{".ps", ".eps"}},
-	{magic: `{\rtf`, exts: []string{".rtf"}},
-	{exts: []string{".html", ".htm", ".xhtml"}},
 	{exts: []string{".svg"}},
 }
 
-// choose picks the extractor for a file named name whose first bytes are
-// head: content first (signatures of read and of refused formats), then
-// the extension, then plain text for anything else. It returns nil when
-// the format is one this package refuses.
-func choose(name string, head []byte) extractor {
+// Signatures of ZIP archives (PKWARE APPNOTE 6.3.10, 4.3.7 local file
+// header and 4.3.16 end of central directory record, for an empty archive).
+const (
+	zipLocalMagic = "PK\x03\x04"
+	zipEmptyMagic = "PK\x05\x06"
+)
+
+// choose picks the extractor for a file named name whose bytes are raw:
+// content first (ZIP member names, then signatures), then the extension,
+// then plain text for anything else. It returns nil when the format is one
+// this package refuses, and archive for a ZIP archive.
+func choose(name string, raw []byte) extractor {
+	head := raw[:min(len(raw), sniffLen)]
+	if bytes.HasPrefix(head, []byte(zipLocalMagic)) || bytes.HasPrefix(head, []byte(zipEmptyMagic)) {
+		if x := zipKind(raw); x != nil {
+			return x
+		}
+	}
 	for _, x := range extractors {
 		if x.sniff(head) {
 			return x
@@ -104,6 +139,9 @@ func choose(name string, head []byte) extractor {
 		}
 	}
 	ext := strings.ToLower(path.Ext(name))
+	if ext == ".zip" {
+		return archive{}
+	}
 	for _, x := range extractors {
 		if x.claims(ext) {
 			return x
@@ -119,21 +157,76 @@ func choose(name string, head []byte) extractor {
 	return plainText{}
 }
 
+// zipKind tells the formats stored as ZIP archives apart by their members
+// (checked in the central directory, which zip.NewReader reads): DOCX has
+// word/document.xml or [Content_Types].xml (ECMA-376 Part 2, Open
+// Packaging Conventions, 10.1.2.1); ODT and EPUB have a "mimetype" member
+// naming their media type (OpenDocument 1.2 Part 3, 3.3; EPUB 3 OCF,
+// 4.2.2), ODT also content.xml, EPUB also META-INF/container.xml. Any
+// other ZIP, and one whose directory cannot be read, is an archive.
+func zipKind(raw []byte) extractor {
+	zr, err := zip.NewReader(bytes.NewReader(raw), int64(len(raw)))
+	if err != nil && !errors.Is(err, zip.ErrInsecurePath) {
+		return archive{}
+	}
+	var docx, odt, epub bool
+	for _, f := range zr.File {
+		switch f.Name {
+		case "word/document.xml", "[Content_Types].xml":
+			docx = true
+		case "content.xml":
+			odt = true
+		case "META-INF/container.xml":
+			epub = true
+		case "mimetype":
+			if f.UncompressedSize64 < 200 {
+				if b, err := readSmall(f, 200); err == nil {
+					switch {
+					case bytes.HasPrefix(b, []byte("application/vnd.oasis.opendocument.text")):
+						odt = true
+					case bytes.Equal(bytes.TrimSpace(b), []byte("application/epub+zip")):
+						epub = true
+					}
+				}
+			}
+		}
+	}
+	switch {
+	case epub:
+		return epubText{}
+	case odt:
+		return odtText{}
+	case docx:
+		return docxText{}
+	}
+	return archive{}
+}
+
 // extractFile chooses the extractor for one file and runs it. A refused
 // format is reported as binary when its content is binary (that is the
 // more useful fact) and as unsupported otherwise.
-func extractFile(name string, raw []byte) (string, extraction, error) {
-	head := raw[:min(len(raw), sniffLen)]
-	x := choose(name, head)
+func extractFile(name string, in *input) []part {
+	raw := in.raw
+	x := choose(name, raw)
 	if x == nil {
-		if len(raw) == 0 {
-			return "", extraction{}, refuse(reasonEmpty)
+		reason := reasonUnsupported
+		switch {
+		case len(raw) == 0:
+			reason = reasonEmpty
+		case looksBinary(raw):
+			reason = reasonBinary
 		}
-		if looksBinary(raw) {
-			return "", extraction{}, refuse(reasonBinary)
-		}
-		return "", extraction{}, refuse(reasonUnsupported)
+		return []part{{reason: reason}}
 	}
-	e, err := x.extract(raw)
-	return x.format(), e, err
+	if _, ok := x.(archive); ok {
+		return extractZip(in)
+	}
+	if len(raw) == 0 {
+		return []part{{reason: reasonEmpty}}
+	}
+	e, err := x.extract(in)
+	if err != nil {
+		return []part{{reason: reasonOf(err)}}
+	}
+	return []part{{format: x.format(), size: int64(len(raw)), extraction: e}}
 }

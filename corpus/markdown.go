@@ -21,8 +21,8 @@ func (markdown) sniff(_ []byte) bool { return false }
 
 func (markdown) claims(ext string) bool { return ext == ".md" || ext == ".markdown" }
 
-func (markdown) extract(raw []byte) (extraction, error) {
-	d, err := decode(raw)
+func (markdown) extract(in *input) (extraction, error) {
+	d, err := decode(in.raw)
 	if err != nil {
 		return extraction{}, err
 	}

@@ -174,7 +174,7 @@ func TestMarkdownWordsKeepOffsets(t *testing.T) {
 
 func TestMarkdownExtractorDecodesFirst(t *testing.T) {
 	raw := []byte("# Caf\xe9\n\n*na\xefve*\n")
-	x, err := markdown{}.extract(raw)
+	x, err := markdown{}.extract(&input{raw: raw})
 	if err != nil {
 		t.Fatal(err)
 	}

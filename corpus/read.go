@@ -44,7 +44,7 @@ func Read(paths []string, opt Options) ([]Document, []Skipped, error) {
 		}
 	}
 
-	results := make([]readResult, len(todo))
+	results := make([][]part, len(todo))
 	var next atomic.Int64
 	var wg sync.WaitGroup
 	for range min(opt.Jobs, len(todo)) {
@@ -54,58 +54,57 @@ func Read(paths []string, opt Options) ([]Document, []Skipped, error) {
 				if i >= len(todo) {
 					return
 				}
-				results[i] = readEntry(todo[i], opt.MaxFileSize)
+				results[i] = readEntry(todo[i], &opt)
 			}
 		})
 	}
 	wg.Wait()
 
 	var docs []Document
-	for i, r := range results {
-		if r.reason != "" {
-			skipped = append(skipped, Skipped{Path: todo[i].display, Reason: r.reason})
-			continue
+	for i, parts := range results {
+		for _, r := range parts {
+			p := todo[i].display + r.sub
+			if r.reason != "" {
+				skipped = append(skipped, Skipped{Path: p, Reason: r.reason})
+				continue
+			}
+			docs = append(docs, Document{
+				Path:     p,
+				Format:   r.format,
+				Encoding: r.Encoding,
+				Size:     r.size,
+				Text:     r.Text,
+				Notes:    r.Notes,
+				Marks:    r.Marks,
+			})
 		}
-		docs = append(docs, Document{
-			ID:       len(docs),
-			Path:     todo[i].display,
-			Format:   r.format,
-			Encoding: r.Encoding,
-			Size:     r.size,
-			Text:     r.Text,
-			Notes:    r.Notes,
-			Marks:    r.Marks,
-		})
+	}
+	// ZIP members ("a.zip!/x") sort among the other paths, not after their
+	// archive's siblings: sort again, then number.
+	slices.SortStableFunc(docs, func(a, b Document) int { return strings.Compare(a.Path, b.Path) })
+	for i := range docs {
+		docs[i].ID = i
 	}
 	slices.SortStableFunc(skipped, func(a, b Skipped) int { return strings.Compare(a.Path, b.Path) })
 	return docs, skipped, nil
 }
 
-// readResult is the outcome of reading one entry: a document's fields or
-// the reason there is none.
-type readResult struct {
-	extraction
-	format string
-	size   int64
-	reason string
-}
-
-func readEntry(e *entry, limit int64) readResult {
+// readEntry reads one file and extracts its documents (one, or one per
+// member of a ZIP archive), or the reason there is none.
+func readEntry(e *entry, opt *Options) []part {
+	limit := opt.MaxFileSize
 	if e.size > limit { // stat says so: the file is not opened
-		return readResult{reason: tooLarge(limit)}
+		return []part{{reason: tooLarge(limit)}}
 	}
 	raw, err := readFile(e.osPath, e.size, limit)
 	if err != nil {
-		return readResult{reason: osReason(err)}
+		return []part{{reason: osReason(err)}}
 	}
 	if int64(len(raw)) > limit { // it grew since the walk
-		return readResult{reason: tooLarge(limit)}
+		return []part{{reason: tooLarge(limit)}}
 	}
-	format, x, err := extractFile(path.Base(e.display), raw)
-	if err != nil {
-		return readResult{reason: reasonOf(err)}
-	}
-	return readResult{extraction: x, format: format, size: int64(len(raw))}
+	budget := opt.MaxContainerBytes
+	return extractFile(path.Base(e.display), &input{raw: raw, osPath: e.osPath, opt: opt, budget: &budget})
 }
 
 // readFile reads at most limit+1 bytes of the file (one more than allowed,

@@ -9,8 +9,8 @@ func (plainText) format() string         { return "text" }
 func (plainText) sniff(_ []byte) bool    { return false } // text has no signature
 func (plainText) claims(ext string) bool { return ext == ".txt" }
 
-func (plainText) extract(raw []byte) (extraction, error) {
-	d, err := decode(raw)
+func (plainText) extract(in *input) (extraction, error) {
+	d, err := decode(in.raw)
 	if err != nil {
 		return extraction{}, err
 	}

@@ -1,0 +1,234 @@
+package corpus
+
+import (
+	"bytes"
+	"encoding/base64"
+	"fmt"
+	"io"
+	"mime"
+	"mime/multipart"
+	"mime/quotedprintable"
+	"net/mail"
+	"strings"
+
+	"golang.org/x/text/encoding/htmlindex"
+)
+
+// emailText reads e-mail messages saved as .eml (RFC 5322, with MIME:
+// RFC 2045 to 2047). The header is read by net/mail; the subject's
+// encoded words (RFC 2047, 2) are decoded by mime.WordDecoder with the
+// character sets of x/text. The body is walked as a tree of MIME parts
+// (multipart/*, RFC 2046 5.1, read with mime/multipart, which undoes
+// quoted-printable; base64 and quoted-printable of a single-part body,
+// RFC 2045 6.7 and 6.8, are undone here). The first text/plain part that
+// is not an attachment is the body; without one, the first text/html part,
+// read by the HTML extractor. Attachments and other parts are not read and
+// are counted in a Note.
+//
+// Text is the subject, a blank line, then the body, with line ends
+// normalised to "\n"; locations are line numbers in that text. Quoted
+// replies (lines starting with ">", after optional spaces) are kept and
+// counted in a Note; with Options.SkipQuotedReplies they are left out and
+// the Note says how many lines were. Quoting inside an HTML body
+// (<blockquote>) is not recognised.
+type emailText struct{}
+
+func (emailText) format() string         { return "email" }
+func (emailText) claims(ext string) bool { return ext == ".eml" }
+
+// emailStarts are header fields a saved message commonly starts with.
+var emailStarts = []string{"received:", "return-path:", "from:", "date:", "message-id:", "mime-version:", "delivered-to:", "subject:", "to:", "x-"}
+
+// sniff: the first line is a header field a message starts with, and the
+// header block (up to the first blank line) has both From: and Date: or
+// Subject: (RFC 5322, 3.6: From and Date are required).
+func (emailText) sniff(head []byte) bool {
+	l := bytes.ToLower(head)
+	ok := false
+	for _, s := range emailStarts {
+		if bytes.HasPrefix(l, []byte(s)) {
+			ok = true
+			break
+		}
+	}
+	if !ok {
+		return false
+	}
+	end := bytes.Index(l, []byte("\n\n"))
+	if e := bytes.Index(l, []byte("\r\n\r\n")); e >= 0 && (end < 0 || e < end) {
+		end = e
+	}
+	if end < 0 {
+		end = len(l)
+	}
+	h := append([]byte("\n"), l[:end]...)
+	return bytes.Contains(h, []byte("\nfrom:")) && (bytes.Contains(h, []byte("\ndate:")) || bytes.Contains(h, []byte("\nsubject:")))
+}
+
+// emailBody is what the walk over the parts found.
+type emailBody struct {
+	plain, html     []byte // decoded to UTF-8 (plain) / raw with its charset (html)
+	plainCS, htmlCT string
+	hasPlain        bool
+	hasHTML         bool
+	others          int // attachments and parts of other types, not read
+	parts           int
+}
+
+func charsetReader(cs string, r io.Reader) (io.Reader, error) {
+	e, err := htmlindex.Get(cs)
+	if err != nil {
+		return nil, fmt.Errorf("unknown character set %q", cs)
+	}
+	return e.NewDecoder().Reader(r), nil
+}
+
+func (emailText) extract(in *input) (extraction, error) {
+	msg, err := mail.ReadMessage(bytes.NewReader(in.raw))
+	if err != nil {
+		return extraction{}, refuse("malformed e-mail: " + err.Error())
+	}
+	dec := mime.WordDecoder{CharsetReader: charsetReader}
+	subject := msg.Header.Get("Subject")
+	if s, err := dec.DecodeHeader(subject); err == nil {
+		subject = s
+	}
+	var b emailBody
+	if err := b.walk(in, msg.Header.Get("Content-Type"), msg.Header.Get("Content-Transfer-Encoding"), "", msg.Body, 0); err != nil {
+		return extraction{}, err
+	}
+	var notes []string
+	var body, encName string
+	switch {
+	case b.hasPlain:
+		body, encName = strings.ReplaceAll(string(b.plain), "\r\n", "\n"), b.plainCS
+	case b.hasHTML:
+		w := &paraWriter{limit: int(in.opt.MaxMemberBytes)}
+		cs, err := htmlInto(w, b.html, b.htmlCT, in.opt.MaxDepth)
+		if err != nil {
+			return extraction{}, err
+		}
+		body, encName = w.b.String(), cs
+		notes = append(notes, "body read from the HTML part (no plain-text part)")
+	}
+	if b.others > 0 {
+		notes = append(notes, fmt.Sprintf("%d attachments or other parts not read", b.others))
+	}
+	body, quoted := quotedLines(body, in.opt.SkipQuotedReplies)
+	switch {
+	case quoted > 0 && in.opt.SkipQuotedReplies:
+		notes = append(notes, fmt.Sprintf("%d quoted reply lines (starting with >) left out (--skip-quoted-replies)", quoted))
+	case quoted > 0:
+		notes = append(notes, fmt.Sprintf("%d quoted reply lines (starting with >) kept; --skip-quoted-replies leaves them out", quoted))
+	}
+	text := strings.TrimSpace(subject)
+	if strings.TrimSpace(body) != "" {
+		text += "\n\n" + strings.TrimLeft(body, "\n")
+	}
+	text = strings.ToValidUTF8(text, "\uFFFD")
+	if strings.TrimSpace(text) == "" {
+		return extraction{}, refuse("e-mail with no subject and no text body")
+	}
+	if encName == "" {
+		encName = "us-ascii"
+	}
+	return extraction{Text: text, Encoding: encName, Notes: notes}, nil
+}
+
+// walk visits one MIME entity and, for a multipart, its parts.
+func (b *emailBody) walk(in *input, ct, cte, disp string, r io.Reader, depth int) error {
+	b.parts++
+	if depth > in.opt.MaxDepth {
+		return refuse(fmt.Sprintf("e-mail nests MIME parts more than %d deep (--max-depth)", in.opt.MaxDepth))
+	}
+	if b.parts > in.opt.MaxMembers {
+		return refuse(fmt.Sprintf("e-mail has more than %d MIME parts (--max-members)", in.opt.MaxMembers))
+	}
+	media, params := "text/plain", map[string]string{}
+	if ct != "" {
+		m, p, err := mime.ParseMediaType(ct)
+		if err != nil {
+			b.others++ // RFC 2045 5.2 makes such a part text/plain; we do not guess
+			return nil
+		}
+		media, params = m, p
+	}
+	if strings.HasPrefix(media, "multipart/") {
+		mr := multipart.NewReader(r, params["boundary"])
+		for {
+			p, err := mr.NextPart()
+			if err == io.EOF {
+				return nil
+			}
+			if err != nil {
+				return refuse("malformed MIME multipart body: " + err.Error())
+			}
+			err = b.walk(in, p.Header.Get("Content-Type"), p.Header.Get("Content-Transfer-Encoding"), p.Header.Get("Content-Disposition"), p, depth+1)
+			if err != nil {
+				return err
+			}
+		}
+	}
+	attachment := strings.HasPrefix(strings.ToLower(strings.TrimSpace(disp)), "attachment")
+	want := !attachment && ((media == "text/plain" && !b.hasPlain) || (media == "text/html" && !b.hasHTML))
+	if !want {
+		if media != "text/plain" && media != "text/html" || attachment {
+			b.others++
+		}
+		return nil
+	}
+	switch strings.ToLower(strings.TrimSpace(cte)) {
+	case "base64":
+		r = base64.NewDecoder(base64.StdEncoding, r) // it skips the CR LF of wrapped lines
+	case "quoted-printable":
+		r = quotedprintable.NewReader(r)
+	}
+	data, err := io.ReadAll(io.LimitReader(r, in.opt.MaxMemberBytes+1))
+	if err != nil {
+		return refuse("damaged e-mail body: " + err.Error())
+	}
+	if int64(len(data)) > in.opt.MaxMemberBytes {
+		return refuse(fmt.Sprintf("e-mail part larger than the %s limit (--max-member-size)", formatSize(in.opt.MaxMemberBytes)))
+	}
+	cs := strings.ToLower(params["charset"])
+	if media == "text/html" {
+		b.html, b.htmlCT, b.hasHTML = data, ct, true
+		return nil
+	}
+	if cs == "" {
+		cs = "us-ascii"
+	}
+	if cs != "us-ascii" && cs != "utf-8" {
+		e, err := htmlindex.Get(cs)
+		if err != nil {
+			return refuse(fmt.Sprintf("e-mail body in an unknown character set %q", cs))
+		}
+		if data, err = e.NewDecoder().Bytes(data); err != nil {
+			return refuse(fmt.Sprintf("e-mail body is not valid %s", cs))
+		}
+	}
+	b.plain, b.plainCS, b.hasPlain = data, cs, true
+	return nil
+}
+
+// quotedLines counts the lines of body that start, after spaces, with ">"
+// and, when drop is set, removes them.
+func quotedLines(body string, drop bool) (string, int) {
+	n := 0
+	var out strings.Builder
+	for line := range strings.SplitAfterSeq(body, "\n") {
+		if strings.HasPrefix(strings.TrimLeft(line, " \t"), ">") {
+			n++
+			if drop {
+				continue
+			}
+		}
+		if drop {
+			out.WriteString(line)
+		}
+	}
+	if !drop {
+		return body, n
+	}
+	return out.String(), n
+}
