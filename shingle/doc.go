@@ -1,8 +1,11 @@
 // Package shingle turns text into units: the pieces of a document that are
-// fingerprinted and compared across documents. The unit built here is the
-// sentence; a later edit-tolerant unit (a run of k words, optionally
-// thinned by winnowing) belongs in this package too, beside it, sharing the
-// word rule and the normalization.
+// fingerprinted and compared across documents. Two units are built here,
+// sharing the word rule and the normalization: the sentence (Sentences,
+// below) and the edit-tolerant word shingle, every run of K words, optionally
+// thinned by winnowing (Words, in kwords.go and winnow.go, whose comments
+// explain their design and cost). Options.Unit chooses which one Units
+// makes. Options.SkipQuoted and Options.SkipReferences leave quotations and
+// a trailing references section out of both (quoted.go).
 //
 // # The problem
 //

@@ -227,9 +227,10 @@ func TestOptionsDefaults(t *testing.T) {
 		in   Options
 		want Options
 	}{
-		{"zero options take the defaults", Options{}, Options{MinWords: 5, MaxUnitBytes: 2000}},
-		{"negative values take the defaults", Options{MinWords: -1, MaxUnitBytes: -7}, Options{MinWords: 5, MaxUnitBytes: 2000}},
-		{"set values are kept", Options{MinWords: 2, MaxUnitBytes: 100}, Options{MinWords: 2, MaxUnitBytes: 100}},
+		{"zero options take the defaults", Options{}, Options{MinWords: 5, MaxUnitBytes: 2000, ShingleWords: 5}},
+		{"negative values take the defaults", Options{MinWords: -1, MaxUnitBytes: -7, ShingleWords: -2, Winnow: -3}, Options{MinWords: 5, MaxUnitBytes: 2000, ShingleWords: 5}},
+		{"set values are kept", Options{MinWords: 2, MaxUnitBytes: 100, ShingleWords: 7, Winnow: 4}, Options{MinWords: 2, MaxUnitBytes: 100, ShingleWords: 7, Winnow: 4}},
+		{"a window of one is no winnowing", Options{Winnow: 1}, Options{MinWords: 5, MaxUnitBytes: 2000, ShingleWords: 5}},
 	} {
 		if got := New(tc.in).Options(); got != tc.want {
 			t.Errorf("%s: Options() = %+v, want %+v", tc.name, got, tc.want)

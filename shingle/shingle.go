@@ -11,18 +11,34 @@ import (
 // Options control how text becomes units. The zero value is usable: every
 // zero field takes the default documented on it (see withDefaults).
 type Options struct {
+	// Unit chooses what Units makes: sentences (the zero value) or word
+	// shingles.
+	Unit UnitKind
 	// MinWords: a sentence with fewer words is not a unit (0 means 5).
 	MinWords int
 	// MaxUnitBytes: a sentence longer than this many bytes of original text
 	// is cut at the last word boundary before the limit, and the rest
 	// continues as a new sentence (0 means 2000).
 	MaxUnitBytes int
+	// ShingleWords is K for Words: every run of K consecutive words is a
+	// unit (0 means 5). Sentences ignores it.
+	ShingleWords int
+	// Winnow is W for Words: keep only the winnowed fingerprints of each
+	// window of W consecutive shingles (0 or 1 keeps every shingle).
+	// Sentences ignores it.
+	Winnow int
+	// SkipQuoted: text inside quotation marks gives no unit (see quoted.go).
+	SkipQuoted bool
+	// SkipReferences: a trailing references or bibliography section,
+	// recognised by its heading line, gives no unit (see quoted.go).
+	SkipReferences bool
 }
 
 // Defaults for the zero fields of Options.
 const (
 	DefaultMinWords     = 5
 	DefaultMaxUnitBytes = 2000
+	DefaultShingleWords = 5
 )
 
 // withDefaults is the one place defaults are applied. Negative values are
@@ -34,16 +50,24 @@ func (o Options) withDefaults() Options {
 	if o.MaxUnitBytes <= 0 {
 		o.MaxUnitBytes = DefaultMaxUnitBytes
 	}
+	if o.ShingleWords <= 0 {
+		o.ShingleWords = DefaultShingleWords
+	}
+	if o.Winnow <= 1 {
+		o.Winnow = 0
+	}
 	return o
 }
 
-// A Unit is one counted sentence: the fingerprint of its normalized form and
-// the byte span [Start, End) of the original text it came from.
+// A Unit is one counted sentence or word shingle: the fingerprint of its
+// normalized form and the byte span [Start, End) of the original text it came
+// from. Pos fits in what was padding, so a Unit is still 24 bytes.
 type Unit struct {
-	Hash  uint64 // xxhash64 of the normalized sentence
+	Hash  uint64 // xxhash64 of the normalized sentence or shingle
 	Start uint32 // byte offset of the first byte, inclusive
 	End   uint32 // byte offset after the last byte, exclusive
-	Words uint32 // words in the sentence (UAX #29 word boundaries)
+	Words uint32 // words in the unit (UAX #29 word boundaries); K for a shingle
+	Pos   uint32 // words of the text before the unit's first word
 }
 
 // Stats describe one text's segmentation.
@@ -53,6 +77,11 @@ type Stats struct {
 	Short      int  // sentences with fewer than MinWords words (not units)
 	LineBreaks bool // the text had no sentence punctuation: split at line breaks instead
 	Cut        int  // sentences longer than MaxUnitBytes, cut into pieces
+
+	QuotedWords     int  // words inside quotation marks, left out (SkipQuoted)
+	References      bool // a trailing references section was found and left out (SkipReferences)
+	ReferencesStart int  // byte offset of its heading line
+	ReferencesWords int  // words in it
 }
 
 // MaxTextBytes is the longest text Sentences looks at, because offsets are
@@ -67,6 +96,15 @@ type Splitter struct {
 	wrap []byte // the text with single line breaks rewritten as spaces
 	norm normalizer
 	out  []byte // the normalized sentence
+
+	// Scratch of Words and of the skip rules.
+	words []wordSpan // word spans of the text
+	wnorm []byte     // every word's normalized form, each followed by a space
+	woff  []uint32   // offset of word i's normalized form in wnorm
+	deque []int32    // winnowing window
+	wout  []Unit     // shingles before winnowing
+	skips []span     // quoted and references spans
+	mask  []byte     // the text with skipped spans blanked
 }
 
 // New returns a Splitter with opt's zero fields set to their defaults.
@@ -91,6 +129,8 @@ func (s *Splitter) Sentences(text string, dst []Unit) ([]Unit, Stats) {
 	if len(text) > MaxTextBytes {
 		text = text[:runeStartAtOrBefore(text, MaxTextBytes, 0)]
 	}
+	orig := text
+	text, masked := s.applySkips(text, &st)
 	var seg []byte
 	lineMode := !hasTerminator(text)
 	if lineMode {
@@ -132,6 +172,9 @@ func (s *Splitter) Sentences(text string, dst []Unit) ([]Unit, Stats) {
 		dst = s.emit(dst, &st, text, start, end)
 	}
 	st.LineBreaks = lineMode && lines > 1
+	if masked {
+		st.Words = countWords(orig, true) // skipped words still count as the document's words
+	}
 	return dst, st
 }
 
@@ -147,6 +190,7 @@ func nextSentence(b []byte, state int) (int, int) {
 func (s *Splitter) emit(dst []Unit, st *Stats, text string, start, end int) []Unit {
 	sentence := text[start:end]
 	words := countWords(sentence, true)
+	pos := st.Words
 	st.Sentences++
 	st.Words += words
 	if words < s.opt.MinWords {
@@ -159,6 +203,7 @@ func (s *Splitter) emit(dst []Unit, st *Stats, text string, start, end int) []Un
 		Start: uint32(start),
 		End:   uint32(end),
 		Words: uint32(words),
+		Pos:   uint32(pos),
 	})
 }
 

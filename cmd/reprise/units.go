@@ -1,0 +1,125 @@
+package main
+
+import (
+	"fmt"
+	"strings"
+
+	"github.com/spf13/pflag"
+
+	"reprise/report"
+	"reprise/shingle"
+)
+
+// Defaults of the word-shingle unit, chosen from the benchmark in
+// EVALUATION.md (go run ./scripts/evaluate).
+const (
+	defaultShingleWords = 5  // K
+	defaultWinnow       = 0  // W: no winnowing
+	defaultGap          = 50 // G, in words
+	defaultMinPassage   = 24 // words a word-unit passage needs to be shown
+	wordsMinShared      = 12 // --min-shared for --unit words
+	sentenceMinShared   = 2  // --min-shared for --unit sentence
+	sentenceMinWords    = 5  // --min-words for --unit sentence
+)
+
+// unitFlags are the flags that choose the unit and what is left out.
+type unitFlags struct {
+	fs             *pflag.FlagSet
+	unit           string
+	words          int
+	winnow         int
+	gap            int
+	minPassage     int
+	skipQuoted     bool
+	skipReferences bool
+}
+
+func (u *unitFlags) register(fs *pflag.FlagSet) {
+	u.fs = fs
+	fs.StringVar(&u.unit, "unit", "sentence", "what is compared: sentence (whole sentences, exact after normalization) or\nwords (every run of --words consecutive words; catches edited copies)")
+	fs.IntVar(&u.words, "words", defaultShingleWords, "--unit words: `K`, the words in one shingle")
+	fs.IntVar(&u.winnow, "winnow", defaultWinnow, "--unit words: keep only the minimum fingerprint of each window of `W` shingles\n(about 2/(W+1) of them; any shared run of W+K-1 words is still found; 0 keeps all)")
+	fs.IntVar(&u.gap, "gap", defaultGap, "--unit words: matches merge into one passage across gaps of up to `G` words in both documents")
+	fs.IntVar(&u.minPassage, "min-passage", defaultMinPassage, "--unit words: a passage of fewer than `N` words is not shown (unless it is the pair's largest)")
+	fs.BoolVar(&u.skipQuoted, "skip-quoted", false, "text inside quotation marks (\"…\", “…”, „…“, «…», ‚…‘, and '…' where unambiguous) gives no unit")
+	fs.BoolVar(&u.skipReferences, "skip-references", false, "a trailing references / bibliography / works cited section, found by its heading, gives no unit")
+}
+
+// resolve checks the unit flags and fills --min-shared and --min-words
+// when they were not given: their defaults depend on --unit.
+func (u *unitFlags) resolve(f *scanFlags) error {
+	switch u.unit {
+	case "sentence", "words":
+	default:
+		return fmt.Errorf("--unit %q: want sentence or words", u.unit)
+	}
+	words := u.unit == "words"
+	for _, name := range []string{"words", "winnow", "gap", "min-passage"} {
+		if !words && u.fs.Changed(name) {
+			return fmt.Errorf("--%s applies to --unit words only", name)
+		}
+	}
+	if words && u.fs.Changed("min-words") {
+		return fmt.Errorf("--min-words applies to --unit sentence only (with --unit words every unit has --words words)")
+	}
+	if u.words < 1 || u.words > 64 {
+		return fmt.Errorf("--words must be between 1 and 64, not %d", u.words)
+	}
+	if u.winnow < 0 || u.winnow > 1000 {
+		return fmt.Errorf("--winnow must be between 0 and 1000, not %d", u.winnow)
+	}
+	if u.gap < 0 {
+		return fmt.Errorf("--gap must be 0 or more, not %d", u.gap)
+	}
+	if u.minPassage < 0 {
+		return fmt.Errorf("--min-passage must be 0 or more, not %d", u.minPassage)
+	}
+	if !u.fs.Changed("min-shared") {
+		f.minShared = sentenceMinShared
+		if words {
+			f.minShared = wordsMinShared
+		}
+	}
+	if !u.fs.Changed("min-words") {
+		f.minWords = sentenceMinWords
+	}
+	return nil
+}
+
+// apply puts the unit choice into the scan configuration.
+func (u *unitFlags) apply(cfg *scanConfig) {
+	cfg.Shingle.SkipQuoted = u.skipQuoted
+	cfg.Shingle.SkipReferences = u.skipReferences
+	if u.unit != "words" {
+		return
+	}
+	cfg.Shingle.Unit = shingle.UnitWords
+	cfg.Shingle.ShingleWords = u.words
+	cfg.Shingle.Winnow = u.winnow
+	cfg.Chaining = &report.Chaining{Gap: u.gap, MinWords: u.minPassage}
+}
+
+// unitSettings records the unit's effective settings in the report.
+func unitSettings(s *report.Settings, opt shingle.Options, ch *report.Chaining) {
+	s.Unit = opt.Unit.String()
+	s.SkipQuoted = opt.SkipQuoted
+	s.SkipReferences = opt.SkipReferences
+	if opt.Unit == shingle.UnitWords {
+		s.MinWords = opt.ShingleWords // every shingle has K words
+		s.Shingles = &report.ShingleSettings{Words: opt.ShingleWords, Winnow: opt.Winnow, Gap: ch.Gap, MinPassage: ch.MinWords}
+	}
+}
+
+// skipNotes says, for one document, what --skip-quoted and
+// --skip-references left out.
+func skipNotes(st shingle.Stats, text string) []string {
+	var notes []string
+	if st.QuotedWords > 0 {
+		notes = append(notes, fmt.Sprintf("%d words inside quotation marks not compared (--skip-quoted)", st.QuotedWords))
+	}
+	if st.References {
+		line := strings.Count(text[:st.ReferencesStart], "\n") + 1
+		notes = append(notes, fmt.Sprintf("references section from line %d (%d words) not compared (--skip-references)", line, st.ReferencesWords))
+	}
+	return notes
+}
