@@ -74,6 +74,28 @@ func BenchmarkCount(b *testing.B) {
 	}
 }
 
+// BenchmarkCountBudget runs the same corpus through the spilling path
+// (sorted runs on disk, a k-way merge, pruning and counting passes over
+// the basket file) at two budgets, and in memory with two workers.
+func BenchmarkCountBudget(b *testing.B) {
+	in := benchCorpus(20000, 60)
+	for _, c := range []struct {
+		name   string
+		budget int64
+		jobs   int
+	}{{"8MiB", 8 << 20, 1}, {"2MiB", 2 << 20, 1}, {"memory-2jobs", 0, 2}} {
+		b.Run(c.name, func(b *testing.B) {
+			dir := b.TempDir()
+			b.ReportAllocs()
+			for b.Loop() {
+				if _, err := Count(in, Options{MemoryBudget: c.budget, Jobs: c.jobs, TempDir: dir}); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}
+
 // BenchmarkSortEntries compares the radix sort used in step 1 with
 // slices.SortFunc on the same 1.2 million entries.
 func BenchmarkSortEntries(b *testing.B) {

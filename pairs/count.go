@@ -4,7 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"slices"
+	"os"
 )
 
 // Errors wrapped by Count for invalid input; test with errors.Is.
@@ -43,6 +43,9 @@ type config struct {
 	maxCand   int
 	counter   CounterKind
 	documents int
+	budget    int64  // Options.MemoryBudget; 0: no bound
+	tempDir   string // where spilled runs go
+	jobs      int
 }
 
 func resolve(in Input, opt Options) (config, error) {
@@ -52,6 +55,15 @@ func resolve(in Input, opt Options) (config, error) {
 		maxCand:   opt.MaxGroupCandidates,
 		counter:   opt.Counter,
 		documents: len(in.Docs),
+		budget:    opt.MemoryBudget,
+		tempDir:   opt.TempDir,
+		jobs:      max(opt.Jobs, 1),
+	}
+	if c.budget < 0 {
+		return c, fmt.Errorf("pairs: MemoryBudget %d < 0: %w", opt.MemoryBudget, ErrOption)
+	}
+	if c.tempDir == "" {
+		c.tempDir = os.TempDir()
 	}
 	if c.s == 0 {
 		c.s = defaultMinShared
@@ -113,6 +125,16 @@ func Count(in Input, opt Options) (*Result, error) {
 		return nil, err
 	}
 	res := &Result{MaxDocs: cfg.maxDocs, MinShared: cfg.s}
+	var entries int64
+	for _, fps := range in.Docs {
+		entries += int64(len(fps))
+	}
+	if cfg.budget > 0 && inMemoryBytes(entries, cfg.documents) > cfg.budget {
+		if err := countSpilled(in, cfg, res); err != nil {
+			return nil, err
+		}
+		return res, nil
+	}
 
 	// Step 1: baskets.
 	ents := gather(in.Docs)
@@ -129,25 +151,65 @@ func Count(in Input, opt Options) (*Result, error) {
 	// Step 3: count pairs.
 	incr := bk.increments()
 	res.Stats.Increments = incr
-	kind := cfg.counter
-	if kind == CounterAuto {
-		kind = ChooseCounter(m, min(incr, possiblePairs(m)))
-		if kind == CounterTriangular && possiblePairs(m) > maxTriangularCells {
-			kind = CounterSparse
-		}
-	}
+	kind := chooseKind(cfg.counter, m, incr)
 	res.Counter = kind
 	var found []countedPair
-	switch kind {
-	case CounterTriangular:
-		found, err = countTriangular(&bk, m, uint32(cfg.s))
-		if err != nil {
-			return nil, err
+	var err2 error
+	if cfg.jobs == 1 && (cfg.budget == 0 || countBytes(kind, m, incr) <= cfg.budget-inMemoryBytes(entries, cfg.documents)) {
+		// One pass, one counter: the whole pair space at once.
+		switch kind {
+		case CounterTriangular:
+			found, err2 = countTriangular(&bk, m, uint32(cfg.s))
+		default:
+			found = countSparse(&bk, incr, uint32(cfg.s))
 		}
-	default:
-		found = countSparse(&bk, incr, uint32(cfg.s))
+		res.Spill.Ranges = 1
+	} else {
+		if kind == CounterTriangular && possiblePairs(m) > maxTriangularCells {
+			return nil, fmt.Errorf("pairs: triangular counter for %d documents needs %d cells, more than %d: %w", m, possiblePairs(m), maxTriangularCells, ErrOption)
+		}
+		src := memoryRows{&bk}
+		var weights []int64
+		weights, _, err2 = startWeights(src, m)
+		if err2 == nil {
+			var budget int64
+			if cfg.budget > 0 {
+				budget = max(cfg.budget-inMemoryBytes(entries, cfg.documents), 1)
+			}
+			found, res.Spill.Ranges, err2 = countRanges(src, m, weights, countPlan{kind: kind, s: uint32(cfg.s), jobs: cfg.jobs, budget: budget})
+		}
 	}
+	if err2 != nil {
+		return nil, err2
+	}
+	finish(res, &bk, m, orig, found, cfg)
+	return res, nil
+}
 
+// chooseKind resolves CounterAuto by the one-third rule, falling back to
+// the sparse table past the triangular array's cap.
+func chooseKind(forced CounterKind, m int, incr int64) CounterKind {
+	if forced != CounterAuto {
+		return forced
+	}
+	kind := ChooseCounter(m, min(incr, possiblePairs(m)))
+	if kind == CounterTriangular && possiblePairs(m) > maxTriangularCells {
+		kind = CounterSparse
+	}
+	return kind
+}
+
+// countBytes bounds what one counter over the whole pair space holds.
+func countBytes(kind CounterKind, m int, incr int64) int64 {
+	if kind == CounterTriangular {
+		return 4 * possiblePairs(m)
+	}
+	return sparseBytesPerIncrement * incr
+}
+
+// finish runs steps 4 to 6 on the counted pairs: original IDs, groups and
+// clusters.
+func finish(res *Result, bk *baskets, m int, orig []uint32, found []countedPair, cfg config) {
 	// Step 4: frequent pairs, in original IDs (compaction keeps order).
 	if len(found) > 0 {
 		res.Pairs = make([]Pair, len(found))
@@ -157,14 +219,13 @@ func Count(in Input, opt Options) (*Result, error) {
 	}
 
 	// Step 5: groups.
-	g := growGroups(&bk, m, found, cfg.s, cfg.maxCand)
+	g := growGroups(bk, m, found, cfg.s, cfg.maxCand)
 	res.GroupsTruncated = g.truncated
 	res.Stats.GroupCandidates = g.examined
 	res.Groups = g.groups(orig)
 
 	// Step 6: clusters.
 	res.Clusters = clusters(found, m, orig)
-	return res, nil
 }
 
 // entry is one (fingerprint, document) occurrence; sorting entries by
@@ -236,21 +297,7 @@ func formBaskets(ents []entry, excluded []uint64, maxDocs int) (b baskets, commo
 		}
 		i = j
 	}
-	slices.SortFunc(common, func(x, y CommonUnit) int {
-		if x.Docs != y.Docs {
-			if x.Docs > y.Docs {
-				return -1
-			}
-			return 1
-		}
-		if x.Hash < y.Hash {
-			return -1
-		}
-		if x.Hash > y.Hash {
-			return 1
-		}
-		return 0
-	})
+	sortCommon(common)
 	return b, common, hits
 }
 

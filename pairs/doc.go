@@ -109,17 +109,36 @@
 // growth stops, the groups found so far are returned (each a true frequent
 // set, maximal among those found) and Result.GroupsTruncated is set.
 //
-// # Scale
+// # Scale: a memory budget, partitions and several workers
 //
-// Everything here is held in memory. The later scale work will bound it:
-// partition the entries by fingerprint range, so that each partition's
-// baskets are formed and counted separately (step 1 is a shuffle by
-// fingerprint); when the pair counts do not fit, emit packed pair keys per
-// partition, spill them as sorted runs to temporary files and merge the
-// runs to sum the counts (a shuffle by pair key, then a reduce). Pruning
-// needs only per-document basket counts, which are small. Each step above
-// already takes and returns explicit values (entries, baskets in
-// compressed rows, counted pairs, levels of sets) rather than sharing
-// state, so each can be replaced by its partitioned or spilling version
-// without redesign.
+// With Options.MemoryBudget unset everything above is held in memory
+// (about 36 bytes per entry while baskets form, plus the counter). With a
+// budget, Count first estimates that; when it does not fit, the spilling
+// path (spill.go) runs the same steps out of core: the entries are cut
+// into sorted runs that fit the budget and written to Options.TempDir, the
+// runs are k-way merged (the shuffle by fingerprint) straight into a
+// basket file of varint-delta rows, and pruning streams that file once per
+// pass. Per document only a few small arrays stay in memory (about 24
+// bytes: basket counts, compact IDs, counting weights).
+//
+// Counting, in both paths, is partitioned by pair key (partition.go): the
+// pairs are cut into ranges of their first document, each range counted in
+// one pass over the baskets by one of Options.Jobs workers, with ranges
+// sized so that all workers' counters fit the budget together. A range's
+// keys are exactly the pairs whose smaller ID lies in it, so ranges share
+// no cell and their sorted outputs concatenate into the one full count's
+// output: the Result is byte-identical at every budget and for every
+// number of workers (the property test checks tiny budgets and several
+// workers against the brute-force oracle). Only Result.Spill, which says
+// how the work was split, differs.
+//
+// The alternative of spilling every pair increment as a packed key and
+// merging sorted runs of keys was rejected: a pair's first document bounds
+// its range, so range passes need no disk for the counts at all, and a
+// range can always be made small enough (one document's pairs, at most
+// m-1 of them), while an increment stream costs 8 bytes per increment on
+// disk and a merge. What stays in memory whatever the budget: the Input
+// itself (8 bytes per entry, held by the caller), the frequent pairs, the
+// common units, and for groups the baskets restricted to documents in
+// frequent pairs with three or more of them.
 package pairs

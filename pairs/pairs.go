@@ -18,6 +18,18 @@ type Options struct {
 	// Counter forces a counting structure (for tests and benchmarks); the
 	// zero value chooses one from the estimated pair density.
 	Counter CounterKind
+	// MemoryBudget bounds, in bytes, what the engine holds beyond its
+	// Input (0 means no bound: everything in memory). When the entries do
+	// not fit, they are spilled as sorted runs to TempDir and merged back,
+	// and pairs are counted in ranges of pair keys that fit (see spill.go
+	// and partition.go). The Result is the same at every budget.
+	MemoryBudget int64
+	// TempDir is the folder for spilled runs ("" means os.TempDir()); the
+	// engine makes a private folder in it and removes it before returning.
+	TempDir string
+	// Jobs is the number of goroutines counting pair ranges at once (0
+	// means 1). The Result is the same for every value.
+	Jobs int
 }
 
 // CounterKind names a pair-counting structure.
@@ -95,4 +107,14 @@ type Result struct {
 	Counter         CounterKind  // the structure that counted
 	GroupsTruncated bool
 	Stats           Stats
+	// Spill describes how the work was split; unlike everything else in
+	// the Result it depends on MemoryBudget and Jobs.
+	Spill SpillStats
+}
+
+// SpillStats say how a run was split to fit its memory budget.
+type SpillStats struct {
+	Runs         int   // sorted runs written to disk (0: everything stayed in memory)
+	BytesWritten int64 // bytes written to temporary files
+	Ranges       int   // ranges of pair keys counted, each in one pass over the baskets
 }

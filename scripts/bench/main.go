@@ -1,0 +1,627 @@
+// Command bench measures reprise at scale against counting the words of
+// the same files, and against a brute-force all-pairs comparison.
+//
+// It builds deterministic corpora from the Brown corpus sentences (fetched
+// by scripts/fetch-data.sh): N documents of 20 to 80 sentences, with a
+// fixed share of documents receiving a planted copy of 3 to 8 consecutive
+// sentences from an earlier document. Every sentence is a Brown sentence
+// with two of its words replaced by words drawn from the corpus vocabulary:
+// the 57,000 Brown sentences alone, spread over 10^5 documents, would put
+// every sentence in about ninety documents, while real collections hold
+// mostly distinct sentences; the replacement keeps Brown's sentence
+// lengths, punctuation and words and makes accidental sharing as rare as it
+// is in real text.
+//
+// For every size it runs, alternately and -runs times each,
+//
+//	reprise scan --format json -o /dev/null -q DIR
+//	find DIR -type f -exec cat {} + | wc -w
+//
+// and prints the median wall times, their ratio and the peak resident
+// memory (from /usr/bin/time -f %M). At -brute documents it also compares
+// all pairs directly, checks that the pairs are the engine's, and times
+// both.
+//
+// A script, never a timed unit test: timings depend on the machine and
+// its load; BENCHMARKS.md records the figures with the machine they came
+// from.
+package main
+
+import (
+	"bytes"
+	"cmp"
+	"encoding/json"
+	"flag"
+	"fmt"
+	"hash/fnv"
+	"math"
+	"math/rand/v2"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"runtime"
+	"runtime/debug"
+	"slices"
+	"strconv"
+	"strings"
+	"time"
+
+	"reprise/internal/brown"
+	"reprise/pairs"
+	"reprise/shingle"
+)
+
+func main() {
+	if len(os.Args) > 1 && os.Args[1] == "engine-child" {
+		if err := engineChild(os.Args[2:]); err != nil {
+			fmt.Fprintln(os.Stderr, "bench engine-child:", err)
+			os.Exit(1)
+		}
+		return
+	}
+	if err := run(); err != nil {
+		fmt.Fprintln(os.Stderr, "bench:", err)
+		os.Exit(1)
+	}
+}
+
+type options struct {
+	sizes  []int
+	runs   int
+	brute  int
+	reuse  float64
+	work   string
+	memory string
+	seed   uint64
+	extra  []string
+}
+
+func run() error {
+	var o options
+	sizes := flag.String("sizes", "10000,20000,100000", "comma-separated corpus sizes (documents)")
+	flag.IntVar(&o.runs, "runs", 5, "runs of each command per size, alternating")
+	flag.IntVar(&o.brute, "brute", 2000, "documents for the brute-force comparison (0: skip)")
+	flag.Float64Var(&o.reuse, "reuse", 0.1, "share of documents that receive a planted copy")
+	flag.StringVar(&o.work, "work", filepath.Join(os.TempDir(), "reprise-bench"), "folder for the corpora and the binary")
+	flag.StringVar(&o.memory, "memory", "", "pass --memory SIZE to reprise scan (default: its own default)")
+	flag.Uint64Var(&o.seed, "seed", 2026, "corpus seed")
+	extra := flag.String("args", "", "more flags for reprise scan, space-separated")
+	engineDocs := flag.Int("engine", 0, "also run the pair engine alone on this many documents' fingerprints (e.g. 1000000; 0: skip)")
+	engineMem := flag.String("engine-memory", "1GiB,0", "budgets for -engine, comma-separated (0: no bound)")
+	flag.Parse()
+	for _, s := range strings.Split(*sizes, ",") {
+		if s = strings.TrimSpace(s); s == "" {
+			continue
+		}
+		n, err := strconv.Atoi(s)
+		if err != nil || n < 2 {
+			return fmt.Errorf("-sizes: %q is not a size", s)
+		}
+		o.sizes = append(o.sizes, n)
+	}
+	o.extra = strings.Fields(*extra)
+	if o.runs < 1 {
+		return fmt.Errorf("-runs must be at least 1")
+	}
+
+	dir, err := brown.Dir()
+	if err != nil {
+		return err
+	}
+	samples, err := brown.Load(dir)
+	if err != nil {
+		return err
+	}
+	g := newGenerator(samples, o.seed, o.reuse)
+	if err := os.MkdirAll(o.work, 0o755); err != nil {
+		return err
+	}
+	bin := filepath.Join(o.work, "reprise")
+	build := exec.Command("go", "build", "-o", bin, "./cmd/reprise")
+	build.Stdout, build.Stderr = os.Stderr, os.Stderr
+	if err := build.Run(); err != nil {
+		return fmt.Errorf("go build: %w", err)
+	}
+	mem, _ := os.ReadFile("/proc/meminfo")
+	fmt.Printf("machine: %s/%s, %d cores, %s, %s\n", runtime.GOOS, runtime.GOARCH, runtime.NumCPU(), memTotal(mem), runtime.Version())
+	fmt.Printf("corpus: Brown sentences (two words replaced), 20-80 per document, %.0f%% of documents with a planted copy of 3-8 sentences, seed %d\n\n", o.reuse*100, o.seed)
+
+	var prev *result
+	for _, n := range o.sizes {
+		r, err := measure(g, bin, n, o)
+		if err != nil {
+			return err
+		}
+		if prev != nil {
+			growth := r.scan / prev.scan
+			perDoubling := math.Pow(growth, math.Log(2)/math.Log(float64(n)/float64(prev.n)))
+			fmt.Printf("  growth from %d to %d documents: %.2fx the time (%.2fx per doubling)\n", prev.n, n, growth, perDoubling)
+		}
+		fmt.Println()
+		prev = r
+	}
+	if o.brute > 0 {
+		if err := bruteForce(g, bin, o); err != nil {
+			return err
+		}
+	}
+	if *engineDocs > 0 {
+		if err := engineRuns(*engineDocs, *engineMem, o); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// engineRuns runs the pair engine alone, in a child process per budget
+// (so that each has its own peak RSS), on the fingerprints of n documents
+// shaped like the corpus: 20 to 80 distinct sentences each, and the same
+// share of planted copies of 3 to 8 sentences from an earlier document.
+// Splitting a million documents' text would take most of an hour on two
+// cores; the engine's input is fingerprints only, so this measures the
+// counting at that scale without it. The budget given to the engine is
+// the --memory figure less the Input it is handed (8 bytes per entry and
+// a slice header per document), as cmd/reprise does for what it holds.
+func engineRuns(n int, budgets string, o options) error {
+	self, err := os.Executable()
+	if err != nil {
+		return err
+	}
+	fmt.Printf("pair engine alone, %d documents\n", n)
+	var digests []string
+	for _, b := range strings.Split(budgets, ",") {
+		b = strings.TrimSpace(b)
+		t, rss, out, err := timed(self, "engine-child", strconv.Itoa(n), b, strconv.FormatUint(o.seed, 10), strconv.FormatFloat(o.reuse, 'g', -1, 64), o.work)
+		if err != nil {
+			return err
+		}
+		fmt.Printf("  --memory %s: %.1f s, peak RSS %.0f MiB; %s", b, t, rss/1024, out)
+		digests = append(digests, strings.Fields(out)[1])
+	}
+	same := true
+	for _, d := range digests {
+		same = same && d == digests[0]
+	}
+	fmt.Printf("  identical results at every budget: %v\n", same)
+	return nil
+}
+
+// engineChild: engine-child N BUDGET SEED REUSE TEMP.
+func engineChild(args []string) error {
+	if len(args) != 5 {
+		return fmt.Errorf("want N BUDGET SEED REUSE TEMP")
+	}
+	n, err := strconv.Atoi(args[0])
+	if err != nil {
+		return err
+	}
+	var memory int64
+	if args[1] != "0" {
+		if memory, err = parseSize(args[1]); err != nil {
+			return err
+		}
+	}
+	seed, err := strconv.ParseUint(args[2], 10, 64)
+	if err != nil {
+		return err
+	}
+	reuse, err := strconv.ParseFloat(args[3], 64)
+	if err != nil {
+		return err
+	}
+	if memory > 0 {
+		debug.SetMemoryLimit(memory)
+	}
+	docs := make([][]uint64, n)
+	var entries int64
+	for i := range docs {
+		docs[i] = engineDoc(seed, reuse, i)
+		entries += int64(len(docs[i]))
+	}
+	budget := int64(0)
+	if memory > 0 {
+		budget = max(memory-8*entries-24*int64(n), 1<<20)
+	}
+	start := time.Now()
+	res, err := pairs.Count(pairs.Input{Docs: docs}, pairs.Options{MemoryBudget: budget, TempDir: args[4], Jobs: runtime.NumCPU()})
+	if err != nil {
+		return err
+	}
+	h := fnv.New64a()
+	for _, p := range res.Pairs {
+		fmt.Fprintf(h, "%d %d %d\n", p.A, p.B, p.Shared)
+	}
+	for _, g := range res.Groups {
+		fmt.Fprintf(h, "%v %d\n", g.Docs, g.Shared)
+	}
+	fmt.Printf("digest %016x: %d entries, %d pairs, %d groups, count %.1f s, %d runs on disk (%d MiB), %d ranges\n",
+		h.Sum64(), entries, len(res.Pairs), len(res.Groups), time.Since(start).Seconds(), res.Spill.Runs, res.Spill.BytesWritten>>20, res.Spill.Ranges)
+	return nil
+}
+
+// engineDoc is document i's distinct fingerprints: its own, and for a
+// share of documents 3 to 8 of an earlier document's.
+func engineDoc(seed uint64, reuse float64, i int) []uint64 {
+	own := func(d int) []uint64 {
+		r := rand.New(rand.NewPCG(seed, uint64(d)))
+		out := make([]uint64, 20+r.IntN(61))
+		for k := range out {
+			out[k] = r.Uint64()
+		}
+		return out
+	}
+	fps := own(i)
+	r := rand.New(rand.NewPCG(seed^0x5eed, uint64(i)))
+	if i > 0 && r.Float64() < reuse {
+		src := own(r.IntN(i))
+		k := 3 + r.IntN(6)
+		from := r.IntN(len(src) - k + 1)
+		fps = append(fps, src[from:from+k]...)
+	}
+	slices.Sort(fps)
+	return slices.Compact(fps)
+}
+
+// parseSize reads 512MiB, 1GiB or a byte count.
+func parseSize(s string) (int64, error) {
+	for _, u := range []struct {
+		suffix string
+		factor int64
+	}{{"GiB", 1 << 30}, {"MiB", 1 << 20}, {"KiB", 1 << 10}} {
+		if v, ok := strings.CutSuffix(s, u.suffix); ok {
+			f, err := strconv.ParseFloat(v, 64)
+			return int64(f * float64(u.factor)), err
+		}
+	}
+	return strconv.ParseInt(s, 10, 64)
+}
+
+// loadAverage is the first three fields of /proc/loadavg, or "unknown".
+func loadAverage() string {
+	b, err := os.ReadFile("/proc/loadavg")
+	if f := strings.Fields(string(b)); err == nil && len(f) >= 3 {
+		return strings.Join(f[:3], " ")
+	}
+	return "unknown"
+}
+
+func memTotal(meminfo []byte) string {
+	for _, line := range strings.Split(string(meminfo), "\n") {
+		if f := strings.Fields(line); len(f) >= 2 && f[0] == "MemTotal:" {
+			kb, _ := strconv.ParseFloat(f[1], 64)
+			return fmt.Sprintf("%.1f GiB memory", kb/(1<<20))
+		}
+	}
+	return "memory unknown"
+}
+
+type result struct {
+	n          int
+	scan, base float64 // median seconds
+}
+
+// measure builds (or reuses) the corpus of n documents and times the two
+// commands alternately.
+func measure(g *generator, bin string, n int, o options) (*result, error) {
+	dir := filepath.Join(o.work, fmt.Sprintf("corpus-%d-%d-%g", n, o.seed, o.reuse))
+	bytes, err := g.ensure(dir, n)
+	if err != nil {
+		return nil, err
+	}
+	scanArgs := []string{"scan", "--format", "json", "-o", os.DevNull, "-q"}
+	if o.memory != "" {
+		scanArgs = append(scanArgs, "--memory", o.memory)
+	}
+	scanArgs = append(append(scanArgs, o.extra...), dir)
+	fmt.Printf("%d documents, %.1f MB in %s\n", n, float64(bytes)/1e6, dir)
+	fmt.Printf("  reprise %s\n", strings.Join(scanArgs, " "))
+	fmt.Printf("  sh -c 'find %s -type f -exec cat {} + | wc -w'\n", dir)
+	var scans, bases []float64
+	var scanRSS, baseRSS []float64
+	for i := range o.runs {
+		t, rss, _, err := timed(bin, scanArgs...)
+		if err != nil {
+			return nil, fmt.Errorf("reprise scan (run %d): %w", i+1, err)
+		}
+		scans, scanRSS = append(scans, t), append(scanRSS, rss)
+		t, rss, out, err := timed("sh", "-c", "find "+shellQuote(dir)+" -type f -exec cat {} + | wc -w")
+		if err != nil {
+			return nil, fmt.Errorf("baseline (run %d): %w", i+1, err)
+		}
+		bases, baseRSS = append(bases, t), append(baseRSS, rss)
+		if i == 0 {
+			fmt.Printf("  words (wc -w): %s\n", strings.TrimSpace(out))
+		}
+	}
+	r := &result{n: n, scan: median(scans), base: median(bases)}
+	fmt.Printf("  load average after the runs: %s (other work on the machine skews both commands)\n", loadAverage())
+	fmt.Printf("  reprise scan: median %.2f s (runs %s), peak RSS %.0f MiB\n", r.scan, list(scans), slices.Max(scanRSS)/1024)
+	fmt.Printf("  cat | wc -w:  median %.2f s (runs %s), peak RSS %.0f MiB\n", r.base, list(bases), slices.Max(baseRSS)/1024)
+	fmt.Printf("  ratio scan / baseline: %.2f\n", r.scan/r.base)
+	return r, nil
+}
+
+// timed runs a command under /usr/bin/time and returns its wall time in
+// seconds, its peak RSS in KiB and its standard output.
+func timed(name string, args ...string) (float64, float64, string, error) {
+	rssFile, err := os.CreateTemp("", "reprise-bench-rss-")
+	if err != nil {
+		return 0, 0, "", err
+	}
+	rssFile.Close()
+	defer os.Remove(rssFile.Name())
+	cmd := exec.Command("/usr/bin/time", append([]string{"-f", "%M", "-o", rssFile.Name(), name}, args...)...)
+	var out, errs bytes.Buffer
+	cmd.Stdout, cmd.Stderr = &out, &errs
+	start := time.Now()
+	err = cmd.Run()
+	wall := time.Since(start).Seconds()
+	if err != nil {
+		return 0, 0, "", fmt.Errorf("%s: %w: %s", name, err, errs.String())
+	}
+	b, err := os.ReadFile(rssFile.Name())
+	if err != nil {
+		return 0, 0, "", err
+	}
+	fields := strings.Fields(string(b))
+	if len(fields) == 0 {
+		return 0, 0, "", fmt.Errorf("/usr/bin/time gave no figure")
+	}
+	rss, err := strconv.ParseFloat(fields[len(fields)-1], 64)
+	if err != nil {
+		return 0, 0, "", fmt.Errorf("/usr/bin/time: %q", b)
+	}
+	return wall, rss, out.String(), nil
+}
+
+func shellQuote(s string) string { return "'" + strings.ReplaceAll(s, "'", `'\''`) + "'" }
+
+func median(xs []float64) float64 {
+	s := slices.Clone(xs)
+	slices.Sort(s)
+	if len(s)%2 == 1 {
+		return s[len(s)/2]
+	}
+	return (s[len(s)/2-1] + s[len(s)/2]) / 2
+}
+
+func list(xs []float64) string {
+	parts := make([]string, len(xs))
+	for i, x := range xs {
+		parts[i] = strconv.FormatFloat(x, 'f', 2, 64)
+	}
+	return strings.Join(parts, " ")
+}
+
+// generator makes the documents: document i depends only on the seed and
+// i, so a corpus of n documents is the first n of any larger one.
+type generator struct {
+	sentences []string   // Brown sentences, one per line of the untagged text
+	vocab     []string   // Brown words made of letters only
+	words     [][]string // each sentence's tokens
+	seed      uint64
+	reuse     float64
+}
+
+func newGenerator(samples []brown.Sample, seed uint64, reuse float64) *generator {
+	g := &generator{seed: seed, reuse: reuse}
+	seen := map[string]bool{}
+	for _, s := range samples {
+		for _, line := range strings.Split(s.Text, "\n") {
+			line = strings.TrimSpace(line)
+			if line == "" {
+				continue
+			}
+			g.sentences = append(g.sentences, line)
+			toks := strings.Fields(line)
+			g.words = append(g.words, toks)
+			for _, t := range toks {
+				if isWord(t) && !seen[t] {
+					seen[t] = true
+					g.vocab = append(g.vocab, t)
+				}
+			}
+		}
+	}
+	slices.Sort(g.vocab)
+	return g
+}
+
+func isWord(t string) bool {
+	for _, c := range []byte(t) {
+		if (c|0x20) < 'a' || (c|0x20) > 'z' {
+			return false
+		}
+	}
+	return t != ""
+}
+
+// base returns document i's own sentences.
+func (g *generator) base(i int) []string {
+	r := rand.New(rand.NewPCG(g.seed, uint64(i)))
+	n := 20 + r.IntN(61)
+	out := make([]string, n)
+	for k := range out {
+		toks := slices.Clone(g.words[r.IntN(len(g.words))])
+		for range 2 {
+			x := r.IntN(len(toks))
+			if isWord(toks[x]) {
+				toks[x] = g.vocab[r.IntN(len(g.vocab))]
+			}
+		}
+		out[k] = strings.Join(toks, " ")
+	}
+	return out
+}
+
+// doc returns document i: its own sentences and, for a share of the
+// documents, a planted block of 3 to 8 consecutive sentences from an
+// earlier document.
+func (g *generator) doc(i int) string {
+	sents := g.base(i)
+	r := rand.New(rand.NewPCG(g.seed^0x5eed, uint64(i)))
+	if i > 0 && r.Float64() < g.reuse {
+		src := g.base(r.IntN(i))
+		k := 3 + r.IntN(6)
+		from := r.IntN(len(src) - k + 1)
+		at := r.IntN(len(sents) + 1)
+		sents = slices.Concat(sents[:at], src[from:from+k], sents[at:])
+	}
+	var b strings.Builder
+	for k, s := range sents {
+		switch {
+		case k == 0:
+		case k%5 == 0:
+			b.WriteString("\n\n")
+		default:
+			b.WriteByte(' ')
+		}
+		b.WriteString(s)
+	}
+	b.WriteByte('\n')
+	return b.String()
+}
+
+func (g *generator) path(dir string, i int) string {
+	return filepath.Join(dir, fmt.Sprintf("%04d", i/1000), fmt.Sprintf("doc%07d.txt", i))
+}
+
+// ensure writes the corpus of n documents into dir unless a complete one
+// is there (a marker file beside it says so), and returns its size.
+func (g *generator) ensure(dir string, n int) (int64, error) {
+	marker := dir + ".done"
+	if b, err := os.ReadFile(marker); err == nil {
+		if size, err := strconv.ParseInt(strings.TrimSpace(string(b)), 10, 64); err == nil {
+			return size, nil
+		}
+	}
+	if err := os.RemoveAll(dir); err != nil {
+		return 0, err
+	}
+	var size int64
+	for i := range n {
+		p := g.path(dir, i)
+		if i%1000 == 0 {
+			if err := os.MkdirAll(filepath.Dir(p), 0o755); err != nil {
+				return 0, err
+			}
+		}
+		text := g.doc(i)
+		if err := os.WriteFile(p, []byte(text), 0o644); err != nil {
+			return 0, err
+		}
+		size += int64(len(text))
+	}
+	return size, os.WriteFile(marker, []byte(strconv.FormatInt(size, 10)), 0o644)
+}
+
+// bruteForce compares every pair of the first o.brute documents directly:
+// each document's distinct sentence fingerprints (the same splitter and
+// normalization as reprise) intersected with every other's by a merge
+// walk. It checks the pairs sharing at least 3 against reprise's, and
+// times the comparison against pairs.Count on the same fingerprints, and
+// the whole brute force (splitting included) against reprise scan.
+func bruteForce(g *generator, bin string, o options) error {
+	n := o.brute
+	dir := filepath.Join(o.work, fmt.Sprintf("corpus-%d-%d-%g", n, o.seed, o.reuse))
+	if _, err := g.ensure(dir, n); err != nil {
+		return err
+	}
+	fmt.Printf("brute force at %d documents (%d pairs)\n", n, n*(n-1)/2)
+	out := filepath.Join(o.work, "brute.json")
+	var scans []float64
+	for range o.runs {
+		t, _, _, err := timed(bin, "scan", "--format", "json", "-q", "-o", out, dir)
+		if err != nil {
+			return err
+		}
+		scans = append(scans, t)
+	}
+	var rep struct {
+		Pairs []struct {
+			A, B   string
+			Shared int
+		}
+	}
+	b, err := os.ReadFile(out)
+	if err != nil {
+		return err
+	}
+	if err := json.Unmarshal(b, &rep); err != nil {
+		return err
+	}
+	engine := map[string]int{}
+	for _, p := range rep.Pairs {
+		engine[p.A+"\x00"+p.B] = p.Shared
+	}
+
+	var splits, compares, counts []float64
+	var found map[string]int
+	sp := shingle.New(shingle.Options{})
+	for range o.runs {
+		start := time.Now()
+		sets := make([][]uint64, n)
+		var units []shingle.Unit
+		for i := range n {
+			text, err := os.ReadFile(g.path(dir, i))
+			if err != nil {
+				return err
+			}
+			units, _ = sp.Sentences(string(text), units[:0])
+			set := make([]uint64, len(units))
+			for k, u := range units {
+				set[k] = u.Hash
+			}
+			slices.Sort(set)
+			sets[i] = slices.Compact(set)
+		}
+		splits = append(splits, time.Since(start).Seconds())
+
+		start = time.Now()
+		found = map[string]int{}
+		for a := range n {
+			for c := a + 1; c < n; c++ {
+				if k := intersectCount(sets[a], sets[c]); k >= 3 {
+					found[filepath.ToSlash(g.path(dir, a))+"\x00"+filepath.ToSlash(g.path(dir, c))] = k
+				}
+			}
+		}
+		compares = append(compares, time.Since(start).Seconds())
+
+		start = time.Now()
+		if _, err := pairs.Count(pairs.Input{Docs: sets}, pairs.Options{}); err != nil {
+			return err
+		}
+		counts = append(counts, time.Since(start).Seconds())
+	}
+	same := len(found) == len(engine)
+	for k, v := range found {
+		same = same && engine[k] == v
+	}
+	fmt.Printf("  same pairs as reprise scan: %v (%d pairs, brute force %d)\n", same, len(engine), len(found))
+	fmt.Printf("  all-pairs comparison: median %.3f s; pairs.Count on the same fingerprints: median %.4f s; ratio %.0fx\n",
+		median(compares), median(counts), median(compares)/median(counts))
+	fmt.Printf("  brute force with splitting: median %.2f s; reprise scan: median %.2f s; ratio %.1fx\n",
+		median(splits)+median(compares), median(scans), (median(splits)+median(compares))/median(scans))
+	if !same {
+		return fmt.Errorf("brute force and reprise disagree")
+	}
+	return nil
+}
+
+func intersectCount(x, y []uint64) int {
+	i, j, n := 0, 0, 0
+	for i < len(x) && j < len(y) {
+		switch cmp.Compare(x[i], y[j]) {
+		case -1:
+			i++
+		case 1:
+			j++
+		default:
+			n++
+			i++
+			j++
+		}
+	}
+	return n
+}
