@@ -19,6 +19,11 @@
 // maxRepeats occurrences of a unit in each document seed passages. The
 // engine's shared count is unaffected; the cap is documented in the README.
 //
+// Word shingles overlap and may be winnowed, so runs of consecutive equal
+// units would cut an edited copy into shards; for them (Input.Chaining)
+// passages are chained across gaps of up to G words and merged where they
+// cross, as chain.go explains.
+//
 // The simpler alternative — a longest-common-subsequence or edit-distance
 // alignment of the whole documents — finds one best chain and hides
 // reordered or repeated copies; reused text is often moved around, so the

@@ -55,6 +55,19 @@ type Settings struct {
 	Include      []string `json:"include"`
 	Skip         []string `json:"skip"`
 	MaxFileSize  int64    `json:"max_file_size"`
+
+	Shingles       *ShingleSettings `json:"shingles,omitempty"`        // word units only
+	SkipQuoted     bool             `json:"skip_quoted,omitempty"`     // text in quotation marks gave no unit
+	SkipReferences bool             `json:"skip_references,omitempty"` // a trailing references section gave no unit
+}
+
+// ShingleSettings are the settings of word-shingle units.
+type ShingleSettings struct {
+	Words  int `json:"words"`  // K: words per shingle
+	Winnow int `json:"winnow"` // W: winnowing window (0: every shingle kept)
+	Gap    int `json:"gap"`    // G: passages merge across gaps of up to G words
+	// MinPassage: shorter passages (in words) are not shown, unless a pair's largest
+	MinPassage int `json:"min_passage"`
 }
 
 // Summary counts what the run read, set aside and found.
@@ -166,6 +179,7 @@ type Input struct {
 	Excluded  []uint64 // template fingerprints, sorted
 	Templates int      // template documents read
 	Settings  Settings
+	Chaining  *Chaining // word units: passages chained across gaps (chain.go); nil for sentences
 }
 
 // Build aligns every reported pair, scores and ranks them, and assembles the Result.
@@ -213,15 +227,15 @@ func Build(in Input) (*Result, error) {
 			return nil, fmt.Errorf("report: engine pair (%d, %d) outside %d documents", ep.A, ep.B, n)
 		}
 		da, db := &in.Docs[ep.A], &in.Docs[ep.B]
-		passages := align(&seqs[ep.A], &seqs[ep.B])
+		passages := pairPassages(in.Chaining, &seqs[ep.A], &seqs[ep.B], da, db)
 		if len(passages) == 0 {
 			return nil, fmt.Errorf("report: %s and %s share %d units but no passage aligns", da.Path, db.Path, ep.Shared)
 		}
 		p := Pair{A: da.Path, B: db.Path, Shared: int(ep.Shared)}
 		var aSpans, bSpans []span
 		for _, r := range passages {
-			ua, ub := da.Units[r.a], db.Units[r.b]
-			la, lb := da.Units[r.a+r.n-1], db.Units[r.b+r.n-1]
+			ua, ub := da.Units[r.aFirst], db.Units[r.bFirst]
+			la, lb := da.Units[r.aLast], db.Units[r.bLast]
 			g := Passage{
 				AStart: int(ua.Start), AEnd: int(la.End),
 				BStart: int(ub.Start), BEnd: int(lb.End),

@@ -28,6 +28,9 @@ const mainUsage = `reprise finds documents that share passages, and shows which 
 Usage:
   reprise scan [flags] PATH...     compare every document with every other
   reprise report [flags] RESULT    render a saved JSON result again (text, csv, html, ...)
+  reprise compare --against REF... PATH...
+                                   new documents against a reference set
+  reprise archive COMMAND ...      a persistent archive: add, check, list, stats, remove, verify
   reprise help [COMMAND]           show help
   reprise --version                print the version
 
@@ -51,12 +54,19 @@ func run(args []string, stdout, stderr io.Writer) int {
 		return runScan(args[1:], stdout, stderr)
 	case "report":
 		return runReport(args[1:], stdout, stderr)
+	case "compare":
+		return runCompare(args[1:], stdout, stderr)
+	case "archive":
+		return runArchive(args[1:], stdout, stderr)
 	case "help", "-h", "--help":
 		if len(args) > 1 && args[1] == "scan" {
 			return runScan([]string{"--help"}, stdout, stderr)
 		}
 		if len(args) > 1 && args[1] == "report" {
 			return runReport([]string{"--help"}, stdout, stderr)
+		}
+		if len(args) > 1 && (args[1] == "compare" || args[1] == "archive") {
+			return run([]string{args[1], "--help"}, stdout, stderr)
 		}
 		fmt.Fprint(stdout, mainUsage)
 		return exitOK

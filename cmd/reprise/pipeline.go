@@ -23,6 +23,13 @@ type scanConfig struct {
 	Jobs      int
 	Progress  func(format string, args ...any) // nil: silent
 	MaxDocsBy string                           // how MaxDocs was chosen, for the report
+	Memory    int64                            // --memory in bytes, 0: no bound (scale.go)
+	Temp      string                           // --temp: parent of the run's temporary folder
+	Warn      func(format string, args ...any) // nil: silent (scale.go's budget warning)
+	Chaining  *report.Chaining                 // word units: passage chaining (units.go); nil for sentences
+	// KeepPairs, when set, may drop pairs, groups and clusters from the
+	// engine's result before the report is built (compare.go).
+	KeepPairs func(docs []corpus.Document, eng *pairs.Result)
 }
 
 // errNoDocuments means no input gave a readable document.
@@ -62,6 +69,13 @@ func scan(cfg scanConfig) (*report.Result, error) {
 	splitOpt := cfg.Shingle
 	units, stats := shingleAll(docs, splitOpt, cfg.Jobs)
 	effective := shingle.New(splitOpt).Options()
+	// The engine gets what --memory leaves after the texts and units.
+	held := heldBytes(docs, units)
+	cfg.Pairs.MemoryBudget = engineBudget(cfg.Memory, held)
+	if cfg.Memory > 0 && held > cfg.Memory && cfg.Warn != nil {
+		cfg.Warn("the documents' text and units take about %d MiB, more than --memory %d MiB; the counting spills to disk, but the run holds more than the bound", held>>20, cfg.Memory>>20)
+	}
+	cfg.Pairs.Jobs = cfg.Jobs
 
 	var excluded []uint64
 	if len(templates) > 0 {
@@ -75,20 +89,19 @@ func scan(cfg scanConfig) (*report.Result, error) {
 		excluded = slices.Compact(excluded)
 	}
 
-	in := pairs.Input{Docs: make([][]uint64, len(docs)), Excluded: excluded}
-	for i, us := range units {
-		set := make([]uint64, len(us))
-		for k, u := range us {
-			set[k] = u.Hash
-		}
-		slices.Sort(set)
-		in.Docs[i] = slices.Compact(set)
-	}
+	in := pairs.Input{Docs: fingerprintSets(units), Excluded: excluded}
 
 	progress("counting pairs among %d documents", len(docs))
 	eng, err := pairs.Count(in, cfg.Pairs)
 	if err != nil {
 		return nil, err
+	}
+	if eng.Spill.Runs > 0 {
+		progress("counted in %d sorted runs on disk (%d MiB written), %d ranges of pairs", eng.Spill.Runs, eng.Spill.BytesWritten>>20, eng.Spill.Ranges)
+	}
+
+	if cfg.KeepPairs != nil {
+		cfg.KeepPairs(docs, eng)
 	}
 
 	progress("aligning %d pairs", len(eng.Pairs))
@@ -98,6 +111,7 @@ func scan(cfg scanConfig) (*report.Result, error) {
 		Engine:    eng,
 		Excluded:  excluded,
 		Templates: len(templates),
+		Chaining:  cfg.Chaining,
 		Settings: report.Settings{
 			Version:      version,
 			Unit:         "sentence",
@@ -112,23 +126,46 @@ func scan(cfg scanConfig) (*report.Result, error) {
 			MaxFileSize:  cfg.Corpus.MaxFileSize,
 		},
 	}
+	unitSettings(&rin.Settings, effective, cfg.Chaining)
 	for i, d := range docs {
-		notes := slices.Clone(d.Notes)
-		if stats[i].LineBreaks {
-			notes = append(notes, "no sentence punctuation: split at line breaks")
-		}
-		if stats[i].Cut > 0 {
-			notes = append(notes, fmt.Sprintf("%d sentences longer than %d bytes were cut", stats[i].Cut, effective.MaxUnitBytes))
-		}
-		rin.Docs[i] = report.Doc{
-			Path: d.Path, Format: d.Format, Encoding: d.Encoding, Notes: notes,
-			Text: d.Text, Words: stats[i].Words, Units: units[i], Marks: d.Marks,
-		}
+		rin.Docs[i] = reportDoc(d, units[i], stats[i], effective)
 	}
 	for i, s := range skipped {
 		rin.Skipped[i] = report.Skipped{Path: s.Path, Reason: s.Reason}
 	}
 	return report.Build(rin)
+}
+
+// fingerprintSets gives the engine's view of each document: its distinct
+// unit fingerprints, sorted (used by scan, compare and archive check).
+func fingerprintSets(units [][]shingle.Unit) [][]uint64 {
+	sets := make([][]uint64, len(units))
+	for i, us := range units {
+		set := make([]uint64, len(us))
+		for k, u := range us {
+			set[k] = u.Hash
+		}
+		slices.Sort(set)
+		sets[i] = slices.Compact(set)
+	}
+	return sets
+}
+
+// reportDoc is a document as the report needs it, with the notes on how it
+// was split (used by scan, compare and archive check).
+func reportDoc(d corpus.Document, units []shingle.Unit, st shingle.Stats, effective shingle.Options) report.Doc {
+	notes := slices.Clone(d.Notes)
+	notes = append(notes, skipNotes(st, d.Text)...)
+	if st.LineBreaks {
+		notes = append(notes, "no sentence punctuation: split at line breaks")
+	}
+	if st.Cut > 0 {
+		notes = append(notes, fmt.Sprintf("%d sentences longer than %d bytes were cut", st.Cut, effective.MaxUnitBytes))
+	}
+	return report.Doc{
+		Path: d.Path, Format: d.Format, Encoding: d.Encoding, Notes: notes,
+		Text: d.Text, Words: st.Words, Units: units, Marks: d.Marks,
+	}
 }
 
 // setTemplatesAside removes from docs every file that is also a template,
@@ -185,7 +222,7 @@ func shingleAll(docs []corpus.Document, opt shingle.Options, jobs int) ([][]shin
 			defer wg.Done()
 			sp := shingle.New(opt)
 			for i := range next {
-				units[i], stats[i] = sp.Sentences(docs[i].Text, nil)
+				units[i], stats[i] = sp.Units(docs[i].Text, nil)
 			}
 		}()
 	}

@@ -21,8 +21,9 @@ import (
 
 const scanUsage = `Usage: reprise scan [flags] PATH...
 
-Reads every document under the given files and folders (plain text and
-Markdown), splits each into sentences, and reports every pair of documents
+Reads every document under the given files and folders (plain text,
+Markdown, DOCX, ODT, RTF, HTML, EPUB, PDF, e-mail .eml, and ZIP archives
+of these), splits each into sentences, and reports every pair of documents
 that share at least --min-shared sentences, with the shared passages, their
 line numbers, and how much of each document they cover.
 
@@ -35,6 +36,8 @@ Examples:
       compare every essay with every other; a ranked table on the terminal
   reprise scan --exclude prompt.txt essays/
       sentences of the assignment prompt never count
+  reprise scan --unit words essays/
+      compare runs of words instead of sentences: also finds edited copies
   reprise scan --format json -o result.json submissions/ archive/
       the full result, every passage with byte offsets, as JSON
   reprise scan --fail-on 0.5 -q policies/
@@ -50,6 +53,7 @@ Flags:
 type scanFlags struct {
 	minShared   int
 	minWords    int
+	units       unitFlags // --unit, --words, --winnow, --gap, --skip-quoted, --skip-references (units.go)
 	maxDocs     int
 	exclude     []string
 	format      string
@@ -57,9 +61,11 @@ type scanFlags struct {
 	top         int
 	htmlPairs   int
 	jobs        int
+	scale       scaleFlags // --memory, --temp, --files-from, -0 (scale.go)
 	include     []string
 	skip        []string
 	maxFileSize string
+	limits      formatLimits
 	quiet       bool
 	failOn      string
 	help        bool
@@ -69,18 +75,21 @@ func newScanFlagSet(f *scanFlags, stderr io.Writer) *pflag.FlagSet {
 	fs := pflag.NewFlagSet("scan", pflag.ContinueOnError)
 	fs.SetOutput(stderr)
 	fs.SortFlags = false
-	fs.IntVar(&f.minShared, "min-shared", 3, "support threshold: distinct sentences a pair must share to be reported")
-	fs.IntVar(&f.minWords, "min-words", 5, "a sentence with fewer words does not count")
+	fs.IntVar(&f.minShared, "min-shared", 0, fmt.Sprintf("support threshold: distinct units a pair must share to be reported\n(default: %d with --unit sentence, %d with --unit words)", sentenceMinShared, wordsMinShared))
+	fs.IntVar(&f.minWords, "min-words", 0, fmt.Sprintf("--unit sentence: a sentence with fewer words does not count (default %d)", sentenceMinWords))
+	f.units.register(fs)
 	fs.IntVar(&f.maxDocs, "max-docs", 0, "a sentence in more than N documents is common text, listed and not counted\n(default: half the documents, at least 5 and at most 1000)")
 	fs.StringArrayVar(&f.exclude, "exclude", nil, "template `PATH` (prompt, disclaimer) whose sentences never count; repeatable")
 	fs.StringVar(&f.format, "format", "text", "output format: "+strings.Join(report.Formats, ", "))
 	fs.StringVarP(&f.output, "output", "o", "", "write the report to `FILE` (via a temporary file, then renamed) instead of standard output")
 	fs.IntVar(&f.top, "top", 20, "pairs shown in the text table")
 	fs.IntVar(&f.htmlPairs, "html-pairs", report.DefaultHTMLPairs, "html: the top `N` pairs get a side-by-side view; the rest are in the table only")
-	fs.IntVar(&f.jobs, "jobs", runtime.NumCPU(), "documents read and split at once")
+	fs.IntVar(&f.jobs, "jobs", runtime.NumCPU(), "documents read and split at once, and ranges of pairs counted at once")
+	f.scale.register(fs)
 	fs.StringArrayVar(&f.include, "include", nil, "read only files whose name matches `GLOB` (e.g. '*.txt'); repeatable")
 	fs.StringArrayVar(&f.skip, "skip", nil, "do not read files or folders whose name or path matches `GLOB`; repeatable")
 	fs.StringVar(&f.maxFileSize, "max-file-size", "32MiB", "skip files larger than `SIZE` (bytes, or with k, KiB, MB, MiB, GB, GiB)")
+	f.limits.register(fs)
 	fs.BoolVarP(&f.quiet, "quiet", "q", false, "no progress or warnings on standard error")
 	fs.StringVar(&f.failOn, "fail-on", "", "exit with status 1 when any pair's score reaches `SCORE` (0..1, or a percentage such as 80%)")
 	fs.BoolVarP(&f.help, "help", "h", false, "show this help")
@@ -108,11 +117,20 @@ func runScan(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "reprise scan: %v\nRun 'reprise scan --help' for usage.\n", err)
 		return exitUsage
 	}
+	guard, err := newTempGuard(cfg.Temp, stderr, os.Exit)
+	if err != nil {
+		fmt.Fprintf(stderr, "reprise scan: %v\n", err)
+		return exitUsage
+	}
+	defer guard.Close()
+	cfg.Pairs.TempDir = guard.dir
+	defer setMemoryLimit(cfg.Memory)()
 	warn := func(format string, args ...any) {
 		if !f.quiet {
 			fmt.Fprintf(stderr, "reprise: "+format+"\n", args...)
 		}
 	}
+	cfg.Warn = warn
 	var prog *progress
 	if !f.quiet && isTerminal(stderr) {
 		prog = &progress{w: stderr}
@@ -160,8 +178,14 @@ func printScanHelp(w io.Writer, fs *pflag.FlagSet) {
 // when --fail-on is not set.
 func (f *scanFlags) config(paths []string) (cfg scanConfig, failOn float64, err error) {
 	failOn = -1
+	if paths, err = f.scale.paths(paths, os.Stdin); err != nil {
+		return cfg, failOn, err
+	}
 	if len(paths) == 0 {
 		return cfg, failOn, errors.New("no PATH given")
+	}
+	if err := f.units.resolve(f); err != nil {
+		return cfg, failOn, err
 	}
 	if f.minShared < 1 {
 		return cfg, failOn, fmt.Errorf("--min-shared must be at least 1, not %d", f.minShared)
@@ -188,6 +212,11 @@ func (f *scanFlags) config(paths []string) (cfg scanConfig, failOn float64, err 
 	if err != nil {
 		return cfg, failOn, fmt.Errorf("--max-file-size: %w", err)
 	}
+	var formats corpus.Options
+	if formats, err = f.limits.options(); err != nil {
+		return cfg, failOn, err
+	}
+	formats.Include, formats.Skip, formats.MaxFileSize = f.include, f.skip, size
 	if f.failOn != "" {
 		if failOn, err = parseScore(f.failOn); err != nil {
 			return cfg, -1, fmt.Errorf("--fail-on: %w", err)
@@ -205,11 +234,15 @@ func (f *scanFlags) config(paths []string) (cfg scanConfig, failOn float64, err 
 	cfg = scanConfig{
 		Paths:     paths,
 		Exclude:   f.exclude,
-		Corpus:    corpus.Options{Include: f.include, Skip: f.skip, MaxFileSize: size},
+		Corpus:    formats,
 		Shingle:   shingle.Options{MinWords: f.minWords},
 		Pairs:     pairs.Options{MinShared: f.minShared, MaxDocs: f.maxDocs},
 		Jobs:      f.jobs,
 		MaxDocsBy: rule,
+	}
+	f.units.apply(&cfg)
+	if err := f.scale.apply(&cfg); err != nil {
+		return cfg, -1, err
 	}
 	return cfg, failOn, nil
 }

@@ -1,0 +1,53 @@
+package archive
+
+import (
+	"fmt"
+	"path/filepath"
+	"testing"
+)
+
+// BenchmarkAdd measures adding one document of 40 sentences (one batch:
+// metadata, compressed text, units, indexes and 40 posting merges).
+func BenchmarkAdd(b *testing.B) {
+	a, err := Open(filepath.Join(b.TempDir(), "ar"), Options{Settings: testSettings(), Create: true})
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer a.Close()
+	docs := make([]Doc, 256)
+	for i := range docs {
+		docs[i] = doc(fmt.Sprintf("d%d.txt", i), sentences(fmt.Sprint("bench", i), 40))
+	}
+	b.ResetTimer()
+	for i := range b.N {
+		d := docs[i%len(docs)]
+		d.Path = fmt.Sprintf("d%d.txt", i)
+		d.Text += fmt.Sprint(i) // new content each time: never a no-op
+		if _, err := a.Add(d, testTime); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkPostings measures one posting lookup, the unit of a check.
+func BenchmarkPostings(b *testing.B) {
+	a, err := Open(filepath.Join(b.TempDir(), "ar"), Options{Settings: testSettings(), Create: true})
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer a.Close()
+	shared := sentences("shared", 10)
+	for i := range 200 {
+		if _, err := a.Add(doc(fmt.Sprintf("d%d.txt", i), shared+sentences(fmt.Sprint("own", i), 20)), testTime); err != nil {
+			b.Fatal(err)
+		}
+	}
+	fp := doc("x", shared).UnitList[0].Hash
+	var ids []uint64
+	b.ResetTimer()
+	for range b.N {
+		if ids, err = a.Postings(fp, ids[:0]); err != nil || len(ids) != 200 {
+			b.Fatal(len(ids), err)
+		}
+	}
+}

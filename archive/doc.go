@@ -1,0 +1,94 @@
+// Package archive is a persistent index of every document seen before, so
+// that new documents can be checked against all of them without reading the
+// old files again.
+//
+// # The problem
+//
+// A scan compares the documents of one run. Real screening is incremental:
+// this week's submissions against everything already published. The simple
+// approach — keep the old files and rescan them with the new ones — costs a
+// full scan per check, needs the old files to stay where they were, and
+// cannot show an archived passage once the file is gone. An archive keeps,
+// per document, everything a report needs (path, SHA-256, format, size,
+// date added, unit fingerprints with their spans, extracted text), and an
+// inverted index from fingerprint to documents, so a check costs one point
+// lookup per distinct unit of the new documents plus the loading of the few
+// archived documents that share enough units.
+//
+// # The store
+//
+// An embedded key-value store, github.com/cockroachdb/pebble/v2 (an LSM
+// tree: writes go to a write-ahead log and a memtable, then to sorted,
+// immutable table files merged in the background). Keys hold no text, only
+// prefixes, numbers and hashes, because key bounds are copied into the
+// store's MANIFEST, which remove could not scrub:
+//
+//	m/settings             format version and unit settings (JSON)
+//	m/next, m/count        next document ID, number of documents
+//	d/<id>                 document metadata (JSON: path, hash, format, size, date, marks, notes)
+//	t/<id>                 extracted text, compressed with compress/flate (standard library)
+//	u/<id>                 units in text order: 20 bytes each (fingerprint, start, end, words)
+//	h/<sha256 of content>  → id, for idempotent add
+//	n/<sha256 of path>     → id, so changed content at the same path replaces the old version
+//	p/<fingerprint>        postings: the IDs of the documents holding the unit, as uvarints
+//
+// IDs and fingerprints are 8-byte big-endian, so keys sort numerically.
+//
+// # Postings by merge, not read-modify-write
+//
+// Adding a document appends its ID to the posting of each of its distinct
+// fingerprints with the store's merge operator (the merger "reprise.postings.v1"
+// concatenates uvarint operands; pebble folds them lazily, on reads and in
+// compactions). An add therefore never reads a posting, and the cost of
+// adding is independent of how common its sentences are. A posting's length
+// is the unit's document frequency over the whole archive, which is how a
+// check recognises common text across everything archived, not only within
+// one batch. Removing is the rare path and does read: each posting of the
+// removed document is rewritten without its ID (or deleted when empty).
+//
+// # Nothing lost, nothing left behind
+//
+//   - Atomicity: each document (all of its keys, including the removal of
+//     the version it replaces) is one pebble Batch, applied at once: after a
+//     crash the write-ahead log replays whole batches only, so a document is
+//     in the archive wholly or not at all. Batches are applied without
+//     waiting for fsync; Sync forces the log to disk, and the add command
+//     calls it every 1000 documents and before it reports success. A crash
+//     therefore loses at most the documents added since the last sync —
+//     never part of one — and re-running the same add restores them.
+//   - One writer: pebble locks the folder's LOCK file (fcntl) for as long as
+//     the store is open, read-only or not. A second process gets an error
+//     that names that file.
+//   - Erasure: Erase compacts the whole key range after a removal, so the
+//     removed values leave the table files; the write-ahead logs that held
+//     them become obsolete and are deleted. Pebble normally recycles old
+//     log files for reuse, which would keep old bytes on disk inside a file
+//     of the folder; the file system wrapper below declines every reuse
+//     (the vfs contract allows that) so a retired log is always deleted.
+//     What is deleted is gone from the folder; whether the file system or
+//     the disk keeps the freed blocks is outside what a program can promise.
+//   - Permissions: the folder is created 0700 and every file pebble creates
+//     through the wrapper is set to 0600 right after creation, whatever the
+//     umask (the folder is already private at that moment).
+//
+// # Settings
+//
+// Units are only comparable when they were cut by the same rules. The
+// archive records its format version, the unit kind, the minimum words and
+// the maximum unit bytes it was built with, and the fingerprint of a fixed
+// probe text split under those settings. A check asking for other settings
+// is refused with the name of the setting; a program whose normalization
+// gives another probe fingerprint is refused too ("sentence normalization").
+//
+// # Cost and the alternative rejected
+//
+// An add costs one batch of about 3 + u keys for a document with u distinct
+// units, plus the flate compression of its text. A check of a document with
+// u distinct units costs u point lookups; the postings read are bounded by
+// the common-text cap. Loading a candidate costs two point reads and a
+// decompression. The alternative of a flat file of sorted (fingerprint,
+// document) pairs, rebuilt by merging on every add, was rejected: it makes
+// each add cost the whole archive, and crash safety would have to be built
+// by hand; an LSM store gives appends, atomic batches and background
+// merging for free.
+package archive
