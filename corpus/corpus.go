@@ -11,7 +11,7 @@ import (
 type Document struct {
 	ID       int    // index in the slice Read returns; documents are sorted by Path
 	Path     string // as given on the command line, joined with the relative path inside a folder
-	Format   string // "text", "markdown", "docx", "odt", "epub", "html", "pdf", "rtf" or "email"
+	Format   string // "text", "markdown", "docx", "odt", "epub", "html", "pdf", "rtf", "email" or "jsonl"
 	Encoding string // "utf-8", "utf-8-bom", "utf-16le", "utf-16be" or "windows-1252"; for other formats the source's character set
 	Size     int64  // bytes on disk (for a ZIP member: its uncompressed size)
 	// Text is the extracted text. For UTF-8 text files it is the file's bytes
@@ -88,6 +88,14 @@ type Options struct {
 	// PDFToText: the pdftotext program; "" means "pdftotext" looked up on
 	// PATH. Tests set it to check the behaviour when it is missing.
 	PDFToText string
+
+	// JSON Lines corpora (jsonl.go). JSONLID and JSONLText name the fields
+	// holding each line's id and text ("" means "id" and "text").
+	// MaxJSONLLine bounds one line, i.e. one document (0 means
+	// MaxFileSize); MaxFileSize does not apply to a .jsonl file, which is
+	// streamed.
+	JSONLID, JSONLText string
+	MaxJSONLLine       int64
 }
 
 // DefaultMaxFileSize is the size limit used when Options.MaxFileSize is 0.
@@ -111,6 +119,18 @@ func (o Options) withDefaults() (Options, error) {
 		return o, fmt.Errorf("corpus: maximum file size %d is negative", o.MaxFileSize)
 	case o.MaxFileSize == 0:
 		o.MaxFileSize = DefaultMaxFileSize
+	}
+	if o.JSONLID == "" {
+		o.JSONLID = "id"
+	}
+	if o.JSONLText == "" {
+		o.JSONLText = "text"
+	}
+	switch {
+	case o.MaxJSONLLine < 0:
+		return o, fmt.Errorf("corpus: maximum JSON Lines line size %d is negative", o.MaxJSONLLine)
+	case o.MaxJSONLLine == 0:
+		o.MaxJSONLLine = o.MaxFileSize
 	}
 	if err := o.limitDefaults(); err != nil {
 		return o, err

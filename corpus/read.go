@@ -92,6 +92,9 @@ func Read(paths []string, opt Options) ([]Document, []Skipped, error) {
 // readEntry reads one file and extracts its documents (one, or one per
 // member of a ZIP archive), or the reason there is none.
 func readEntry(e *entry, opt *Options) []part {
+	if isJSONL(e.display) { // streamed, one document per line (jsonl.go)
+		return readJSONL(e.osPath, opt)
+	}
 	limit := opt.MaxFileSize
 	if e.size > limit { // stat says so: the file is not opened
 		return []part{{reason: tooLarge(limit)}}

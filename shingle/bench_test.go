@@ -57,3 +57,44 @@ func BenchmarkSentencesCutting(b *testing.B) {
 		b.Fatalf("%d units from %d bytes: not cut", len(units), len(text))
 	}
 }
+
+// BenchmarkSentencesUniseg is BenchmarkSentences with the fast path off
+// (fast.go): every rune through uniseg, every sentence through NFKC and
+// folding. The ratio of the two is the fast path's gain.
+func BenchmarkSentencesUniseg(b *testing.B) {
+	text := benchText(400 << 10)
+	sp := slowSplitter(Options{})
+	var units []Unit
+	b.SetBytes(int64(len(text)))
+	b.ReportAllocs()
+	for b.Loop() {
+		units, _ = sp.Sentences(text, units)
+	}
+	if len(units) == 0 {
+		b.Fatal("no units")
+	}
+}
+
+// latinParagraph is invented prose with Latin-1 letters, guillemets and
+// typographic quotes, all in the fast set.
+const latinParagraph = `Le comité s’est réuni un matin gris pour examiner la proposition, qui
+avait circulé une semaine plus tôt. « Les chiffres sont-ils à jour ? » demanda
+un membre ; la présidente répondit que oui. Die Größe der Übung — etwa 3.5 km —
+überraschte niemanden, und „das Protokoll“ hält es trotzdem fest.
+
+`
+
+// BenchmarkSentencesLatin splits Latin-1 prose (fast path throughout).
+func BenchmarkSentencesLatin(b *testing.B) {
+	text := strings.Repeat(latinParagraph, (400<<10)/len(latinParagraph)+1)
+	sp := New(Options{})
+	var units []Unit
+	b.SetBytes(int64(len(text)))
+	b.ReportAllocs()
+	for b.Loop() {
+		units, _ = sp.Sentences(text, units)
+	}
+	if len(units) == 0 {
+		b.Fatal("no units")
+	}
+}

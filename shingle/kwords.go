@@ -25,7 +25,8 @@ import (
 // SkipQuoted or SkipReferences: a shingle made of the words on both sides of
 // a left-out quotation would match nothing real.
 //
-// Cost: one UAX #29 word pass, one normalization per word and one hash per
+// Cost: one word pass (the fast scanner of words.go on ASCII and Latin-1
+// text, uniseg otherwise), one normalization per word and one hash per
 // shingle over K words, into reused buffers (BenchmarkWords). There are
 // about as many shingles as words, some 20 times as many units as sentences;
 // winnowing (Options.Winnow, winnow.go) keeps about 2/(W+1) of them.
@@ -33,7 +34,11 @@ import (
 // Rejected: hashing each word and combining K word hashes with a rolling
 // polynomial. It saves the K-fold hashing but xxhash over K short words is
 // already cheap next to the word segmentation, and a polynomial of 64-bit
-// word hashes needs care to keep collisions as rare as xxhash's.
+// word hashes needs care to keep collisions as rare as xxhash's. It would
+// also change every shingle fingerprint (archives and stored results hold
+// them), and xxhash64 cannot be rolled while keeping them; so the scheme
+// stays, and the fast path only speeds up finding and normalizing words.
+// After it, xxhash is about 7% of BenchmarkWords (pprof).
 
 // UnitKind names a kind of unit.
 type UnitKind int
@@ -77,7 +82,7 @@ func (s *Splitter) Words(text string, dst []Unit) ([]Unit, Stats) {
 	}
 	orig := text
 	text, masked := s.applySkips(text, &st)
-	s.words = appendWordSpans(s.words[:0], text)
+	s.words = s.appendWordSpans(s.words[:0], text)
 	k := s.opt.ShingleWords
 
 	// Normalized words, each followed by a space, one after the other.
@@ -86,7 +91,7 @@ func (s *Splitter) Words(text string, dst []Unit) ([]Unit, Stats) {
 	for _, w := range s.words {
 		s.woff = append(s.woff, uint32(len(s.wnorm)))
 		before := len(s.wnorm)
-		s.wnorm = s.norm.append(s.wnorm, text[w.start:w.end])
+		s.wnorm = s.norm.appendPath(s.wnorm, text[w.start:w.end], s.slow)
 		if len(s.wnorm) == before {
 			// A word that normalizes to nothing (not expected, since a
 			// word holds a letter or digit) still takes its place.
@@ -121,7 +126,7 @@ func (s *Splitter) Words(text string, dst []Unit) ([]Unit, Stats) {
 	}
 	st.Words = len(s.words)
 	if masked {
-		st.Words = countWords(orig, true)
+		st.Words = s.countWords(orig)
 	}
 	return dst, st
 }
@@ -139,6 +144,20 @@ func (s *Splitter) crossesSkip(start, end int) bool {
 		}
 	}
 	return lo < len(s.skips) && s.skips[lo].start < end
+}
+
+// appendWordSpans appends the spans of text's words: by the fast scanner when
+// text is all in its set, else (or with the fast path off) by uniseg.
+func (s *Splitter) appendWordSpans(dst []wordSpan, text string) []wordSpan {
+	if !s.slow {
+		base := len(dst)
+		_, out, ok := scanWordsFast(text, true, dst, true)
+		if ok {
+			return out
+		}
+		dst = out[:base]
+	}
+	return appendWordSpans(dst, text)
 }
 
 // appendWordSpans appends the spans of text's words by the CountWords rule.

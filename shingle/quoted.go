@@ -72,14 +72,14 @@ func (s *Splitter) applySkips(text string, st *Stats) (string, bool) {
 	if s.opt.SkipReferences {
 		if at, ok := referencesStart(text); ok {
 			st.References, st.ReferencesStart = true, at
-			st.ReferencesWords = countWords(text[at:], true)
+			st.ReferencesWords = s.countWords(text[at:])
 			end = at
 		}
 	}
 	if s.opt.SkipQuoted {
 		s.skips = quotedSpans(s.skips, text[:end])
 		for _, q := range s.skips {
-			st.QuotedWords += countWords(text[q.start:q.end], true)
+			st.QuotedWords += s.countWords(text[q.start:q.end])
 		}
 	}
 	if end < len(text) {

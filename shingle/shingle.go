@@ -93,6 +93,7 @@ const MaxTextBytes = math.MaxUint32
 // per worker.
 type Splitter struct {
 	opt  Options
+	slow bool   // never take the fast path (tests compare the two; see fast.go)
 	wrap []byte // the text with single line breaks rewritten as spaces
 	norm normalizer
 	out  []byte // the normalized sentence
@@ -147,7 +148,15 @@ func (s *Splitter) Sentences(text string, dst []Unit) ([]Unit, Stats) {
 	pos := 0
 	for pos < len(seg) {
 		var n int
-		n, state = nextSentence(seg[pos:], state)
+		if s.slow {
+			n, state = nextSentence(seg[pos:], state)
+		} else if m, ok := fastFirstSentence(seg[pos:]); ok {
+			n = m
+		} else {
+			// A sentence starts here, so uniseg's state is the one it
+			// computes from the first rune (state -1); see fast.go.
+			n, _ = nextSentence(seg[pos:], -1)
+		}
 		start, end := pos, pos+n
 		pos = end
 		start, end = trimSpan(text, start, end)
@@ -173,9 +182,17 @@ func (s *Splitter) Sentences(text string, dst []Unit) ([]Unit, Stats) {
 	}
 	st.LineBreaks = lineMode && lines > 1
 	if masked {
-		st.Words = countWords(orig, true) // skipped words still count as the document's words
+		st.Words = s.countWords(orig) // skipped words still count as the document's words
 	}
 	return dst, st
+}
+
+// countWords is CountWords, on uniseg alone when the fast path is off.
+func (s *Splitter) countWords(text string) int {
+	if s.slow {
+		return countWordsUAX(text, true)
+	}
+	return countWords(text, true)
 }
 
 // nextSentence returns the length of the first UAX #29 sentence of b, and
@@ -189,7 +206,7 @@ func nextSentence(b []byte, state int) (int, int) {
 // appends its unit.
 func (s *Splitter) emit(dst []Unit, st *Stats, text string, start, end int) []Unit {
 	sentence := text[start:end]
-	words := countWords(sentence, true)
+	words := s.countWords(sentence)
 	pos := st.Words
 	st.Sentences++
 	st.Words += words
@@ -197,7 +214,7 @@ func (s *Splitter) emit(dst []Unit, st *Stats, text string, start, end int) []Un
 		st.Short++
 		return dst
 	}
-	s.out = s.norm.append(s.out[:0], sentence)
+	s.out = s.norm.appendPath(s.out[:0], sentence, s.slow)
 	return append(dst, Unit{
 		Hash:  Fingerprint(s.out),
 		Start: uint32(start),

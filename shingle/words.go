@@ -168,12 +168,35 @@ func fastClass(s string) (int, int) {
 		}
 		return wbOther, 1
 	}
-	// Common typographic punctuation of English text.
+	// Latin-1 (WordBreakProperty-15.0.0: ALetter ª µ º À-Ö Ø-ö ø-ÿ,
+	// MidLetter ·; © and ® are Extended_Pictographic, U+00AD is Format and
+	// U+0085 is Newline, all left to uniseg; the rest is Other).
+	if len(s) >= 2 && s[1]&0xC0 == 0x80 {
+		switch d := s[1]; s[0] {
+		case 0xC3:
+			if d == 0x97 || d == 0xB7 { // × ÷
+				return wbOther, 2
+			}
+			return wbLetter, 2
+		case 0xC2:
+			switch {
+			case d < 0xA0 || d == 0xA9 || d == 0xAD || d == 0xAE:
+				return wbSlow, 0
+			case d == 0xAA || d == 0xB5 || d == 0xBA:
+				return wbLetter, 2
+			case d == 0xB7:
+				return wbMidL, 2
+			}
+			return wbOther, 2
+		}
+	}
+	// Common typographic punctuation.
 	if len(s) >= 3 && s[0] == 0xE2 && s[1] == 0x80 {
 		switch s[2] {
 		case 0x98, 0x99: // ‘ ’
 			return wbMidNL, 3
-		case 0x93, 0x94, 0x9C, 0x9D: // – — “ ”
+		case 0x93, 0x94, 0x9C, 0x9D, // – — “ ”
+			0x92, 0x95, 0x9A, 0x9B, 0x9E, 0x9F, 0xA0, 0xA1, 0xA2, 0xA6: // ‒ ― ‚ ‛ „ ‟ † ‡ • …
 			return wbOther, 3
 		}
 	}
@@ -185,12 +208,20 @@ func fastClass(s string) (int, int) {
 // apply to them (WB5-WB13b). It reports false, having counted nothing
 // usable, when text holds anything else.
 func countWordsFast(text string, joinHyphens bool) (int, bool) {
+	n, _, ok := scanWordsFast(text, joinHyphens, nil, false)
+	return n, ok
+}
+
+// scanWordsFast is countWordsFast; with record set it also appends each
+// word's span to spans, as appendWordSpans would (a joined compound is one
+// span). On false, spans holds partial results and must be discarded.
+func scanWordsFast(text string, joinHyphens bool, spans []wordSpan, record bool) (int, []wordSpan, bool) {
 	n := 0
 	joined := false
 	for i := 0; i < len(text); {
 		cl, size := fastClass(text[i:])
 		if cl == wbSlow {
-			return 0, false
+			return 0, spans, false
 		}
 		if cl != wbLetter && cl != wbNum && cl != wbExt {
 			i += size
@@ -198,6 +229,7 @@ func countWordsFast(text string, joinHyphens bool) (int, bool) {
 			continue
 		}
 		// A segment starts at i: extend it by WB5-WB13b.
+		segStart := i
 		prev := cl
 		wordy := cl != wbExt
 		i += size
@@ -224,6 +256,11 @@ func countWordsFast(text string, joinHyphens bool) (int, bool) {
 		}
 		if !joined {
 			n++
+			if record {
+				spans = append(spans, wordSpan{segStart, i})
+			}
+		} else if record {
+			spans[len(spans)-1].end = i
 		}
 		joined = false
 		if !joinHyphens || i >= len(text) || text[i] != '-' {
@@ -238,5 +275,5 @@ func countWordsFast(text string, joinHyphens bool) (int, bool) {
 			}
 		}
 	}
-	return n, true
+	return n, spans, true
 }

@@ -106,7 +106,8 @@ func brownDir(t *testing.T) string {
 // segmenter on random strings over the characters it knows, mixed with a few
 // it must hand on.
 func TestFastWordCountAgrees(t *testing.T) {
-	alphabet := []rune("aZ09_:.',;-  \t\n\r\u2018\u2019\u2013\u2014\u201c\u201d!?$()\"")
+	alphabet := []rune("aZ09_:.',;-  \t\n\r\u2018\u2019\u2013\u2014\u201c\u201d!?$()\"" +
+		"éÀßÿ×÷ªµº·«»\u00a0¿\u2026\u2022")
 	rapid.Check(t, func(t *rapid.T) {
 		s := rapid.StringOf(rapid.SampledFrom(alphabet)).Draw(t, "text")
 		for _, join := range []bool{true, false} {
@@ -119,7 +120,7 @@ func TestFastWordCountAgrees(t *testing.T) {
 			}
 		}
 	})
-	for _, s := range []string{"é", "a\u0301", "\x00", "日本", "a\u200bb"} {
+	for _, s := range []string{"a\u00adb", "©", "a\u0301", "\x00", "日本", "a\u200bb", "\u0101"} {
 		if _, ok := countWordsFast(s, true); ok {
 			t.Errorf("%q: fast counter accepted a character it does not know", s)
 		}

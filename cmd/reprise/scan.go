@@ -66,6 +66,7 @@ type scanFlags struct {
 	skip        []string
 	maxFileSize string
 	limits      formatLimits
+	jsonl       jsonlFlags // --jsonl-id, --jsonl-text, --jsonl-max-line (jsonl.go)
 	quiet       bool
 	failOn      string
 	help        bool
@@ -90,6 +91,7 @@ func newScanFlagSet(f *scanFlags, stderr io.Writer) *pflag.FlagSet {
 	fs.StringArrayVar(&f.skip, "skip", nil, "do not read files or folders whose name or path matches `GLOB`; repeatable")
 	fs.StringVar(&f.maxFileSize, "max-file-size", "32MiB", "skip files larger than `SIZE` (bytes, or with k, KiB, MB, MiB, GB, GiB)")
 	f.limits.register(fs)
+	f.jsonl.register(fs)
 	fs.BoolVarP(&f.quiet, "quiet", "q", false, "no progress or warnings on standard error")
 	fs.StringVar(&f.failOn, "fail-on", "", "exit with status 1 when any pair's score reaches `SCORE` (0..1, or a percentage such as 80%)")
 	fs.BoolVarP(&f.help, "help", "h", false, "show this help")
@@ -217,6 +219,9 @@ func (f *scanFlags) config(paths []string) (cfg scanConfig, failOn float64, err 
 		return cfg, failOn, err
 	}
 	formats.Include, formats.Skip, formats.MaxFileSize = f.include, f.skip, size
+	if err = f.jsonl.apply(&formats); err != nil {
+		return cfg, failOn, err
+	}
 	if f.failOn != "" {
 		if failOn, err = parseScore(f.failOn); err != nil {
 			return cfg, -1, fmt.Errorf("--fail-on: %w", err)
