@@ -52,7 +52,11 @@ func scan(cfg scanConfig) (*report.Result, error) {
 	var templates []corpus.Document
 	if len(cfg.Exclude) > 0 {
 		var bad []corpus.Skipped
-		templates, bad, err = corpus.Read(cfg.Exclude, corpus.Options{MaxFileSize: cfg.Corpus.MaxFileSize, Jobs: cfg.Jobs})
+		// Templates are read with the scan's limits and format options, but
+		// every one named is read: --include and --skip choose documents.
+		topt := cfg.Corpus
+		topt.Include, topt.Skip = nil, nil
+		templates, bad, err = corpus.Read(cfg.Exclude, topt)
 		if err != nil {
 			return nil, err
 		}

@@ -521,6 +521,10 @@ func (g *generator) ensure(dir string, n int) (int64, error) {
 // walk. It checks the pairs sharing at least 3 against reprise's, and
 // times the comparison against pairs.Count on the same fingerprints, and
 // the whole brute force (splitting included) against reprise scan.
+// bruteMinShared is the support threshold of the brute-force comparison,
+// passed to reprise scan explicitly so the check does not depend on its default.
+const bruteMinShared = 2
+
 func bruteForce(g *generator, bin string, o options) error {
 	n := o.brute
 	dir := filepath.Join(o.work, fmt.Sprintf("corpus-%d-%d-%g", n, o.seed, o.reuse))
@@ -531,7 +535,7 @@ func bruteForce(g *generator, bin string, o options) error {
 	out := filepath.Join(o.work, "brute.json")
 	var scans []float64
 	for range o.runs {
-		t, _, _, err := timed(bin, "scan", "--format", "json", "-q", "-o", out, dir)
+		t, _, _, err := timed(bin, "scan", "--format", "json", "-q", "--min-shared", strconv.Itoa(bruteMinShared), "-o", out, dir)
 		if err != nil {
 			return err
 		}
@@ -581,7 +585,7 @@ func bruteForce(g *generator, bin string, o options) error {
 		found = map[string]int{}
 		for a := range n {
 			for c := a + 1; c < n; c++ {
-				if k := intersectCount(sets[a], sets[c]); k >= 3 {
+				if k := intersectCount(sets[a], sets[c]); k >= bruteMinShared {
 					found[filepath.ToSlash(g.path(dir, a))+"\x00"+filepath.ToSlash(g.path(dir, c))] = k
 				}
 			}
@@ -589,7 +593,7 @@ func bruteForce(g *generator, bin string, o options) error {
 		compares = append(compares, time.Since(start).Seconds())
 
 		start = time.Now()
-		if _, err := pairs.Count(pairs.Input{Docs: sets}, pairs.Options{}); err != nil {
+		if _, err := pairs.Count(pairs.Input{Docs: sets}, pairs.Options{MinShared: bruteMinShared}); err != nil {
 			return err
 		}
 		counts = append(counts, time.Since(start).Seconds())
