@@ -12,6 +12,8 @@ import (
 	"strings"
 	"syscall"
 	"testing"
+
+	"reprise/internal/refdata"
 )
 
 // writeTree creates files (relative path -> content) under root.
@@ -413,21 +415,11 @@ func TestDocumentFields(t *testing.T) {
 	}
 }
 
-// dataDir is where scripts/fetch-data.sh put the outside data.
+// dataDir is where scripts/fetch-data.sh put the outside data (see
+// internal/refdata: fails under CI, skips elsewhere when missing).
 func dataDir(t *testing.T, sub string) string {
 	t.Helper()
-	root := os.Getenv("REPRISE_DATA")
-	if root == "" {
-		root = filepath.Join("..", ".cache", "data")
-	}
-	d := filepath.Join(root, sub)
-	if _, err := os.Stat(d); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("test data missing: %v", err)
-		}
-		t.Skipf("test data missing (%v): run scripts/fetch-data.sh", err)
-	}
-	return d
+	return refdata.Path(t, sub)
 }
 
 // TestBrownSamplesReadAsText reads the Brown corpus folder: 500 sample
@@ -464,13 +456,9 @@ func TestBrownSamplesReadAsText(t *testing.T) {
 }
 
 func BenchmarkReadBrown(b *testing.B) {
-	root := os.Getenv("REPRISE_DATA")
-	if root == "" {
-		root = filepath.Join("..", ".cache", "data")
-	}
-	dir := filepath.Join(root, "brown")
-	if _, err := os.Stat(dir); err != nil {
-		b.Skip("test data missing: run scripts/fetch-data.sh")
+	dir, err := refdata.Find("brown")
+	if err != nil {
+		b.Skip(err)
 	}
 	var total int64
 	for b.Loop() {

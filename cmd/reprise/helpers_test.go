@@ -5,29 +5,17 @@ import (
 	"encoding/json"
 	"os"
 	"path/filepath"
-	"runtime"
 	"testing"
 
+	"reprise/internal/refdata"
 	"reprise/report"
 )
 
-// dataDir returns the folder scripts/fetch-data.sh fills, failing the test
-// in CI and skipping it elsewhere when sub is missing from it.
+// dataDir returns the path of sub inside the folder scripts/fetch-data.sh
+// fills, failing the test in CI and skipping it elsewhere when it is missing.
 func dataDir(t *testing.T, sub string) string {
 	t.Helper()
-	dir := os.Getenv("REPRISE_DATA")
-	if dir == "" {
-		_, file, _, _ := runtime.Caller(0)
-		dir = filepath.Join(filepath.Dir(file), "..", "..", ".cache", "data")
-	}
-	p := filepath.Join(dir, sub)
-	if _, err := os.Stat(p); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("reference data %s missing (run scripts/fetch-data.sh): %v", p, err)
-		}
-		t.Skipf("reference data %s missing: run scripts/fetch-data.sh to fetch it", p)
-	}
-	return p
+	return refdata.Path(t, sub)
 }
 
 // scanJSON runs 'reprise scan --format json ARGS...' in process and decodes

@@ -21,12 +21,13 @@
 package brown
 
 import (
-	"errors"
 	"fmt"
 	"os"
 	"path/filepath"
 	"sort"
 	"strings"
+
+	"reprise/internal/refdata"
 )
 
 // A Sample is one of the corpus's 500 text samples.
@@ -72,33 +73,16 @@ func Load(dir string) ([]Sample, error) {
 	return samples, nil
 }
 
-// ErrNoData is returned by Dir when the corpus has not been fetched.
-var ErrNoData = errors.New("brown: corpus not found; run scripts/fetch-data.sh")
+// ErrNoData is wrapped by the error of Dir when the corpus has not been fetched.
+var ErrNoData = refdata.ErrNoData
 
-// Dir returns the folder holding the fetched corpus: $REPRISE_DATA/brown when
-// that variable is set, otherwise <repo>/.cache/data/brown, where <repo> is the
-// nearest folder at or above the working directory holding go.mod. It returns
-// an error wrapping ErrNoData when the folder does not exist.
+// Dir returns the folder holding the fetched corpus (see internal/refdata:
+// $REPRISE_DATA/brown, else <module root>/.cache/data/brown), or an error
+// wrapping ErrNoData when it does not exist.
 func Dir() (string, error) {
-	data := os.Getenv("REPRISE_DATA")
-	if data == "" {
-		wd, err := os.Getwd()
-		if err != nil {
-			return "", fmt.Errorf("brown: %w", err)
-		}
-		for dir := wd; ; dir = filepath.Dir(dir) {
-			if _, err := os.Stat(filepath.Join(dir, "go.mod")); err == nil {
-				data = filepath.Join(dir, ".cache", "data")
-				break
-			}
-			if filepath.Dir(dir) == dir {
-				return "", fmt.Errorf("brown: no go.mod above %s: %w", wd, ErrNoData)
-			}
-		}
-	}
-	dir := filepath.Join(data, "brown")
-	if st, err := os.Stat(dir); err != nil || !st.IsDir() {
-		return "", fmt.Errorf("brown: %s: %w", dir, ErrNoData)
+	dir, err := refdata.Find("brown")
+	if err != nil {
+		return "", fmt.Errorf("brown: %w", err)
 	}
 	return dir, nil
 }
