@@ -101,6 +101,11 @@ type Options struct {
 // DefaultMaxFileSize is the size limit used when Options.MaxFileSize is 0.
 const DefaultMaxFileSize = 32 << 20
 
+// Effective returns o with every default applied, as Read uses it, so a
+// report can record the limits a run really had; the error is Read's for
+// invalid options.
+func (o Options) Effective() (Options, error) { return o.withDefaults() }
+
 // withDefaults validates o and fills in the defaults of its zero fields.
 // It is the one place defaults are applied.
 func (o Options) withDefaults() (Options, error) {

@@ -56,12 +56,27 @@ type Settings struct {
 	Skip         []string `json:"skip"`
 	MaxFileSize  int64    `json:"max_file_size"`
 
+	Read           *ReadSettings    `json:"read,omitempty"`            // limits and options of reading
 	Shingles       *ShingleSettings `json:"shingles,omitempty"`        // word units only
 	SkipQuoted     bool             `json:"skip_quoted,omitempty"`     // text in quotation marks gave no unit
 	SkipReferences bool             `json:"skip_references,omitempty"` // a trailing references section gave no unit
 }
 
 // ShingleSettings are the settings of word-shingle units.
+// ReadSettings are the effective limits and options documents were read with.
+type ReadSettings struct {
+	MaxContainerSize  int64   `json:"max_container_size"`  // uncompressed bytes from one container
+	MaxMemberSize     int64   `json:"max_member_size"`     // one ZIP member, and one document's text
+	MaxMembers        int     `json:"max_members"`         // entries in one archive
+	MaxRatio          int     `json:"max_ratio"`           // compression ratio of one large member
+	MaxDepth          int     `json:"max_depth"`           // HTML/XML elements, RTF groups, MIME parts
+	PDFTimeoutSeconds float64 `json:"pdf_timeout_seconds"` // pdftotext per PDF
+	SkipQuotedReplies bool    `json:"skip_quoted_replies"` // e-mail lines starting with ">" left out
+	JSONLID           string  `json:"jsonl_id"`            // JSON Lines: the id field
+	JSONLText         string  `json:"jsonl_text"`          // JSON Lines: the text field
+	MaxJSONLLine      int64   `json:"max_jsonl_line"`      // JSON Lines: bytes in one line
+}
+
 type ShingleSettings struct {
 	Words  int `json:"words"`  // K: words per shingle
 	Winnow int `json:"winnow"` // W: winnowing window (0: every shingle kept)

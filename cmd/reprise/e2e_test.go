@@ -184,3 +184,17 @@ func TestExcludedTemplateNeverCounts(t *testing.T) {
 		}
 	}
 }
+
+// TestSettingsRecordTheReadingLimits: the report's settings block holds
+// every effective setting, the reading limits included.
+func TestSettingsRecordTheReadingLimits(t *testing.T) {
+	demo := filepath.Join("..", "..", "testdata", "demo")
+	def := scanJSON(t, exitOK, demo)
+	if r := def.Settings.Read; r == nil || r.MaxDepth != 256 || r.MaxMembers != 10000 || r.JSONLText != "text" {
+		t.Errorf("default reading settings %+v, want the documented defaults (depth 256, 10000 members, text field \"text\")", r)
+	}
+	set := scanJSON(t, exitOK, "--max-depth", "77", "--skip-quoted-replies", "--pdf-timeout", "5s", demo)
+	if r := set.Settings.Read; r == nil || r.MaxDepth != 77 || !r.SkipQuotedReplies || r.PDFTimeoutSeconds != 5 {
+		t.Errorf("reading settings %+v, want max_depth 77, skip_quoted_replies, pdf_timeout_seconds 5", r)
+	}
+}

@@ -128,6 +128,7 @@ func scan(cfg scanConfig) (*report.Result, error) {
 			Include:      slices.Clone(cfg.Corpus.Include),
 			Skip:         slices.Clone(cfg.Corpus.Skip),
 			MaxFileSize:  cfg.Corpus.MaxFileSize,
+			Read:         readSettings(cfg.Corpus),
 		},
 	}
 	unitSettings(&rin.Settings, effective, cfg.Chaining)
@@ -236,4 +237,26 @@ func shingleAll(docs []corpus.Document, opt shingle.Options, jobs int) ([][]shin
 	close(next)
 	wg.Wait()
 	return units, stats
+}
+
+// readSettings records the limits and options the documents were read
+// with, defaults applied; nil if the options are invalid (Read has
+// refused them before a report is built).
+func readSettings(o corpus.Options) *report.ReadSettings {
+	e, err := o.Effective()
+	if err != nil {
+		return nil
+	}
+	return &report.ReadSettings{
+		MaxContainerSize:  e.MaxContainerBytes,
+		MaxMemberSize:     e.MaxMemberBytes,
+		MaxMembers:        e.MaxMembers,
+		MaxRatio:          e.MaxRatio,
+		MaxDepth:          e.MaxDepth,
+		PDFTimeoutSeconds: e.PDFTimeout.Seconds(),
+		SkipQuotedReplies: e.SkipQuotedReplies,
+		JSONLID:           e.JSONLID,
+		JSONLText:         e.JSONLText,
+		MaxJSONLLine:      e.MaxJSONLLine,
+	}
 }
