@@ -34,6 +34,8 @@ func TestExitCodes(t *testing.T) {
 		{"bad size is bad usage", []string{"scan", "--max-file-size", "lots", dir}, exitUsage},
 		{"bad glob is bad usage", []string{"scan", "--include", "[", dir}, exitUsage},
 		{"score above one is bad usage", []string{"scan", "--fail-on", "1.5", dir}, exitUsage},
+		{"NaN score is bad usage", []string{"scan", "--fail-on", "NaN", dir}, exitUsage},
+		{"NaN size is bad usage", []string{"scan", "--max-file-size", "NaN", dir}, exitUsage},
 		{"folder with nothing readable exits 2", []string{"scan", empty}, exitUsage},
 		{"missing path only exits 2", []string{"scan", filepath.Join(dir, "absent")}, exitUsage},
 		{"help exits 0", []string{"scan", "--help"}, exitOK},
@@ -72,7 +74,7 @@ func TestHelpExplainsEveryFlag(t *testing.T) {
 func TestOutputIsAtomicAndIdenticalAcrossJobs(t *testing.T) {
 	demo := filepath.Join("..", "..", "testdata", "demo")
 	out := t.TempDir()
-	for _, format := range []string{"text", "json", "ndjson", "csv"} {
+	for _, format := range []string{"text", "json", "ndjson", "csv", "html"} {
 		var first []byte
 		for _, jobs := range []string{"1", "2", "7"} {
 			file := filepath.Join(out, format+"-"+jobs)

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"path/filepath"
 	"runtime"
@@ -271,7 +272,8 @@ func parseSize(s string) (int64, error) {
 		}
 	}
 	n, err := strconv.ParseFloat(t, 64)
-	if err != nil || n <= 0 || n*float64(factor) > 1<<62 {
+	// !(n > 0) also refuses NaN, which no comparison accepts.
+	if err != nil || !(n > 0) || n*float64(factor) > 1<<62 {
 		return 0, fmt.Errorf("%q is not a size (try 4096, 512KiB or 32MiB)", s)
 	}
 	return int64(n * float64(factor)), nil
@@ -285,7 +287,7 @@ func parseScore(s string) (float64, error) {
 		t, scale = strings.TrimSuffix(t, "%"), 100
 	}
 	v, err := strconv.ParseFloat(t, 64)
-	if err != nil {
+	if err != nil || math.IsNaN(v) {
 		return 0, fmt.Errorf("%q is not a score (try 0.8 or 80%%)", s)
 	}
 	v /= scale
