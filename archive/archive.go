@@ -96,7 +96,10 @@ func (s Settings) compare(want Settings, dir string) error {
 // Options control Open.
 type Options struct {
 	// Settings the caller cuts units by; Open refuses an archive built with
-	// other ones (a *SettingError) and records them in a new archive.
+	// other ones (a *SettingError) and records them in a new archive. The
+	// zero Settings means the caller cuts no units (it lists, counts or
+	// removes documents): Open then compares nothing, and cannot create an
+	// archive.
 	Settings Settings
 	// Create makes a new archive when dir holds none (the folder is created 0700).
 	Create bool
@@ -119,6 +122,9 @@ type Archive struct {
 func Open(dir string, opt Options) (*Archive, error) {
 	if dir == "" {
 		return nil, errors.New("archive: no folder given")
+	}
+	if opt.Create && opt.Settings == (Settings{}) {
+		return nil, errors.New("archive: a new archive needs the settings its units are cut by")
 	}
 	fi, err := os.Stat(dir)
 	switch {
@@ -175,11 +181,13 @@ func Open(dir string, opt Options) (*Archive, error) {
 			db.Close()
 			return nil, fmt.Errorf("archive: %s: settings record: %w", dir, err)
 		}
-		if err := a.settings.compare(opt.Settings, dir); err != nil {
-			db.Close()
-			return nil, err
+		if opt.Settings != (Settings{}) {
+			if err := a.settings.compare(opt.Settings, dir); err != nil {
+				db.Close()
+				return nil, err
+			}
 		}
-	case errors.Is(err, pebble.ErrNotFound) && !opt.ReadOnly:
+	case errors.Is(err, pebble.ErrNotFound) && !opt.ReadOnly && opt.Settings != (Settings{}):
 		a.settings = opt.Settings
 		val, _ := json.Marshal(a.settings)
 		if err := db.Set(keySettings, val, pebble.Sync); err != nil {

@@ -135,6 +135,64 @@ func TestSettingsMustMatch(t *testing.T) {
 	}
 }
 
+// TestOpenComparesSettingsOnlyWhenGiven: Open refuses an archive built with
+// other settings only when the caller gives settings (it cuts units); with
+// the zero Settings (list, stats, remove) it opens any archive, read-only
+// or not, but creates none.
+func TestOpenComparesSettingsOnlyWhenGiven(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "ar")
+	a, err := Open(dir, Options{Settings: SettingsFor(shingle.Options{MinWords: 4}), Create: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := a.Add(doc("x.txt", sentences("x", 3)), testTime); err != nil {
+		t.Fatal(err)
+	}
+	if err := a.Close(); err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct {
+		name    string
+		dir     string
+		opt     Options
+		refused string // "" when Open must succeed
+	}{
+		{"other settings are refused", dir, Options{Settings: testSettings(), ReadOnly: true}, "--min-words 4, but this run uses --min-words 5"},
+		{"other settings are refused when writing", dir, Options{Settings: testSettings()}, "--min-words 4, but this run uses --min-words 5"},
+		{"the archive's settings are accepted", dir, Options{Settings: SettingsFor(shingle.Options{MinWords: 4}), ReadOnly: true}, ""},
+		{"no settings open it read-only", dir, Options{ReadOnly: true}, ""},
+		{"no settings open it for writing", dir, Options{}, ""},
+		{"no settings create no archive", filepath.Join(t.TempDir(), "new"), Options{Create: true}, "needs the settings"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			a, err := Open(c.dir, c.opt)
+			if c.refused != "" {
+				if err == nil {
+					a.Close()
+				}
+				if err == nil || !strings.Contains(err.Error(), c.refused) {
+					t.Errorf("open: %v, want an error saying %q", err, c.refused)
+				}
+				return
+			}
+			if err != nil {
+				t.Fatalf("open: %v", err)
+			}
+			defer a.Close()
+			if got := a.Settings().MinWords; got != 4 {
+				t.Errorf("the archive's settings say --min-words %d, want 4", got)
+			}
+			if n, err := a.Count(); err != nil || n != 1 {
+				t.Errorf("count %d, %v; want 1", n, err)
+			}
+		})
+	}
+	if _, err := os.Stat(filepath.Join(filepath.Dir(cases[len(cases)-1].dir), "new")); !errors.Is(err, os.ErrNotExist) {
+		t.Errorf("open without settings created a folder: %v", err)
+	}
+}
+
 func TestOneWriterAtATime(t *testing.T) {
 	dir := filepath.Join(t.TempDir(), "ar")
 	a := openTest(t, dir)

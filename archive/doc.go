@@ -79,6 +79,9 @@
 // probe text split under those settings. A check asking for other settings
 // is refused with the name of the setting; a program whose normalization
 // gives another probe fingerprint is refused too ("sentence normalization").
+// Only callers that cut units give settings to compare: listing, counting,
+// removing and verifying without a re-split open with the zero Settings,
+// and any archive opens for them whatever it was built with.
 //
 // # Cost and the alternative rejected
 //

@@ -82,7 +82,7 @@ func newArchiveFlagSet(cmd string, f *archiveFlags, stderr io.Writer) *pflag.Fla
 	fs.SortFlags = false
 	fs.Usage = func() {}
 	fs.StringVar(&f.dir, "archive", os.Getenv("REPRISE_ARCHIVE"), "the archive `DIR` (default: $REPRISE_ARCHIVE)")
-	fs.IntVar(&f.minWords, "min-words", sentenceMinWords, "a sentence with fewer words does not count (must match the archive's)")
+	fs.IntVar(&f.minWords, "min-words", sentenceMinWords, "a sentence with fewer words does not count (must match the archive's for add, check and verify --resplit)")
 	fs.BoolVarP(&f.quiet, "quiet", "q", false, "no warnings, and no line per document added (the summary line stays)")
 	fs.BoolVarP(&f.help, "help", "h", false, "show this help")
 	if cmd == "add" || cmd == "check" {
@@ -185,7 +185,14 @@ func runArchive(args []string, stdout, stderr io.Writer) int {
 	}
 	writes := cmd == "add" || cmd == "remove" || (cmd == "check" && f.add)
 	sopt := shingle.Options{MinWords: f.minWords}
-	ar, err := archive.Open(f.dir, archive.Options{Settings: archive.SettingsFor(sopt), Create: cmd == "add" || (cmd == "check" && f.add), ReadOnly: !writes})
+	// Only the commands that cut sentences compare their settings with the
+	// archive's; list, stats, remove and a plain verify cut none and open
+	// any archive (the zero Settings asks for no comparison).
+	var settings archive.Settings
+	if cutsUnits(cmd, f.resplit) {
+		settings = archive.SettingsFor(sopt)
+	}
+	ar, err := archive.Open(f.dir, archive.Options{Settings: settings, Create: cmd == "add" || (cmd == "check" && f.add), ReadOnly: !writes})
 	if err != nil {
 		return fail(err)
 	}
@@ -224,6 +231,12 @@ func runArchive(args []string, stdout, stderr io.Writer) int {
 		return fail(err)
 	}
 	return code
+}
+
+// cutsUnits reports whether the archive command splits text into sentences,
+// so that its --min-words must match the archive's.
+func cutsUnits(cmd string, resplit bool) bool {
+	return cmd == "add" || cmd == "check" || (cmd == "verify" && resplit)
 }
 
 // readBatch reads and splits the documents under paths; with ar, it leaves
@@ -637,10 +650,22 @@ func archiveStats(ar *archive.Archive, format string, stdout io.Writer) error {
 	return nil
 }
 
+// removeOne removes one archived document; tests replace it to make a
+// removal fail.
+var removeOne = (*archive.Archive).Remove
+
 // archiveRemove removes documents named by archived path or by ID, then
 // compacts the store so that their text leaves every file of the folder.
-func archiveRemove(ar *archive.Archive, targets []string, stdout io.Writer) error {
+// Every target is resolved first: when one names no archived document,
+// all such targets are reported and nothing is removed. A document named
+// twice (by path and by ID, say) is removed once. Once one removal has
+// succeeded the compaction always runs, even when a later removal fails,
+// so no removed document stays in the folder's files; the error is still
+// returned.
+func archiveRemove(ar *archive.Archive, targets []string, stdout io.Writer) (err error) {
 	var ids []uint64
+	seen := map[uint64]bool{}
+	var unknown []string
 	for _, t := range targets {
 		id, ok, err := ar.FindPath(t)
 		if err != nil {
@@ -648,29 +673,58 @@ func archiveRemove(ar *archive.Archive, targets []string, stdout io.Writer) erro
 		}
 		if !ok {
 			n, perr := strconv.ParseUint(t, 10, 64)
-			if perr != nil {
-				return fmt.Errorf("%s: no archived document has this path (or ID); see 'reprise archive list'", t)
+			if perr == nil {
+				if _, merr := ar.Meta(n); merr == nil {
+					id, ok = n, true
+				}
 			}
-			if _, err := ar.Meta(n); err != nil {
-				return fmt.Errorf("%s: no archived document has this path or ID", t)
-			}
-			id = n
 		}
-		ids = append(ids, id)
+		switch {
+		case !ok:
+			if !slices.Contains(unknown, t) {
+				unknown = append(unknown, t)
+			}
+		case !seen[id]:
+			seen[id] = true
+			ids = append(ids, id)
+		}
 	}
+	if len(unknown) > 0 {
+		return fmt.Errorf("no archived document has the path or ID %s (see 'reprise archive list'); nothing was removed",
+			quoteList(unknown))
+	}
+	removed := 0
+	defer func() {
+		if removed == 0 {
+			return
+		}
+		if eerr := ar.Erase(context.Background()); eerr != nil {
+			err = errors.Join(err, eerr)
+			return
+		}
+		fmt.Fprintln(stdout, "compacted: the removed text is gone from the archive's files")
+	}()
+	var errs []error
 	for _, id := range ids {
 		d, err := ar.Meta(id)
+		if err == nil {
+			err = removeOne(ar, id)
+		}
 		if err != nil {
-			return err
+			errs = append(errs, fmt.Errorf("document %d: %w", id, err))
+			continue
 		}
-		if err := ar.Remove(id); err != nil {
-			return err
-		}
+		removed++
 		fmt.Fprintf(stdout, "removed    %d\t%s\n", id, d.Path)
 	}
-	if err := ar.Erase(context.Background()); err != nil {
-		return err
+	return errors.Join(errs...)
+}
+
+// quoteList joins quoted strings with commas.
+func quoteList(s []string) string {
+	q := make([]string, len(s))
+	for i, x := range s {
+		q[i] = strconv.Quote(x)
 	}
-	fmt.Fprintln(stdout, "compacted: the removed text is gone from the archive's files")
-	return nil
+	return strings.Join(q, ", ")
 }

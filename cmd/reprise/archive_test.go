@@ -4,16 +4,20 @@ import (
 	"bufio"
 	"bytes"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"math/rand/v2"
 	"os"
 	"os/exec"
 	"path/filepath"
+	"slices"
+	"strconv"
 	"strings"
 	"syscall"
 	"testing"
 	"time"
 
+	"reprise/archive"
 	"reprise/report"
 )
 
@@ -186,5 +190,226 @@ func TestArchiveSurvivesSIGKILL(t *testing.T) {
 	gj, _ := json.Marshal(got)
 	if !bytes.Equal(wj, gj) {
 		t.Errorf("check of the crashed-and-resumed archive differs from the uninterrupted one")
+	}
+}
+
+// archivedDocs adds the documents (name → text) under a fresh folder to a
+// fresh archive built with --min-words minWords, and returns the archive's
+// folder and each name's archived path and ID.
+func archivedDocs(t *testing.T, minWords int, texts map[string]string) (dir string, paths map[string]string, ids map[string]string) {
+	t.Helper()
+	tmp := t.TempDir()
+	for name, text := range texts {
+		writeFile(t, filepath.Join(tmp, "docs", name), text)
+	}
+	dir = filepath.Join(tmp, "ar")
+	if code, _, e := runCLI(t, "archive", "--archive", dir, "add", "-q", "--min-words", fmt.Sprint(minWords), filepath.Join(tmp, "docs")); code != 0 {
+		t.Fatalf("add: exit %d: %s", code, e)
+	}
+	code, out, e := runCLI(t, "archive", "--archive", dir, "list", "--format", "json", "--min-words", fmt.Sprint(minWords))
+	if code != 0 {
+		t.Fatalf("list: exit %d: %s", code, e)
+	}
+	var listed []struct {
+		ID   uint64 `json:"id"`
+		Path string `json:"path"`
+	}
+	if err := json.Unmarshal([]byte(out), &listed); err != nil {
+		t.Fatalf("list: %v\n%s", err, out)
+	}
+	paths, ids = map[string]string{}, map[string]string{}
+	for _, d := range listed {
+		name := filepath.Base(d.Path)
+		paths[name], ids[name] = d.Path, fmt.Sprint(d.ID)
+	}
+	if len(paths) != len(texts) {
+		t.Fatalf("list shows %d documents, want %d:\n%s", len(paths), len(texts), out)
+	}
+	return dir, paths, ids
+}
+
+// pathWord is the word a test document's name starts with, found in the
+// archive's files only in its path (table files compress their blocks, so
+// a whole path may be stored partly as back-references to another one).
+func pathWord(name string) string { return strings.Split(name, "-")[0] }
+
+// filesHolding returns the files of dir whose bytes contain s.
+func filesHolding(t *testing.T, dir, s string) []string {
+	t.Helper()
+	entries, err := os.ReadDir(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var found []string
+	for _, e := range entries {
+		if e.IsDir() {
+			continue
+		}
+		b, err := os.ReadFile(filepath.Join(dir, e.Name()))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if bytes.Contains(b, []byte(s)) {
+			found = append(found, e.Name())
+		}
+	}
+	return found
+}
+
+func removeTestTexts() map[string]string {
+	text := func(tag string) string {
+		var b strings.Builder
+		for i := range 6 {
+			fmt.Fprintf(&b, "The %s harbour ledger entry %d records a crate of lamp oil for the night watch. ", tag, i)
+		}
+		return b.String()
+	}
+	return map[string]string{"quillfeather-a.txt": text("quillfeather"), "marrowby-b.txt": text("marrowby")}
+}
+
+// TestArchiveRemoveResolvesTargetsOnceAndAlwaysErases: remove resolves and
+// de-duplicates its targets before removing anything, names every unknown
+// one (and then removes nothing), and once a document is removed always
+// compacts, even when a later removal fails, so the removed path is in no
+// file of the archive folder; a failure still gives exit status 2.
+func TestArchiveRemoveResolvesTargetsOnceAndAlwaysErases(t *testing.T) {
+	const a, b = "quillfeather-a.txt", "marrowby-b.txt"
+	cases := []struct {
+		name    string
+		targets func(paths, ids map[string]string) []string
+		failOn  string // the document whose removal is made to fail
+		code    int
+		gone    []string // removed: listed no more, and in no file
+		kept    []string // still listed
+		stderr  []string // in the error message
+	}{
+		{
+			name:    "a document named by its path and then its ID is removed once and erased",
+			targets: func(p, id map[string]string) []string { return []string{p[a], id[a]} },
+			gone:    []string{a}, kept: []string{b},
+		},
+		{
+			name:    "the same ID twice is removed once",
+			targets: func(p, id map[string]string) []string { return []string{id[a], id[a]} },
+			gone:    []string{a}, kept: []string{b},
+		},
+		{
+			name:    "two documents and the first again are both removed",
+			targets: func(p, id map[string]string) []string { return []string{p[a], p[b], id[a], p[a]} },
+			gone:    []string{a, b},
+		},
+		{
+			name:    "unknown targets are all named and nothing is removed",
+			targets: func(p, id map[string]string) []string { return []string{p[a], "no/such-file.txt", "9999", p[b]} },
+			code:    exitUsage, kept: []string{a, b},
+			stderr: []string{`"no/such-file.txt"`, `"9999"`, "nothing was removed"},
+		},
+		{
+			name:    "a failed removal after a successful one still erases the removed document",
+			targets: func(p, id map[string]string) []string { return []string{p[a], p[b]} },
+			failOn:  b,
+			code:    exitUsage, gone: []string{a}, kept: []string{b},
+			stderr: []string{"injected failure"},
+		},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			dir, paths, ids := archivedDocs(t, sentenceMinWords, removeTestTexts())
+			for _, name := range append(slices.Clone(c.gone), c.kept...) {
+				if len(filesHolding(t, dir, pathWord(name))) == 0 {
+					t.Fatalf("control: before removal no file of the archive holds the path of %s", name)
+				}
+			}
+			if c.failOn != "" {
+				failID, _ := strconv.ParseUint(ids[c.failOn], 10, 64)
+				removeOne = func(ar *archive.Archive, id uint64) error {
+					if id == failID {
+						return errors.New("injected failure")
+					}
+					return ar.Remove(id)
+				}
+				defer func() { removeOne = (*archive.Archive).Remove }()
+			}
+			code, out, e := runCLI(t, append([]string{"archive", "--archive", dir, "remove"}, c.targets(paths, ids)...)...)
+			if code != c.code {
+				t.Errorf("exit %d, want %d\nstdout:\n%s\nstderr:\n%s", code, c.code, out, e)
+			}
+			for _, s := range c.stderr {
+				if !strings.Contains(e, s) {
+					t.Errorf("stderr %q does not say %q", e, s)
+				}
+			}
+			if n := strings.Count("\n"+out, "\nremoved "); n != len(c.gone) {
+				t.Errorf("%d 'removed' lines, want %d:\n%s", n, len(c.gone), out)
+			}
+			if erased := strings.Contains(out, "compacted:"); erased != (len(c.gone) > 0) {
+				t.Errorf("compacted: %v, want %v:\n%s", erased, len(c.gone) > 0, out)
+			}
+			for _, name := range c.gone {
+				if f := filesHolding(t, dir, pathWord(name)); len(f) > 0 {
+					t.Errorf("the removed %s is still in %v", name, f)
+				}
+			}
+			_, list, _ := runCLI(t, "archive", "--archive", dir, "list")
+			for _, name := range c.gone {
+				if strings.Contains(list, paths[name]) {
+					t.Errorf("the removed %s is still listed", name)
+				}
+			}
+			for _, name := range c.kept {
+				if !strings.Contains(list, paths[name]) {
+					t.Errorf("%s should still be listed:\n%s", name, list)
+				}
+			}
+			if code, out, e := runCLI(t, "archive", "--archive", dir, "verify", "--resplit"); code != 0 {
+				t.Errorf("verify after remove: exit %d\n%s%s", code, out, e)
+			}
+		})
+	}
+}
+
+// TestArchiveOnlyCommandsThatCutSentencesCompareMinWords: an archive built
+// with --min-words 4 is refused by the commands that split text with
+// another --min-words (add, check, verify --resplit), and opened by those
+// that cut no sentences (list, stats, remove, verify) whatever --min-words
+// they are given.
+func TestArchiveOnlyCommandsThatCutSentencesCompareMinWords(t *testing.T) {
+	texts := removeTestTexts()
+	dir, paths, _ := archivedDocs(t, 4, texts)
+	newDoc := filepath.Join(t.TempDir(), "new.txt")
+	writeFile(t, newDoc, texts["marrowby-b.txt"])
+	const refusal = "was built with --min-words 4, but this run uses --min-words 5"
+	cases := []struct {
+		name    string
+		args    []string
+		refused bool
+	}{
+		{"check with another --min-words is refused", []string{"check", newDoc}, true},
+		{"add with another --min-words is refused", []string{"add", newDoc}, true},
+		{"verify --resplit with another --min-words is refused", []string{"verify", "--resplit"}, true},
+		{"check with the archive's --min-words works", []string{"check", "--min-words", "4", newDoc}, false},
+		{"verify --resplit with the archive's --min-words works", []string{"verify", "--resplit", "--min-words", "4"}, false},
+		{"list works with any --min-words", []string{"list"}, false},
+		{"list --format json works with any --min-words", []string{"list", "--format", "json", "--min-words", "9"}, false},
+		{"stats works with any --min-words", []string{"stats"}, false},
+		{"verify without --resplit works with any --min-words", []string{"verify"}, false},
+		{"remove works with any --min-words", []string{"remove", paths["quillfeather-a.txt"]}, false},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			code, out, e := runCLI(t, append([]string{"archive", "--archive", dir}, c.args...)...)
+			if c.refused {
+				if code != exitUsage || !strings.Contains(e, refusal) {
+					t.Errorf("exit %d, stderr %q; want exit %d and %q", code, e, exitUsage, refusal)
+				}
+				return
+			}
+			if code != exitOK {
+				t.Errorf("exit %d, want 0\nstdout:\n%s\nstderr:\n%s", code, out, e)
+			}
+		})
+	}
+	if code, out, _ := runCLI(t, "archive", "--archive", dir, "stats"); code != 0 || !strings.Contains(out, "--min-words 4") {
+		t.Errorf("stats after the commands: exit %d, want the archive's own --min-words 4:\n%s", code, out)
 	}
 }
