@@ -1,14 +1,17 @@
 package main
 
 import (
+	"cmp"
 	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"path/filepath"
 	"slices"
 	"strings"
+	"unicode"
 
 	"github.com/spf13/pflag"
 
@@ -33,7 +36,8 @@ their lines: what the copy dropped or changed.
 
 Takes every flag of 'reprise scan' as well (--min-shared, --min-words,
 --exclude, --format, ...). The common-text cap counts reference and new
-documents together.
+documents together; with --master and no --max-docs there is none (the
+copies share most of the master, which must not become common text).
 
 Examples:
   reprise compare --against published/ submissions/
@@ -75,13 +79,25 @@ func runCompare(args []string, stdout, stderr io.Writer) int {
 	if len(refs) == 0 {
 		return fail(errors.New("no reference set: give --against PATH or --master FILE"))
 	}
-	news := fs.Args()
-	cfg, failOn, err := f.config(slices.Concat(refs, news))
+	// The new documents are the positional paths and those --files-from
+	// lists: every path config returns after the references.
+	cfg, failOn, err := f.config(slices.Concat(refs, fs.Args()))
 	if err != nil {
 		return fail(err)
 	}
-	if len(news) == 0 {
-		return fail(errors.New("no PATH of new documents given"))
+	if len(cfg.Paths) <= len(refs) {
+		return fail(errors.New("no PATH of new documents given (as arguments or with --files-from)"))
+	}
+	// With --master the copies share most of the master's sentences, so the
+	// default cap (half the documents) would call the whole master common
+	// text as soon as more than half the documents are copies. Unless
+	// --max-docs is given, the cap is lifted: it is the number of documents,
+	// so no unit is common text (the engine gets no cap, and the report
+	// records the number of documents read).
+	liftCap := len(masters) > 0 && !fs.Changed("max-docs")
+	if liftCap {
+		cfg.Pairs.MaxDocs = math.MaxInt32
+		cfg.MaxDocsBy = "--master without --max-docs: the number of documents (no sentence is common text)"
 	}
 	if len(masters) > 0 && f.format != "text" && f.format != "ndjson" {
 		return fail(fmt.Errorf("--master coverage is written in the text and ndjson formats, not %s", f.format))
@@ -103,12 +119,24 @@ func runCompare(args []string, stdout, stderr io.Writer) int {
 		prog = &progress{w: stderr}
 		cfg.Progress = prog.show
 	}
+	// The masters' documents are taken from the run itself, so their text
+	// is the one the passages' offsets point into (same read options, same
+	// templates set aside).
+	masterDocs := make([][]corpus.Document, len(masters))
 	cfg.KeepPairs = func(docs []corpus.Document, eng *pairs.Result) {
 		isRef := make([]bool, len(docs))
 		for i, d := range docs {
 			isRef[i] = underAny(d.Path, refs)
+			for k, m := range masters {
+				if underAny(d.Path, []string{m}) {
+					masterDocs[k] = append(masterDocs[k], d)
+				}
+			}
 		}
 		keepCrossPairs(eng, isRef, within, nil)
+		if liftCap {
+			eng.MaxDocs = max(2, len(docs))
+		}
 	}
 	res, err := scan(cfg)
 	prog.done()
@@ -119,8 +147,8 @@ func runCompare(args []string, stdout, stderr io.Writer) int {
 		return fail(err)
 	}
 	var cover []masterCoverage
-	for _, m := range masters {
-		c, err := masterReport(m, res, refs, cfg.Shingle)
+	for k, m := range masters {
+		c, err := masterReport(m, masterDocs[k], res, refs, cfg.Shingle)
 		if err != nil {
 			return fail(err)
 		}
@@ -153,15 +181,32 @@ func runCompare(args []string, stdout, stderr io.Writer) int {
 	return exitOK
 }
 
-// underAny reports whether path is one of roots or inside one (documents
-// are named by the path as given joined with the path inside the folder).
+// underAny reports whether path is one of roots or inside one. Documents
+// are named by the path as given joined with the path inside a folder
+// (root/a.txt), a ZIP archive (root!/a.txt) or a JSON Lines file
+// (root#id). The last two count only when the root is a file, and a
+// root#id that is itself a file on disk is not inside the root.
 func underAny(path string, roots []string) bool {
 	for _, r := range roots {
 		r = strings.TrimSuffix(filepath.ToSlash(r), "/")
 		p := filepath.ToSlash(path)
-		if p == r || strings.HasPrefix(p, r+"/") || filepath.Clean(p) == filepath.Clean(r) ||
-			strings.HasPrefix(filepath.Clean(p), filepath.Clean(r)+"/") {
-			return true
+		for _, pr := range [][2]string{{p, r}, {filepath.ToSlash(filepath.Clean(p)), filepath.ToSlash(filepath.Clean(r))}} {
+			p, r := pr[0], pr[1]
+			if p == r || strings.HasPrefix(p, r+"/") {
+				return true
+			}
+			if !strings.HasPrefix(p, r+"!/") && !strings.HasPrefix(p, r+"#") {
+				continue
+			}
+			if st, err := os.Stat(filepath.FromSlash(r)); err != nil || st.IsDir() {
+				continue
+			}
+			if strings.HasPrefix(p, r+"!/") {
+				return true
+			}
+			if _, err := os.Lstat(filepath.FromSlash(p)); errors.Is(err, os.ErrNotExist) {
+				return true
+			}
 		}
 	}
 	return false
@@ -310,9 +355,11 @@ type masterCoverage struct {
 	Copy     string           `json:"copy"`
 	Coverage float64          `json:"coverage"` // share of the master's words inside passages shared with the copy
 	Missing  []missingPassage `json:"missing"`  // master passages absent from the copy, in order
+	unitName string           // "sentences" or "shingles", for the text format
 }
 
-// missingPassage is a run of consecutive master sentences the copy lacks.
+// missingPassage is a run of consecutive master units (sentences, or word
+// shingles with --unit words) the copy lacks.
 type missingPassage struct {
 	Start int    `json:"start"` // byte offsets into the master's extracted text
 	End   int    `json:"end"`
@@ -322,29 +369,37 @@ type missingPassage struct {
 	Text  string `json:"text"`
 }
 
-// masterReport reads the master again (the report holds passages, not
-// texts), splits it, and for every new document lists the master's
-// sentences outside the passages the two share.
-func masterReport(path string, res *report.Result, refs []string, sopt shingle.Options) ([]masterCoverage, error) {
-	docs, bad, err := corpus.Read([]string{path}, corpus.Options{})
-	if err != nil {
-		return nil, err
-	}
-	if len(bad) > 0 || len(docs) != 1 {
+// masterReport lists, for every new document, the master's units outside
+// the passages the two share. docs are the run's documents under the
+// master's path (the report holds passages, not texts); the master is split
+// with the run's options, so its units are the run's and their offsets
+// point into the text the passages do.
+func masterReport(path string, docs []corpus.Document, res *report.Result, refs []string, sopt shingle.Options) ([]masterCoverage, error) {
+	if len(docs) != 1 {
 		reason := "not one document"
-		if len(bad) > 0 {
-			reason = bad[0].Reason
+		if len(docs) == 0 {
+			reason = "not read as a document in this run"
+			for _, s := range res.Skipped {
+				if underAny(s.Path, []string{path}) {
+					reason = s.Reason
+					break
+				}
+			}
 		}
 		return nil, fmt.Errorf("--master %s: %s", path, reason)
 	}
 	m := docs[0]
-	units, _ := shingle.New(sopt).Sentences(m.Text, nil)
+	units, _ := shingle.New(sopt).Units(m.Text, nil)
+	unitName := "sentences"
+	if sopt.Unit == shingle.UnitWords {
+		unitName = "shingles"
+	}
 	var out []masterCoverage
 	for _, d := range res.Documents {
 		if underAny(d.Path, refs) {
 			continue
 		}
-		c := masterCoverage{Type: "master", Master: m.Path, Copy: d.Path, Missing: []missingPassage{}}
+		c := masterCoverage{Type: "master", Master: m.Path, Copy: d.Path, Missing: []missingPassage{}, unitName: unitName}
 		var covered [][2]int
 		for _, p := range res.Pairs {
 			switch {
@@ -375,7 +430,7 @@ func masterReport(path string, res *report.Result, refs []string, sopt shingle.O
 				continue
 			}
 			if run == nil {
-				c.Missing = append(c.Missing, missingPassage{Start: int(u.Start), Line: 1 + strings.Count(m.Text[:u.Start], "\n")})
+				c.Missing = append(c.Missing, missingPassage{Start: int(u.Start)})
 				run = &c.Missing[len(c.Missing)-1]
 			}
 			run.End = int(u.End)
@@ -383,6 +438,25 @@ func masterReport(path string, res *report.Result, refs []string, sopt shingle.O
 		}
 		for k := range c.Missing {
 			g := &c.Missing[k]
+			// Word shingles overlap: a missing run may begin or end inside a
+			// shared passage. Only the text outside the passages is missing.
+			// The text left then starts after the passage's last word: at its
+			// punctuation and space, which are skipped.
+			clipped := false
+			for _, s := range covered {
+				if s[0] <= g.Start && g.Start < s[1] && s[1] < g.End {
+					g.Start, clipped = s[1], true
+				}
+				if g.Start < s[0] && s[0] < g.End && g.End <= s[1] {
+					g.End = s[0]
+				}
+			}
+			if clipped {
+				if k := strings.IndexFunc(m.Text[g.Start:g.End], func(r rune) bool { return unicode.IsLetter(r) || unicode.IsDigit(r) }); k > 0 {
+					g.Start += k
+				}
+			}
+			g.Line = 1 + strings.Count(m.Text[:g.Start], "\n")
 			g.Text = m.Text[g.Start:g.End]
 			g.Words = shingle.CountWords(g.Text)
 		}
@@ -419,7 +493,7 @@ func writeMasterCoverage(w io.Writer, format string, cover []masterCoverage) err
 				}
 				text = text[:cut] + "..."
 			}
-			fmt.Fprintf(w, "    line %d (%d sentences): %s\n", g.Line, g.Units, text)
+			fmt.Fprintf(w, "    line %d (%d %s): %s\n", g.Line, g.Units, cmp.Or(c.unitName, "sentences"), text)
 		}
 	}
 	return nil

@@ -1,8 +1,11 @@
 package main
 
 import (
+	"archive/zip"
 	"bufio"
+	"bytes"
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
 	"slices"
@@ -87,79 +90,85 @@ func TestCompareRules(t *testing.T) {
 	}
 }
 
+// TestCompareMasterCoverage: every master sentence is either in a passage
+// the copy shares or in a missing passage, and a copy's coverage is the
+// master side's coverage of its pair, on the demo and with many copies.
 func TestCompareMasterCoverage(t *testing.T) {
-	code, out, e := runCLI(t, "compare", "--format", "ndjson", "--master", demoSource, demoDir)
-	if code != 0 {
-		t.Fatalf("exit %d: %s", code, e)
+	master, copies := writeMasterAndCopies(t, 12)
+	cases := []struct {
+		name   string
+		master string
+		news   string
+		copies int
+		check  func(t *testing.T, c masterCoverage, kept int)
+	}{
+		{"the demo article against the 24 essays", demoSource, demoDir, 24,
+			func(t *testing.T, c masterCoverage, kept int) {
+				if slices.Contains(copiersOfTheSource, filepath.Base(c.Copy)) {
+					// The copiers take sentences 6–10 (five) and lack the rest.
+					if kept != 5 || len(c.Missing) != 2 {
+						t.Errorf("%s: kept %d sentences in %d gaps, want 5 kept and 2 gaps", c.Copy, kept, len(c.Missing))
+					}
+				}
+			}},
+		{"a master and 12 copies, each with one word changed: each lacks only its changed sentence", master, copies, 12,
+			func(t *testing.T, c masterCoverage, kept int) {
+				var k int
+				if _, err := fmt.Sscanf(filepath.Base(c.Copy), "copy-%02d.txt", &k); err != nil {
+					t.Fatal(err)
+				}
+				if kept != len(masterSentences)-1 || len(c.Missing) != 1 || c.Missing[0].Text != masterSentences[k] || c.Missing[0].Line != k+1 {
+					t.Errorf("%s: kept %d sentences, missing %+v; want all but sentence %d", c.Copy, kept, c.Missing, k+1)
+				}
+			}},
 	}
-	var masterUnits int
-	pairs := map[string]report.Pair{}
-	var cover []masterCoverage
-	nSources := 0
-	sc := bufio.NewScanner(strings.NewReader(out))
-	sc.Buffer(nil, 1<<24)
-	for sc.Scan() {
-		var line struct {
-			Type string `json:"type"`
-		}
-		json.Unmarshal(sc.Bytes(), &line)
-		switch line.Type {
-		case "document":
-			var d report.Document
-			json.Unmarshal(sc.Bytes(), &d)
-			if strings.Contains(d.Path, "demo-sources") {
-				masterUnits = d.Units
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			r := compareNDJSON(t, "--master", tc.master, tc.news)
+			masterUnits := r.docs[tc.master].Units
+			pairs := map[string]report.Pair{}
+			for _, p := range r.pairs {
+				if p.A == tc.master {
+					pairs[p.B] = p
+				} else {
+					pairs[p.A] = p
+				}
 			}
-		case "pair":
-			var p report.Pair
-			json.Unmarshal(sc.Bytes(), &p)
-			pairs[filepath.Base(p.B)] = p
-		case "sources":
-			var src sources
-			json.Unmarshal(sc.Bytes(), &src)
-			nSources++
-			if len(src.Sources) != 1 || !strings.Contains(src.Sources[0].Path, "demo-sources") || src.Reused == 0 {
-				t.Errorf("sources of %s: %+v", src.Document, src)
+			if tc.master == demoSource {
+				if len(r.sources) != len(copiersOfTheSource) {
+					t.Errorf("%d documents with sources, want the %d copiers", len(r.sources), len(copiersOfTheSource))
+				}
+				for _, src := range r.sources {
+					if len(src.Sources) != 1 || !strings.Contains(src.Sources[0].Path, "demo-sources") || src.Reused == 0 {
+						t.Errorf("sources of %s: %+v", src.Document, src)
+					}
+				}
 			}
-		case "master":
-			var c masterCoverage
-			if err := json.Unmarshal(sc.Bytes(), &c); err != nil {
-				t.Fatal(err)
+			if masterUnits == 0 || len(r.cover) != tc.copies {
+				t.Fatalf("master has %d units; %d copies covered, want %d", masterUnits, len(r.cover), tc.copies)
 			}
-			cover = append(cover, c)
-		}
-	}
-	if nSources != len(copiersOfTheSource) {
-		t.Errorf("%d documents with sources, want the %d copiers", nSources, len(copiersOfTheSource))
-	}
-	if masterUnits == 0 || len(cover) != 24 {
-		t.Fatalf("master has %d units; %d copies covered, want the 24 essays", masterUnits, len(cover))
-	}
-	for _, c := range cover {
-		p, paired := pairs[filepath.Base(c.Copy)]
-		missing, kept := 0, 0
-		for k, g := range c.Missing {
-			missing += g.Units
-			if k > 0 && g.Start < c.Missing[k-1].End {
-				t.Errorf("%s: missing passages out of order", c.Copy)
+			for _, c := range r.cover {
+				p, paired := pairs[c.Copy]
+				missing, kept := 0, 0
+				for k, g := range c.Missing {
+					missing += g.Units
+					if k > 0 && g.Start < c.Missing[k-1].End {
+						t.Errorf("%s: missing passages out of order", c.Copy)
+					}
+				}
+				for _, g := range p.Passages {
+					kept += g.Units
+				}
+				// Every master sentence is either in a shared passage or missing.
+				if kept+missing != masterUnits {
+					t.Errorf("%s: %d kept + %d missing sentences, the master has %d", c.Copy, kept, missing, masterUnits)
+				}
+				if paired != (c.Coverage > 0) || (paired && c.Coverage != coverageOf(&p, tc.master)) {
+					t.Errorf("%s: coverage %.4f, pair %v with master-side coverage %.4f", c.Copy, c.Coverage, paired, coverageOf(&p, tc.master))
+				}
+				tc.check(t, c, kept)
 			}
-		}
-		for _, g := range p.Passages {
-			kept += g.Units
-		}
-		// Every master sentence is either in a shared passage or missing.
-		if kept+missing != masterUnits {
-			t.Errorf("%s: %d kept + %d missing sentences, the master has %d", c.Copy, kept, missing, masterUnits)
-		}
-		if paired != (c.Coverage > 0) || (paired && c.Coverage != p.CoverageA) {
-			t.Errorf("%s: coverage %.4f, pair %v with master-side coverage %.4f", c.Copy, c.Coverage, paired, p.CoverageA)
-		}
-		if slices.Contains(copiersOfTheSource, filepath.Base(c.Copy)) {
-			// The copiers take sentences 6–10 (five) and lack the rest.
-			if kept != 5 || len(c.Missing) != 2 {
-				t.Errorf("%s: kept %d sentences in %d gaps, want 5 kept and 2 gaps", c.Copy, kept, len(c.Missing))
-			}
-		}
+		})
 	}
 	if code, _, e := runCLI(t, "compare", "--format", "csv", "--master", demoSource, demoDir); code != exitUsage || !strings.Contains(e, "--master") {
 		t.Errorf("--master with csv: exit %d, %q", code, e)
@@ -253,5 +262,297 @@ func TestArchiveCheckSkipsTheDocumentItself(t *testing.T) {
 	}
 	if !slices.Equal(got, []string{"tyler-boone.txt ~ ethan-kowalczyk.txt"}) {
 		t.Errorf("pairs %q, want only the archived Tyler with Ethan", got)
+	}
+}
+
+// masterSentences is an invented policy of 14 sentences, one a line.
+var masterSentences = []string{
+	"Every visitor signs the register at the front desk before entering the workshop.",
+	"Safety glasses are worn by everyone standing within three metres of a running machine.",
+	"The band saw is switched off and unplugged before its blade is changed or cleaned.",
+	"Offcuts longer than a forearm go to the rack by the north door for reuse.",
+	"Sawdust is swept up at the end of every session and never blown away with air.",
+	"Members who notice a blunt chisel report it in the maintenance book the same day.",
+	"Children under twelve may use hand tools only with an adult member beside them.",
+	"The dust extractor runs whenever the lathe, the planer or the sander is in use.",
+	"Nobody works alone in the building after the caretaker has locked the gate.",
+	"Flammable finishes stay in the steel cabinet with its door closed and latched.",
+	"A member who cuts themselves washes the wound and records it in the incident log.",
+	"The first aid kit is checked on the first Monday of each month by the duty steward.",
+	"Borrowed clamps are returned to the wall before the borrower leaves the workshop.",
+	"Questions about these rules go to the committee through the letterbox in the hall.",
+}
+
+// writeMasterAndCopies writes the master and n copies, copy k with one word
+// of sentence k changed; it returns the master's path and the copies' folder.
+func writeMasterAndCopies(t *testing.T, n int) (master, copies string) {
+	t.Helper()
+	dir := t.TempDir()
+	master = filepath.Join(dir, "master.txt")
+	writeFile(t, master, strings.Join(masterSentences, "\n")+"\n")
+	copies = filepath.Join(dir, "copies")
+	for k := range n {
+		s := slices.Clone(masterSentences)
+		w := strings.Fields(s[k])
+		w[3] = "quite"
+		s[k] = strings.Join(w, " ")
+		writeFile(t, filepath.Join(copies, fmt.Sprintf("copy-%02d.txt", k)), strings.Join(s, "\n")+"\n")
+	}
+	return master, copies
+}
+
+// compareOutput is one ndjson compare report, every line decoded.
+type compareOutput struct {
+	settings report.Settings
+	docs     map[string]report.Document // by path
+	pairs    []report.Pair
+	sources  []sources
+	cover    []masterCoverage
+}
+
+// compareNDJSON runs compare with --format ndjson and decodes every line,
+// failing the test on any line that does not decode.
+func compareNDJSON(t *testing.T, args ...string) *compareOutput {
+	t.Helper()
+	code, out, e := runCLI(t, slices.Concat([]string{"compare", "--format", "ndjson", "-q"}, args)...)
+	if code != 0 {
+		t.Fatalf("compare %v: exit %d: %s", args, code, e)
+	}
+	r := &compareOutput{docs: map[string]report.Document{}}
+	sc := bufio.NewScanner(strings.NewReader(out))
+	sc.Buffer(nil, 1<<24)
+	for sc.Scan() {
+		var line struct {
+			Type     string          `json:"type"`
+			Settings report.Settings `json:"settings"`
+		}
+		b := sc.Bytes()
+		var err error
+		if err = json.Unmarshal(b, &line); err != nil {
+			t.Fatalf("compare %v: %v: %s", args, err, b)
+		}
+		switch line.Type {
+		case "report":
+			r.settings = line.Settings
+		case "document":
+			var d report.Document
+			if err = json.Unmarshal(b, &d); err == nil {
+				r.docs[d.Path] = d
+			}
+		case "pair":
+			var p report.Pair
+			if err = json.Unmarshal(b, &p); err == nil {
+				r.pairs = append(r.pairs, p)
+			}
+		case "sources":
+			var s sources
+			if err = json.Unmarshal(b, &s); err == nil {
+				r.sources = append(r.sources, s)
+			}
+		case "master":
+			var c masterCoverage
+			if err = json.Unmarshal(b, &c); err == nil {
+				r.cover = append(r.cover, c)
+			}
+		}
+		if err != nil {
+			t.Fatalf("compare %v: %s line: %v: %s", args, line.Type, err, b)
+		}
+	}
+	if err := sc.Err(); err != nil {
+		t.Fatal(err)
+	}
+	return r
+}
+
+// TestCompareMasterLiftsTheDefaultCap: with --master and no --max-docs no
+// sentence is common text (the cap is the number of documents), so a master
+// with more copies than half the documents still pairs with each; a cap set
+// with --max-docs, and the cap of --against alone, stay as they were.
+func TestCompareMasterLiftsTheDefaultCap(t *testing.T) {
+	master, copies := writeMasterAndCopies(t, 12)
+	cases := []struct {
+		name    string
+		args    []string
+		maxDocs int
+		rule    string
+		pairs   int
+	}{
+		{"--master without --max-docs: the cap is the number of documents",
+			[]string{"--master", master, copies}, 13, "--master without --max-docs", 12},
+		{"--master with --max-docs: the cap given",
+			[]string{"--master", master, "--max-docs", "6", copies}, 6, "set by --max-docs", 0},
+		{"--against alone: the default cap of half the documents",
+			[]string{"--against", master, copies}, 6, "default", 0},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			r := compareNDJSON(t, tc.args...)
+			if r.settings.MaxDocs != tc.maxDocs || !strings.Contains(r.settings.MaxDocsRule, tc.rule) || len(r.pairs) != tc.pairs {
+				t.Errorf("max_docs %d (%q), %d pairs; want %d (%q), %d pairs",
+					r.settings.MaxDocs, r.settings.MaxDocsRule, len(r.pairs), tc.maxDocs, tc.rule, tc.pairs)
+			}
+			for _, c := range r.cover {
+				if tc.pairs > 0 && c.Coverage < 0.9 || len(c.Missing) != 1 {
+					t.Errorf("%s: covers %.4f, %d missing passages; want all but one sentence", c.Copy, c.Coverage, len(c.Missing))
+				}
+			}
+		})
+	}
+}
+
+// TestCompareMasterIsSplitAsTheRunSplitsIt: the master's missing passages
+// come from the text the run read (its read options) and the units the run
+// split it into (its --unit), so their offsets agree with the passages.
+func TestCompareMasterIsSplitAsTheRunSplitsIt(t *testing.T) {
+	dir := t.TempDir()
+	// An e-mail master whose quoted reply --skip-quoted-replies leaves out.
+	eml := filepath.Join(dir, "mail", "rules.eml")
+	writeFile(t, eml, "From: Warden <warden@example.org>\nDate: Mon, 3 Mar 2025 09:00:00 +0000\nSubject: Rules\n\n"+
+		strings.Join(masterSentences[:7], "\n")+"\n"+
+		"> The old rule said that members could leave the lathe running for a minute.\n"+
+		"> Another old rule let visitors walk in without signing anything at all.\n")
+	changed := slices.Clone(masterSentences[:7])
+	changed[2] = "The band saw is switched off before its blade is changed."
+	writeFile(t, filepath.Join(dir, "mailcopies", "a.txt"), strings.Join(changed, "\n")+"\n")
+	// A text master, and a copy that drops its last two sentences.
+	txt := filepath.Join(dir, "text", "rules.txt")
+	writeFile(t, txt, strings.Join(masterSentences, "\n")+"\n")
+	writeFile(t, filepath.Join(dir, "textcopies", "a.txt"), strings.Join(masterSentences[:12], "\n")+"\n")
+	// Word shingles end at a word: the final full stop is not in one.
+	dropped := strings.TrimSuffix(strings.Join(masterSentences[12:], "\n"), ".")
+
+	cases := []struct {
+		name  string
+		args  []string
+		text  string // the one missing passage
+		units int    // its units
+		line  int    // the text starts "Subject\n\n", then the body
+	}{
+		{"read with the run's options (--skip-quoted-replies)",
+			[]string{"--skip-quoted-replies", "--master", eml, filepath.Join(dir, "mailcopies")}, masterSentences[2], 1, 5},
+		{"split into the run's units (--unit words: shingles)",
+			[]string{"--unit", "words", "--master", txt, filepath.Join(dir, "textcopies")}, dropped, shingleWordCount(dropped), 13},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			r := compareNDJSON(t, tc.args...)
+			if len(r.cover) != 1 {
+				t.Fatalf("%d copies covered, want 1", len(r.cover))
+			}
+			c := r.cover[0]
+			if len(c.Missing) != 1 || c.Missing[0].Text != tc.text || c.Missing[0].Units != tc.units || c.Missing[0].Line != tc.line {
+				t.Errorf("missing %+v; want one passage of %d units at line %d: %q", c.Missing, tc.units, tc.line, tc.text)
+			}
+		})
+	}
+}
+
+// shingleWordCount is the number of words in text: the word shingles a copy
+// that drops text at the end of the master lacks.
+func shingleWordCount(text string) int { return len(strings.Fields(text)) }
+
+// TestCompareReferencesInsideArchivesAndJSONL: a document inside a ZIP or
+// JSON Lines file given with --against is a reference; a file that merely
+// starts with a reference file's name is not.
+func TestCompareReferencesInsideArchivesAndJSONL(t *testing.T) {
+	dir := t.TempDir()
+	text := strings.Join(masterSentences, "\n") + "\n"
+	zipPath := filepath.Join(dir, "refs.zip")
+	var buf bytes.Buffer
+	zw := zip.NewWriter(&buf)
+	w, err := zw.Create("a.txt")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := w.Write([]byte(text)); err != nil {
+		t.Fatal(err)
+	}
+	if err := zw.Close(); err != nil {
+		t.Fatal(err)
+	}
+	writeFile(t, zipPath, buf.String())
+	line, err := json.Marshal(map[string]string{"id": "r1", "text": text})
+	if err != nil {
+		t.Fatal(err)
+	}
+	jsonlPath := filepath.Join(dir, "refs.jsonl")
+	writeFile(t, jsonlPath, string(line)+"\n")
+	plain := filepath.Join(dir, "plain", "policy.txt")
+	writeFile(t, plain, text)
+	lookalike := filepath.Join(dir, "plain", "policy.txt#2.txt")
+	writeFile(t, lookalike, text)
+	news := filepath.Join(dir, "news")
+	writeFile(t, filepath.Join(news, "copy.txt"), text)
+
+	cases := []struct {
+		name string
+		args []string
+		want []string // "reference ~ new"
+	}{
+		{"a ZIP's members are references", []string{"--against", zipPath, news},
+			[]string{zipPath + "!/a.txt ~ " + filepath.Join(news, "copy.txt")}},
+		{"a JSON Lines file's records are references", []string{"--against", jsonlPath, news},
+			[]string{jsonlPath + "#r1 ~ " + filepath.Join(news, "copy.txt")}},
+		{"a file named like a record of a reference file is new", []string{"--against", plain, lookalike},
+			[]string{plain + " ~ " + lookalike}},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			r := compareNDJSON(t, tc.args...)
+			var got []string
+			for _, p := range r.pairs {
+				ref, nw := p.A, p.B
+				if len(r.sources) == 1 && r.sources[0].Document == p.A {
+					ref, nw = p.B, p.A
+				}
+				got = append(got, ref+" ~ "+nw)
+			}
+			if !slices.Equal(got, tc.want) {
+				t.Errorf("pairs %q, want %q", got, tc.want)
+			}
+			if len(r.sources) != len(tc.want) {
+				t.Errorf("sources %+v, want one new document with sources", r.sources)
+			}
+		})
+	}
+}
+
+// TestCompareFilesFromListsNewDocuments: paths read with --files-from are
+// new documents like positional paths, with or without positional ones.
+func TestCompareFilesFromListsNewDocuments(t *testing.T) {
+	master, copies := writeMasterAndCopies(t, 2)
+	list := filepath.Join(t.TempDir(), "list.txt")
+	writeFile(t, list, filepath.Join(copies, "copy-00.txt")+"\n")
+	empty := filepath.Join(t.TempDir(), "empty.txt")
+	writeFile(t, empty, "\n")
+	cases := []struct {
+		name  string
+		args  []string
+		code  int
+		pairs int
+		err   string
+	}{
+		{"listed paths only", []string{"--against", master, "--files-from", list}, exitOK, 1, ""},
+		{"listed and positional paths", []string{"--against", master, "--files-from", list, filepath.Join(copies, "copy-01.txt")}, exitOK, 2, ""},
+		{"no new document is refused", []string{"--against", master}, exitUsage, 0, "no PATH of new documents"},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			code, out, e := runCLI(t, slices.Concat([]string{"compare", "--format", "json", "-q"}, tc.args)...)
+			if code != tc.code || !strings.Contains(e, tc.err) {
+				t.Fatalf("exit %d, %q; want %d, %q", code, e, tc.code, tc.err)
+			}
+			if code != exitOK {
+				return
+			}
+			var res report.Result
+			if err := json.Unmarshal([]byte(out), &res); err != nil {
+				t.Fatal(err)
+			}
+			if len(res.Pairs) != tc.pairs {
+				t.Errorf("%d pairs, want %d", len(res.Pairs), tc.pairs)
+			}
+		})
 	}
 }
