@@ -88,6 +88,10 @@ type Options struct {
 	// PDFToText: the pdftotext program; "" means "pdftotext" looked up on
 	// PATH. Tests set it to check the behaviour when it is missing.
 	PDFToText string
+	// TempDir: the folder for the temporary copy of a PDF that is a ZIP
+	// member (pdftotext reads files only); "" means os.TempDir(). A caller
+	// that removes its own temporary folder on an interrupt sets it there.
+	TempDir string
 
 	// JSON Lines corpora (jsonl.go). JSONLID and JSONLText name the fields
 	// holding each line's id and text ("" means "id" and "text").

@@ -19,7 +19,7 @@ import (
 // with no shell: the program and its arguments are passed directly
 // ("-enc UTF-8 -eol unix FILE -", no -layout, so text comes in reading
 // order), the input is the file on disk (or, for a ZIP member, a private
-// temporary file, mode 0600, removed afterwards), the output is read
+// temporary file, mode 0600, in Options.TempDir, removed afterwards), the output is read
 // from standard output, bounded by --max-member-size, and the run is
 // killed after --pdf-timeout.
 //
@@ -54,7 +54,7 @@ func (pdfText) extract(in *input) (extraction, error) {
 	}
 	name := in.osPath
 	if name == "" {
-		f, err := os.CreateTemp("", "reprise-*.pdf") // mode 0600
+		f, err := os.CreateTemp(in.opt.TempDir, "reprise-*.pdf") // mode 0600; "" is os.TempDir()
 		if err != nil {
 			return extraction{}, fmt.Errorf("temporary file for a PDF member: %w", err)
 		}

@@ -2,8 +2,12 @@ package main
 
 import (
 	"bufio"
+	"crypto/rand"
+	"encoding/hex"
+	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"strings"
@@ -12,7 +16,12 @@ import (
 // writeOutput runs render into standard output, or into a temporary file
 // beside path that is renamed over path only when rendering succeeded, so a
 // reader never sees a half-written report and a failed run leaves the old
-// one in place.
+// one in place. The temporary file is removed on failure, and on Ctrl-C
+// while a tempGuard watches.
+//
+// Reports quote the documents, so the file gets no wider permissions than
+// the user asked for: a report replacing a file keeps that file's mode,
+// and a new one gets 0666 less the umask, as a shell redirection would.
 func writeOutput(path string, stdout io.Writer, render func(io.Writer) error) error {
 	if path == "" || path == "-" {
 		bw := bufio.NewWriter(stdout)
@@ -21,7 +30,8 @@ func writeOutput(path string, stdout io.Writer, render func(io.Writer) error) er
 		}
 		return bw.Flush()
 	}
-	if fi, err := os.Stat(path); err == nil && !fi.Mode().IsRegular() {
+	fi, err := os.Stat(path)
+	if err == nil && !fi.Mode().IsRegular() {
 		// Devices such as /dev/null cannot be replaced by a rename.
 		f, err := os.OpenFile(path, os.O_WRONLY, 0)
 		if err != nil {
@@ -37,11 +47,12 @@ func writeOutput(path string, stdout io.Writer, render func(io.Writer) error) er
 		}
 		return err
 	}
-	dir := filepath.Dir(path)
-	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp-*")
+	keepMode := err == nil
+	tmp, err := createBeside(path)
 	if err != nil {
 		return fmt.Errorf("output: %w", err)
 	}
+	defer removeOnInterrupt(tmp.Name())()
 	ok := false
 	defer func() {
 		if !ok {
@@ -56,8 +67,10 @@ func writeOutput(path string, stdout io.Writer, render func(io.Writer) error) er
 	if err := bw.Flush(); err != nil {
 		return fmt.Errorf("output: %w", err)
 	}
-	if err := tmp.Chmod(0o644); err != nil {
-		return fmt.Errorf("output: %w", err)
+	if keepMode {
+		if err := tmp.Chmod(fi.Mode().Perm()); err != nil {
+			return fmt.Errorf("output: %w", err)
+		}
 	}
 	if err := tmp.Close(); err != nil {
 		return fmt.Errorf("output: %w", err)
@@ -67,6 +80,24 @@ func writeOutput(path string, stdout io.Writer, render func(io.Writer) error) er
 	}
 	ok = true
 	return nil
+}
+
+// createBeside creates a new file named ".BASE.tmp-N" in path's folder,
+// with mode 0666 less the umask (os.CreateTemp's 0600 would make every
+// report private, and reading the umask is not portable).
+func createBeside(path string) (*os.File, error) {
+	dir, base := filepath.Dir(path), filepath.Base(path)
+	for try := 0; ; try++ {
+		var b [6]byte
+		if _, err := rand.Read(b[:]); err != nil {
+			return nil, err
+		}
+		name := filepath.Join(dir, "."+base+".tmp-"+hex.EncodeToString(b[:]))
+		f, err := os.OpenFile(name, os.O_RDWR|os.O_CREATE|os.O_EXCL, 0o666)
+		if err == nil || !errors.Is(err, fs.ErrExist) || try == 100 {
+			return f, err
+		}
+	}
 }
 
 // isTerminal reports whether w is a character device such as a terminal.

@@ -9,6 +9,7 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+	"time"
 
 	"github.com/spf13/pflag"
 
@@ -25,7 +26,8 @@ format, without scanning: text, json, ndjson, csv or html.
 The HTML page shows the two documents of a pair side by side. The JSON holds
 only the shared passages, so for html the documents of the detailed pairs are
 read again from their paths as recorded (relative to the folder the scan ran
-in). A document is shown only when it still has the word count the result
+in; a ZIP member from its archive, a JSON Lines document from its file),
+with the reading options the result records. A document is shown only when it still has the word count the result
 recorded and every passage's text is where the result says; otherwise that
 pair shows its passages and locations only, and the page says why.
 
@@ -173,7 +175,15 @@ func reloadTexts(res *report.Result, htmlPairs int) []report.SourceText {
 	if len(paths) == 0 {
 		return texts
 	}
-	docs, skipped, err := corpus.Read(paths, corpus.Options{MaxFileSize: res.Settings.MaxFileSize})
+	// A ZIP member or a JSON Lines line is read again from its file, with
+	// the options the scan read it with.
+	var outer []string
+	for _, p := range paths {
+		outer = append(outer, outerFile(p))
+	}
+	slices.Sort(outer)
+	outer = slices.Compact(outer)
+	docs, skipped, err := corpus.Read(outer, recordedReadOptions(res.Settings))
 	if err != nil {
 		for _, p := range paths {
 			if i, ok := index[p]; ok {
@@ -182,9 +192,19 @@ func reloadTexts(res *report.Result, htmlPairs int) []report.SourceText {
 		}
 		return texts
 	}
+	reasons := make(map[string]string, len(skipped))
 	for _, s := range skipped {
-		if i, ok := index[s.Path]; ok {
-			texts[i].Missing = "the file could not be read again (" + s.Reason + ")"
+		reasons[s.Path] = s.Reason
+	}
+	for _, p := range paths {
+		i, ok := index[p]
+		if !ok {
+			continue
+		}
+		if r, ok := reasons[p]; ok {
+			texts[i].Missing = "the file could not be read again (" + r + ")"
+		} else if r, ok := reasons[outerFile(p)]; ok {
+			texts[i].Missing = "the file could not be read again (" + r + ")"
 		}
 	}
 	sp := shingle.New(shingle.Options{MinWords: res.Settings.MinWords, MaxUnitBytes: res.Settings.MaxUnitBytes})
@@ -206,6 +226,42 @@ func reloadTexts(res *report.Result, htmlPairs int) []report.SourceText {
 		texts[i] = report.SourceText{Text: d.Text}
 	}
 	return texts
+}
+
+// outerFile is the file on disk a recorded document path was read from:
+// the archive of a ZIP member ("b.zip!/x.txt", nested ones included), the
+// file of a JSON Lines line ("f.jsonl#id"), else the path itself. A path
+// that names a file or folder on disk as it is stays whole.
+func outerFile(p string) string {
+	if _, err := os.Lstat(p); err == nil {
+		return p
+	}
+	if i := strings.Index(p, "!/"); i > 0 {
+		return p[:i]
+	}
+	if i := strings.Index(strings.ToLower(p), ".jsonl#"); i > 0 {
+		return p[:i+len(".jsonl")]
+	}
+	return p
+}
+
+// recordedReadOptions are the corpus options the result was read with:
+// its file size limit and its recorded reading settings (absent from
+// older results, which then read with the defaults).
+func recordedReadOptions(s report.Settings) corpus.Options {
+	o := corpus.Options{MaxFileSize: s.MaxFileSize}
+	if r := s.Read; r != nil {
+		o.MaxContainerBytes = r.MaxContainerSize
+		o.MaxMemberBytes = r.MaxMemberSize
+		o.MaxMembers = r.MaxMembers
+		o.MaxRatio = r.MaxRatio
+		o.MaxDepth = r.MaxDepth
+		o.PDFTimeout = time.Duration(r.PDFTimeoutSeconds * float64(time.Second))
+		o.SkipQuotedReplies = r.SkipQuotedReplies
+		o.JSONLID, o.JSONLText = r.JSONLID, r.JSONLText
+		o.MaxJSONLLine = r.MaxJSONLLine
+	}
+	return o
 }
 
 // passagesMismatch says why text is not the one the result's passages

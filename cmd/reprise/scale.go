@@ -3,10 +3,13 @@ package main
 import (
 	"bufio"
 	"bytes"
+	"crypto/rand"
+	"encoding/hex"
 	"fmt"
 	"io"
 	"os"
 	"os/signal"
+	"path/filepath"
 	"runtime/debug"
 	"strings"
 	"sync"
@@ -54,14 +57,43 @@ func (s *scaleFlags) register(fs *pflag.FlagSet) {
 	fs.BoolVarP(&s.null, "null", "0", false, "--files-from: paths are separated by NUL bytes, not lines (find -print0)")
 }
 
-// apply checks --memory and --temp and records them in cfg.
+// apply checks --memory and records it in cfg, and names the run's
+// private temporary folder under --temp: cfg.Temp and cfg.Corpus.TempDir
+// (where the copy of a PDF inside a ZIP goes) are that folder, which
+// newTempGuard(cfg.Temp) then makes and removes, on Ctrl-C too.
 func (s *scaleFlags) apply(cfg *scanConfig) error {
 	n, err := s.memoryBytes()
 	if err != nil {
 		return err
 	}
-	cfg.Memory, cfg.Temp = n, s.temp
+	dir, err := planRunFolder(s.temp)
+	if err != nil {
+		return err
+	}
+	cfg.Memory, cfg.Temp, cfg.Corpus.TempDir = n, dir, dir
 	return nil
+}
+
+// planned maps the run folders planRunFolder named, not yet made, to the
+// --temp they are under ("" for the system temporary folder).
+var planned sync.Map
+
+// planRunFolder names a private run folder under parent ("" for the
+// system temporary folder) without making it: the name is random, and
+// newTempGuard makes it with os.Mkdir, which fails rather than take over a
+// folder that is already there.
+func planRunFolder(parent string) (string, error) {
+	var b [12]byte
+	if _, err := rand.Read(b[:]); err != nil {
+		return "", fmt.Errorf("--temp: %w", err)
+	}
+	base := parent
+	if base == "" {
+		base = os.TempDir()
+	}
+	dir := filepath.Join(base, "reprise-"+hex.EncodeToString(b[:]))
+	planned.Store(dir, parent)
+	return dir, nil
 }
 
 // memoryBytes is --memory in bytes, 0 for no bound.
@@ -174,7 +206,9 @@ func setMemoryLimit(memory int64) func() {
 }
 
 // tempGuard owns the run's temporary folder: it removes it when the run
-// ends and, on Ctrl-C or SIGTERM, removes it and exits with status 130.
+// ends and, on Ctrl-C or SIGTERM, removes it and the files registered with
+// removeOnInterrupt, and exits with status 130 (deferred clean-ups do not
+// run then).
 type tempGuard struct {
 	dir  string
 	once sync.Once
@@ -185,8 +219,13 @@ type tempGuard struct {
 }
 
 // newTempGuard makes a private folder under parent ("" for the system
-// temporary folder) and starts watching for interrupts.
+// temporary folder), or makes parent itself when it is a folder that
+// scaleFlags.apply named, and starts watching for interrupts.
 func newTempGuard(parent string, stderr io.Writer, exit func(int)) (*tempGuard, error) {
+	dir := ""
+	if temp, ok := planned.LoadAndDelete(parent); ok {
+		dir, parent = parent, temp.(string)
+	}
 	if parent != "" {
 		if fi, err := os.Stat(parent); err != nil {
 			return nil, fmt.Errorf("--temp: %w", err)
@@ -194,7 +233,12 @@ func newTempGuard(parent string, stderr io.Writer, exit func(int)) (*tempGuard, 
 			return nil, fmt.Errorf("--temp %s: not a folder", parent)
 		}
 	}
-	dir, err := os.MkdirTemp(parent, "reprise-")
+	var err error
+	if dir != "" {
+		err = os.Mkdir(dir, 0o700)
+	} else {
+		dir, err = os.MkdirTemp(parent, "reprise-")
+	}
 	if err != nil {
 		return nil, fmt.Errorf("--temp: %w", err)
 	}
@@ -208,6 +252,7 @@ func (g *tempGuard) watch() {
 	select {
 	case <-g.sigs:
 		g.remove()
+		removeRegistered()
 		fmt.Fprintln(g.msg, "reprise: interrupted; temporary files removed")
 		g.exit(130)
 	case <-g.done:
@@ -221,4 +266,37 @@ func (g *tempGuard) Close() {
 	signal.Stop(g.sigs)
 	close(g.done)
 	g.remove()
+}
+
+// interruptFiles are files outside the run's folder (the temporary file
+// beside -o) that an interrupt removes too.
+var interruptFiles struct {
+	sync.Mutex
+	names map[string]bool
+}
+
+// removeOnInterrupt registers name for removal on Ctrl-C or SIGTERM while
+// a tempGuard watches; the returned function unregisters it.
+func removeOnInterrupt(name string) (unregister func()) {
+	interruptFiles.Lock()
+	defer interruptFiles.Unlock()
+	if interruptFiles.names == nil {
+		interruptFiles.names = map[string]bool{}
+	}
+	interruptFiles.names[name] = true
+	return func() {
+		interruptFiles.Lock()
+		defer interruptFiles.Unlock()
+		delete(interruptFiles.names, name)
+	}
+}
+
+// removeRegistered removes the files registered with removeOnInterrupt.
+func removeRegistered() {
+	interruptFiles.Lock()
+	defer interruptFiles.Unlock()
+	for name := range interruptFiles.names {
+		os.Remove(name)
+		delete(interruptFiles.names, name)
+	}
 }

@@ -3,7 +3,9 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"errors"
 	"fmt"
+	"io"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
@@ -240,6 +242,111 @@ func TestEngineBudget(t *testing.T) {
 		t.Run(tc.name, func(t *testing.T) {
 			if got := engineBudget(tc.memory, tc.held); got != tc.want {
 				t.Fatalf("got %d, want %d", got, tc.want)
+			}
+		})
+	}
+}
+
+// TestScanRunFolderHoldsPDFMemberCopies: the corpus writes the copy of a
+// PDF inside a ZIP into the run's private folder, the one the guard makes
+// under --temp and removes (on Ctrl-C too), not into the system
+// temporary folder.
+func TestScanRunFolderHoldsPDFMemberCopies(t *testing.T) {
+	parent := t.TempDir()
+	tests := []struct {
+		name  string
+		flags []string
+		under string
+	}{
+		{"under --temp", []string{"--temp", parent}, parent},
+		{"under the system temporary folder without --temp", nil, os.TempDir()},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			var f scanFlags
+			fs := newScanFlagSet(&f, &bytes.Buffer{})
+			if err := fs.Parse(append(tc.flags, "docs")); err != nil {
+				t.Fatal(err)
+			}
+			cfg, _, err := f.config(fs.Args())
+			if err != nil {
+				t.Fatal(err)
+			}
+			if cfg.Corpus.TempDir == "" || filepath.Dir(cfg.Corpus.TempDir) != filepath.Clean(tc.under) {
+				t.Fatalf("corpus TempDir %q, want a folder in %s", cfg.Corpus.TempDir, tc.under)
+			}
+			g, err := newTempGuard(cfg.Temp, &bytes.Buffer{}, func(int) { t.Error("exit called") })
+			if err != nil {
+				t.Fatal(err)
+			}
+			if g.dir != cfg.Corpus.TempDir {
+				t.Fatalf("guard's folder %s, corpus TempDir %s", g.dir, cfg.Corpus.TempDir)
+			}
+			if fi, err := os.Stat(g.dir); err != nil || !fi.IsDir() || fi.Mode().Perm() != 0o700 {
+				t.Fatalf("run folder: %v, %v", fi, err)
+			}
+			g.Close()
+			if _, err := os.Stat(cfg.Corpus.TempDir); !os.IsNotExist(err) {
+				t.Fatalf("%s still there after Close: %v", cfg.Corpus.TempDir, err)
+			}
+		})
+	}
+	if left, _ := os.ReadDir(parent); len(left) != 0 {
+		t.Fatalf("left in --temp: %v", left)
+	}
+}
+
+// TestInterruptRemovesTheOutputTempFile: Ctrl-C while the report is being
+// written removes the temporary file beside -o, which the exit would
+// otherwise leave (deferred clean-ups do not run on os.Exit).
+func TestInterruptRemovesTheOutputTempFile(t *testing.T) {
+	tests := []struct {
+		name     string
+		existing bool
+	}{
+		{"a new report", false},
+		{"a report replacing a file", true},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			dir := t.TempDir()
+			out := filepath.Join(dir, "review.html")
+			if tc.existing {
+				writeFile(t, out, "old report")
+			}
+			codes := make(chan int, 1)
+			g, err := newTempGuard(t.TempDir(), &bytes.Buffer{}, func(code int) { codes <- code })
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer g.Close()
+			pending := func() []string {
+				m, _ := filepath.Glob(filepath.Join(dir, ".review.html.tmp-*"))
+				return m
+			}
+			err = writeOutput(out, nil, func(w io.Writer) error {
+				fmt.Fprint(w, "half a report")
+				if len(pending()) != 1 {
+					t.Fatalf("no temporary file beside -o while writing: %v", pending())
+				}
+				g.sigs <- os.Interrupt
+				select {
+				case <-codes:
+				case <-time.After(10 * time.Second):
+					t.Fatal("no exit after the interrupt")
+				}
+				if left := pending(); len(left) != 0 {
+					t.Errorf("left after the interrupt: %v", left)
+				}
+				return errors.New("interrupted")
+			})
+			if err == nil {
+				t.Fatal("writeOutput did not fail")
+			}
+			if tc.existing {
+				if b, _ := os.ReadFile(out); string(b) != "old report" {
+					t.Errorf("the old report is now %q", b)
+				}
 			}
 		})
 	}

@@ -1,0 +1,160 @@
+package main
+
+import (
+	"archive/zip"
+	"bytes"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"reprise/report"
+)
+
+// TestReportReadsDocumentsAgainAsTheScanDid: for the side-by-side view,
+// 'reprise report' reads a ZIP member from its archive and a JSON Lines
+// document from its file, with the reading options the result records
+// (--skip-quoted-replies, --jsonl-text), so an unchanged document is shown
+// and not called unreadable or changed.
+func TestReportReadsDocumentsAgainAsTheScanDid(t *testing.T) {
+	shared := "The first shared sentence has enough words in it. The second shared sentence also has enough words. The third shared sentence ends the copied part here."
+	zipOf := func(members map[string]string) string {
+		var buf bytes.Buffer
+		zw := zip.NewWriter(&buf)
+		for name, text := range members {
+			w, err := zw.Create(name)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if _, err := w.Write([]byte(text)); err != nil {
+				t.Fatal(err)
+			}
+		}
+		if err := zw.Close(); err != nil {
+			t.Fatal(err)
+		}
+		return buf.String()
+	}
+	jsonLine := func(fields map[string]string) string {
+		b, err := json.Marshal(fields)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return string(b) + "\n"
+	}
+	mail := func(from, own string) string {
+		return "From: " + from + "@example.org\nTo: desk@example.org\nSubject: notes\n\n" + own + "\n\n" + shared +
+			"\n\n> An earlier message quoted here by " + from + " has many words of its own in it.\n"
+	}
+	tests := []struct {
+		name  string
+		files map[string]string
+		flags []string
+	}{
+		{"a ZIP member is read again from its archive", map[string]string{
+			"pack.zip": zipOf(map[string]string{"a.txt": "Alpha opens with words of its own today.\n\n" + shared, "b.txt": "Beta opens differently with other words.\n\n" + shared}),
+		}, nil},
+		{"a JSON Lines document is read again from its file", map[string]string{
+			"set.jsonl": jsonLine(map[string]string{"id": "a", "text": "Alpha opens with words of its own. " + shared}) +
+				jsonLine(map[string]string{"id": "b", "text": "Beta opens differently with words. " + shared}),
+		}, nil},
+		{"--jsonl-text is used again", map[string]string{
+			"set.jsonl": jsonLine(map[string]string{"id": "a", "body": "Alpha opens with words of its own. " + shared, "text": "short"}) +
+				jsonLine(map[string]string{"id": "b", "body": "Beta opens differently with words. " + shared, "text": "short"}),
+		}, []string{"--jsonl-text", "body"}},
+		{"--skip-quoted-replies is used again", map[string]string{
+			"a.eml": mail("alpha", "Alpha opens with words of its own today."),
+			"b.eml": mail("beta", "Beta opens differently with other words."),
+		}, []string{"--skip-quoted-replies"}},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			dir := t.TempDir()
+			docs := filepath.Join(dir, "docs")
+			if err := os.Mkdir(docs, 0o755); err != nil {
+				t.Fatal(err)
+			}
+			for name, text := range tc.files {
+				writeFile(t, filepath.Join(docs, name), text)
+			}
+			saved := filepath.Join(dir, "result.json")
+			var stderr bytes.Buffer
+			args := append(append([]string{"scan", "-q", "--format", "json", "-o", saved}, tc.flags...), docs)
+			if code := run(args, &bytes.Buffer{}, &stderr); code != exitOK {
+				t.Fatalf("scan: exit %d: %s", code, stderr.String())
+			}
+			res, err := readResult(saved)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if len(res.Pairs) != 1 {
+				t.Fatalf("scan found %d pairs, want 1: %+v", len(res.Pairs), res.Documents)
+			}
+			texts := reloadTexts(res, 0)
+			for i, d := range res.Documents {
+				if texts[i].Missing != "" {
+					t.Errorf("%s not shown: %s", d.Path, texts[i].Missing)
+				}
+			}
+			page, _ := reportCmd(t, exitOK, "--format", "html", saved)
+			if strings.Contains(page, "The text is not shown") {
+				t.Errorf("the page does not show an unchanged document")
+			}
+		})
+	}
+}
+
+// TestReportReadOptionsAreTheRecordedOnes: the options used to read again
+// are the result's recorded ones; a result without them (older format
+// writers) reads with the defaults and its file size limit.
+func TestReportReadOptionsAreTheRecordedOnes(t *testing.T) {
+	tests := []struct {
+		name     string
+		settings report.Settings
+		check    func(t *testing.T, s report.Settings)
+	}{
+		{"recorded settings are used", report.Settings{MaxFileSize: 1 << 20, Read: &report.ReadSettings{
+			MaxContainerSize: 5 << 20, MaxMemberSize: 3 << 20, MaxMembers: 7, MaxRatio: 9, MaxDepth: 11,
+			PDFTimeoutSeconds: 2.5, SkipQuotedReplies: true, JSONLID: "key", JSONLText: "body", MaxJSONLLine: 4096,
+		}}, func(t *testing.T, s report.Settings) {
+			got := readSettings(recordedReadOptions(s))
+			if *got != *s.Read {
+				t.Errorf("read with %+v, recorded %+v", *got, *s.Read)
+			}
+		}},
+		{"no recorded settings: defaults", report.Settings{MaxFileSize: 1 << 20}, func(t *testing.T, s report.Settings) {
+			o := recordedReadOptions(s)
+			if o.MaxFileSize != 1<<20 || o.SkipQuotedReplies || o.JSONLText != "" || o.MaxMembers != 0 {
+				t.Errorf("options %+v, want the defaults and MaxFileSize", o)
+			}
+		}},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) { tc.check(t, tc.settings) })
+	}
+}
+
+// TestReportOuterFile: a recorded path is read again from the file on
+// disk that holds it.
+func TestReportOuterFile(t *testing.T) {
+	dir := t.TempDir()
+	odd := filepath.Join(dir, "x#y.jsonl#z.txt")
+	writeFile(t, odd, "a file whose name looks like a JSON Lines line")
+	tests := []struct{ name, path, want string }{
+		{"a plain file is itself", "docs/a.txt", "docs/a.txt"},
+		{"a ZIP member is its archive", "docs/b.zip!/x.txt", "docs/b.zip"},
+		{"a member of a nested ZIP is the outer archive", "b.zip!/inner.zip!/x.txt", "b.zip"},
+		{"a JSON Lines line is its file", "docs/f.jsonl#id-1", "docs/f.jsonl"},
+		{"an id holding # is cut at the first .jsonl#", "d/F.JSONL#a#b", "d/F.JSONL"},
+		{"a # in a plain file name stays", "docs/a#1.txt", "docs/a#1.txt"},
+		{"a file on disk stays whole", odd, odd},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			if got := outerFile(tc.path); got != tc.want {
+				t.Errorf("outerFile(%q) = %q, want %q", tc.path, got, tc.want)
+			}
+		})
+	}
+}
