@@ -107,7 +107,7 @@ func runCompare(args []string, stdout, stderr io.Writer) int {
 		return fail(err)
 	}
 	defer guard.Close()
-	cfg.Pairs.TempDir = guard.dir
+	useTempDir(&cfg, guard)
 	defer setMemoryLimit(cfg.Memory)()
 	cfg.Warn = func(format string, args ...any) {
 		if !f.quiet {

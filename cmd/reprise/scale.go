@@ -3,13 +3,10 @@ package main
 import (
 	"bufio"
 	"bytes"
-	"crypto/rand"
-	"encoding/hex"
 	"fmt"
 	"io"
 	"os"
 	"os/signal"
-	"path/filepath"
 	"runtime/debug"
 	"strings"
 	"sync"
@@ -57,43 +54,22 @@ func (s *scaleFlags) register(fs *pflag.FlagSet) {
 	fs.BoolVarP(&s.null, "null", "0", false, "--files-from: paths are separated by NUL bytes, not lines (find -print0)")
 }
 
-// apply checks --memory and records it in cfg, and names the run's
-// private temporary folder under --temp: cfg.Temp and cfg.Corpus.TempDir
-// (where the copy of a PDF inside a ZIP goes) are that folder, which
-// newTempGuard(cfg.Temp) then makes and removes, on Ctrl-C too.
+// apply checks --memory and records it and --temp in cfg.
 func (s *scaleFlags) apply(cfg *scanConfig) error {
 	n, err := s.memoryBytes()
 	if err != nil {
 		return err
 	}
-	dir, err := planRunFolder(s.temp)
-	if err != nil {
-		return err
-	}
-	cfg.Memory, cfg.Temp, cfg.Corpus.TempDir = n, dir, dir
+	cfg.Memory, cfg.Temp = n, s.temp
 	return nil
 }
 
-// planned maps the run folders planRunFolder named, not yet made, to the
-// --temp they are under ("" for the system temporary folder).
-var planned sync.Map
-
-// planRunFolder names a private run folder under parent ("" for the
-// system temporary folder) without making it: the name is random, and
-// newTempGuard makes it with os.Mkdir, which fails rather than take over a
-// folder that is already there.
-func planRunFolder(parent string) (string, error) {
-	var b [12]byte
-	if _, err := rand.Read(b[:]); err != nil {
-		return "", fmt.Errorf("--temp: %w", err)
-	}
-	base := parent
-	if base == "" {
-		base = os.TempDir()
-	}
-	dir := filepath.Join(base, "reprise-"+hex.EncodeToString(b[:]))
-	planned.Store(dir, parent)
-	return dir, nil
+// useTempDir points every stage that writes temporary files at the
+// guard's private folder: the engine's spilled runs and the corpus's copies
+// of PDFs inside ZIPs, so that both are removed on exit and on Ctrl-C.
+func useTempDir(cfg *scanConfig, g *tempGuard) {
+	cfg.Pairs.TempDir = g.dir
+	cfg.Corpus.TempDir = g.dir
 }
 
 // memoryBytes is --memory in bytes, 0 for no bound.
@@ -219,13 +195,8 @@ type tempGuard struct {
 }
 
 // newTempGuard makes a private folder under parent ("" for the system
-// temporary folder), or makes parent itself when it is a folder that
-// scaleFlags.apply named, and starts watching for interrupts.
+// temporary folder) and starts watching for interrupts.
 func newTempGuard(parent string, stderr io.Writer, exit func(int)) (*tempGuard, error) {
-	dir := ""
-	if temp, ok := planned.LoadAndDelete(parent); ok {
-		dir, parent = parent, temp.(string)
-	}
 	if parent != "" {
 		if fi, err := os.Stat(parent); err != nil {
 			return nil, fmt.Errorf("--temp: %w", err)
@@ -233,12 +204,7 @@ func newTempGuard(parent string, stderr io.Writer, exit func(int)) (*tempGuard, 
 			return nil, fmt.Errorf("--temp %s: not a folder", parent)
 		}
 	}
-	var err error
-	if dir != "" {
-		err = os.Mkdir(dir, 0o700)
-	} else {
-		dir, err = os.MkdirTemp(parent, "reprise-")
-	}
+	dir, err := os.MkdirTemp(parent, "reprise-")
 	if err != nil {
 		return nil, fmt.Errorf("--temp: %w", err)
 	}
@@ -269,7 +235,9 @@ func (g *tempGuard) Close() {
 }
 
 // interruptFiles are files outside the run's folder (the temporary file
-// beside -o) that an interrupt removes too.
+// beside -o) that an interrupt removes too. It is package state on
+// purpose: signals are delivered to the whole process, and only main
+// handles them.
 var interruptFiles struct {
 	sync.Mutex
 	names map[string]bool

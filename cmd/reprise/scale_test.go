@@ -250,7 +250,7 @@ func TestEngineBudget(t *testing.T) {
 // TestScanRunFolderHoldsPDFMemberCopies: the corpus writes the copy of a
 // PDF inside a ZIP into the run's private folder, the one the guard makes
 // under --temp and removes (on Ctrl-C too), not into the system
-// temporary folder.
+// temporary folder; the engine spills there too.
 func TestScanRunFolderHoldsPDFMemberCopies(t *testing.T) {
 	parent := t.TempDir()
 	tests := []struct {
@@ -272,22 +272,23 @@ func TestScanRunFolderHoldsPDFMemberCopies(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			if cfg.Corpus.TempDir == "" || filepath.Dir(cfg.Corpus.TempDir) != filepath.Clean(tc.under) {
-				t.Fatalf("corpus TempDir %q, want a folder in %s", cfg.Corpus.TempDir, tc.under)
-			}
 			g, err := newTempGuard(cfg.Temp, &bytes.Buffer{}, func(int) { t.Error("exit called") })
 			if err != nil {
 				t.Fatal(err)
 			}
-			if g.dir != cfg.Corpus.TempDir {
-				t.Fatalf("guard's folder %s, corpus TempDir %s", g.dir, cfg.Corpus.TempDir)
+			useTempDir(&cfg, g)
+			if filepath.Dir(g.dir) != filepath.Clean(tc.under) {
+				t.Errorf("guard's folder %s is not in %s", g.dir, tc.under)
+			}
+			if cfg.Corpus.TempDir != g.dir || cfg.Pairs.TempDir != g.dir {
+				t.Fatalf("corpus TempDir %q, engine TempDir %q, want the guard's folder %s", cfg.Corpus.TempDir, cfg.Pairs.TempDir, g.dir)
 			}
 			if fi, err := os.Stat(g.dir); err != nil || !fi.IsDir() || fi.Mode().Perm() != 0o700 {
 				t.Fatalf("run folder: %v, %v", fi, err)
 			}
 			g.Close()
-			if _, err := os.Stat(cfg.Corpus.TempDir); !os.IsNotExist(err) {
-				t.Fatalf("%s still there after Close: %v", cfg.Corpus.TempDir, err)
+			if _, err := os.Stat(g.dir); !os.IsNotExist(err) {
+				t.Fatalf("%s still there after Close: %v", g.dir, err)
 			}
 		})
 	}

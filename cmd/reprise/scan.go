@@ -126,7 +126,7 @@ func runScan(args []string, stdout, stderr io.Writer) int {
 		return exitUsage
 	}
 	defer guard.Close()
-	cfg.Pairs.TempDir = guard.dir
+	useTempDir(&cfg, guard)
 	defer setMemoryLimit(cfg.Memory)()
 	warn := func(format string, args ...any) {
 		if !f.quiet {
