@@ -395,13 +395,9 @@ func archiveCheck(ar *archive.Archive, f *archiveFlags, paths []string, sopt shi
 			return exitUsage, err
 		}
 	}
-	if failOn >= 0 {
-		for _, p := range res.Pairs {
-			if p.Score >= failOn {
-				warn("pair %s ~ %s has score %.4f, at or above --fail-on %s", p.A, p.B, p.Score, f.failOn)
-				return exitFailOn, nil
-			}
-		}
+	if p := firstAtOrAbove(res, failOn); p != nil {
+		warn("pair %s ~ %s has score %.4f, at or above --fail-on %s", p.A, p.B, p.Score, f.failOn)
+		return exitFailOn, nil
 	}
 	return exitOK, nil
 }

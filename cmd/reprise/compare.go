@@ -168,15 +168,11 @@ func runCompare(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(err)
 	}
-	if failOn >= 0 {
-		for _, p := range res.Pairs {
-			if p.Score >= failOn {
-				if !f.quiet {
-					fmt.Fprintf(stderr, "reprise: pair %s ~ %s has score %.4f, at or above --fail-on %s\n", p.A, p.B, p.Score, f.failOn)
-				}
-				return exitFailOn
-			}
+	if p := firstAtOrAbove(res, failOn); p != nil {
+		if !f.quiet {
+			fmt.Fprintf(stderr, "reprise: pair %s ~ %s has score %.4f, at or above --fail-on %s\n", p.A, p.B, p.Score, f.failOn)
 		}
+		return exitFailOn
 	}
 	return exitOK
 }

@@ -160,15 +160,25 @@ func runScan(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "reprise scan: %v\n", err)
 		return exitUsage
 	}
-	if failOn >= 0 {
-		for _, p := range res.Pairs {
-			if p.Score >= failOn {
-				warn("pair %s ~ %s has score %.4f, at or above --fail-on %s", p.A, p.B, p.Score, f.failOn)
-				return exitFailOn
-			}
-		}
+	if p := firstAtOrAbove(res, failOn); p != nil {
+		warn("pair %s ~ %s has score %.4f, at or above --fail-on %s", p.A, p.B, p.Score, f.failOn)
+		return exitFailOn
 	}
 	return exitOK
+}
+
+// firstAtOrAbove returns the best-ranked pair whose score reaches failOn,
+// or nil when none does or failOn is negative (--fail-on not given).
+func firstAtOrAbove(res *report.Result, failOn float64) *report.Pair {
+	if failOn < 0 {
+		return nil
+	}
+	for i := range res.Pairs {
+		if res.Pairs[i].Score >= failOn {
+			return &res.Pairs[i]
+		}
+	}
+	return nil
 }
 
 func printScanHelp(w io.Writer, fs *pflag.FlagSet) {
