@@ -43,6 +43,8 @@ func TestExitCodes(t *testing.T) {
 		{"a finished scan exits 0", []string{"scan", "-q", dir}, exitOK},
 		{"fail-on reached exits 1", []string{"scan", "-q", "--fail-on", "0.9", dir}, exitFailOn},
 		{"fail-on as percentage reached exits 1", []string{"scan", "-q", "--fail-on", "90%", dir}, exitFailOn},
+		{"compare fail-on reached exits 1", []string{"compare", "-q", "--fail-on", "0.3", "--against", filepath.Join("..", "..", "testdata", "demo-sources"), filepath.Join("..", "..", "testdata", "demo")}, exitFailOn},
+		{"compare fail-on not reached exits 0", []string{"compare", "-q", "--fail-on", "0.9", "--against", filepath.Join("..", "..", "testdata", "demo-sources"), filepath.Join("..", "..", "testdata", "demo")}, exitOK},
 		{"fail-on not reached exits 0", []string{"scan", "-q", "--fail-on", "1.0", "--min-shared", "5", dir}, exitOK},
 	}
 	for _, tc := range tests {
