@@ -219,6 +219,22 @@ func (g *groupGrowth) groups(orig []uint32) []Group {
 	return out
 }
 
+// Clusters returns the connected components of ps among documents
+// 0..n-1 by the rule Result.Clusters follows (each ascending, ordered by
+// the smallest member, documents in no pair left out), for callers that
+// keep only some of the engine's pairs.
+func Clusters(ps []Pair, n int) [][]uint32 {
+	counted := make([]countedPair, len(ps))
+	for i, p := range ps {
+		counted[i] = countedPair{a: p.A, b: p.B, n: p.Shared}
+	}
+	identity := make([]uint32, n)
+	for i := range identity {
+		identity[i] = uint32(i)
+	}
+	return clusters(counted, n, identity)
+}
+
 // clusters returns the connected components of the pairs (compact IDs), in
 // original IDs, each ascending, ordered by their smallest member.
 func clusters(pairs []countedPair, m int, orig []uint32) [][]uint32 {

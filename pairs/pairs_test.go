@@ -520,3 +520,22 @@ func TestCounterKindString(t *testing.T) {
 		}
 	}
 }
+
+func TestClustersOfKeptPairsFollowTheResultRule(t *testing.T) {
+	tests := []struct {
+		name  string
+		pairs []Pair
+		n     int
+		want  [][]uint32
+	}{
+		{"no pair, no cluster", nil, 4, nil},
+		{"a chain is one cluster", []Pair{{A: 0, B: 3}, {A: 3, B: 5}}, 6, [][]uint32{{0, 3, 5}}},
+		{"components ordered by smallest member, members ascending", []Pair{{A: 4, B: 6}, {A: 1, B: 2}, {A: 2, B: 7}}, 8,
+			[][]uint32{{1, 2, 7}, {4, 6}}},
+	}
+	for _, tc := range tests {
+		if got := Clusters(tc.pairs, tc.n); !slices.EqualFunc(got, tc.want, slices.Equal[[]uint32]) {
+			t.Errorf("%s: Clusters = %v, want %v", tc.name, got, tc.want)
+		}
+	}
+}

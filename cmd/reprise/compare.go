@@ -242,42 +242,7 @@ func keepCrossPairs(eng *pairs.Result, isRef []bool, within bool, same func(a, b
 		}
 		return refs == len(g.Docs) || (refs == 0 && !within)
 	})
-	// Clusters: connected components of the kept pairs (union-find).
-	parent := make([]uint32, len(isRef))
-	for i := range parent {
-		parent[i] = uint32(i)
-	}
-	find := func(x uint32) uint32 {
-		for parent[x] != x {
-			parent[x] = parent[parent[x]]
-			x = parent[x]
-		}
-		return x
-	}
-	inPair := make([]bool, len(isRef))
-	for _, p := range eng.Pairs {
-		inPair[p.A], inPair[p.B] = true, true
-		ra, rb := find(p.A), find(p.B)
-		if ra != rb {
-			parent[max(ra, rb)] = min(ra, rb)
-		}
-	}
-	byRoot := map[uint32][]uint32{}
-	var roots []uint32
-	for d := range isRef {
-		if !inPair[d] {
-			continue
-		}
-		r := find(uint32(d))
-		if _, ok := byRoot[r]; !ok {
-			roots = append(roots, r)
-		}
-		byRoot[r] = append(byRoot[r], uint32(d))
-	}
-	eng.Clusters = eng.Clusters[:0]
-	for _, r := range roots { // roots appear in ascending order of their first member
-		eng.Clusters = append(eng.Clusters, byRoot[r])
-	}
+	eng.Clusters = pairs.Clusters(eng.Pairs, len(isRef))
 }
 
 // sources is one new document's reuse and its sources ranked: its pairs,
