@@ -183,19 +183,7 @@ func countSparse(b *baskets, expected int64, s uint32) []countedPair {
 			}
 		}
 	}
-	var keys []pairKey
-	for i, k := range t.keys {
-		if k != 0 && t.counts[i] >= s {
-			keys = append(keys, k)
-		}
-	}
-	slices.Sort(keys)
-	out := make([]countedPair, len(keys))
-	for i, k := range keys {
-		a, c := k.docs()
-		// Look the count up again rather than carry it through the sort.
-		out[i] = countedPair{a: a, b: c, n: t.get(k)}
-	}
+	out := t.frequent(s)
 	if len(out) == 0 {
 		return nil
 	}
@@ -212,4 +200,23 @@ func (t *sparseTable) get(k pairKey) uint32 {
 			return 0
 		}
 	}
+}
+
+// frequent returns the pairs counted at least s times, sorted by key
+// (the smaller document first, then the larger).
+func (t *sparseTable) frequent(s uint32) []countedPair {
+	var keys []pairKey
+	for i, k := range t.keys {
+		if k != 0 && t.counts[i] >= s {
+			keys = append(keys, k)
+		}
+	}
+	slices.Sort(keys)
+	out := make([]countedPair, len(keys))
+	for i, k := range keys {
+		a, c := k.docs()
+		// Look the count up again rather than carry it through the sort.
+		out[i] = countedPair{a: a, b: c, n: t.get(k)}
+	}
+	return out
 }

@@ -204,17 +204,5 @@ func countRange(src rowSource, m int, kind CounterKind, lo, hi int, est int64, s
 	if err != nil {
 		return nil, err
 	}
-	var keys []pairKey
-	for i, k := range t.keys {
-		if k != 0 && t.counts[i] >= s {
-			keys = append(keys, k)
-		}
-	}
-	slices.Sort(keys)
-	out := make([]countedPair, len(keys))
-	for i, k := range keys {
-		a, c := k.docs()
-		out[i] = countedPair{a: a, b: c, n: t.get(k)}
-	}
-	return out, nil
+	return t.frequent(s), nil
 }
