@@ -19,9 +19,10 @@ func benchText(n int) string {
 	return strings.Repeat(benchParagraph, n/len(benchParagraph)+1)
 }
 
-func BenchmarkSentences(b *testing.B) {
-	text := benchText(400 << 10)
-	sp := New(Options{})
+// benchSentences times sp.Sentences on text, reporting bytes per second
+// and allocations, and fails if the text gave no unit.
+func benchSentences(b *testing.B, sp *Splitter, text string) {
+	b.Helper()
 	var units []Unit
 	b.SetBytes(int64(len(text)))
 	b.ReportAllocs()
@@ -31,6 +32,12 @@ func BenchmarkSentences(b *testing.B) {
 	if len(units) == 0 {
 		b.Fatal("no units")
 	}
+}
+
+func BenchmarkSentences(b *testing.B) {
+	text := benchText(400 << 10)
+	sp := New(Options{})
+	benchSentences(b, sp, text)
 }
 
 func BenchmarkNormalize(b *testing.B) {
@@ -64,15 +71,7 @@ func BenchmarkSentencesCutting(b *testing.B) {
 func BenchmarkSentencesUniseg(b *testing.B) {
 	text := benchText(400 << 10)
 	sp := slowSplitter(Options{})
-	var units []Unit
-	b.SetBytes(int64(len(text)))
-	b.ReportAllocs()
-	for b.Loop() {
-		units, _ = sp.Sentences(text, units)
-	}
-	if len(units) == 0 {
-		b.Fatal("no units")
-	}
+	benchSentences(b, sp, text)
 }
 
 // latinParagraph is invented prose with Latin-1 letters, guillemets and
@@ -88,13 +87,5 @@ un membre ; la présidente répondit que oui. Die Größe der Übung — etwa 3.
 func BenchmarkSentencesLatin(b *testing.B) {
 	text := strings.Repeat(latinParagraph, (400<<10)/len(latinParagraph)+1)
 	sp := New(Options{})
-	var units []Unit
-	b.SetBytes(int64(len(text)))
-	b.ReportAllocs()
-	for b.Loop() {
-		units, _ = sp.Sentences(text, units)
-	}
-	if len(units) == 0 {
-		b.Fatal("no units")
-	}
+	benchSentences(b, sp, text)
 }
