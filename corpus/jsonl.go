@@ -53,51 +53,66 @@ func isJSONL(name string) bool {
 // readJSONL streams one JSON Lines file into parts: a document per good
 // line (sub "#ID"), a reason per bad one (sub ":N").
 func readJSONL(osPath string, opt *Options) []part {
+	var parts []part
+	readJSONLEach(osPath, opt, func(p *part) { parts = append(parts, *p) })
+	return parts
+}
+
+// readJSONLEach is readJSONL handing each part to emit as soon as its line
+// is read, so that a large file's texts need not be held at once.
+func readJSONLEach(osPath string, opt *Options, emit func(*part)) {
 	f, err := os.Open(osPath)
 	if err != nil {
-		return []part{{reason: osReason(err)}}
+		emit(&part{reason: osReason(err)})
+		return
 	}
 	defer f.Close()
-	parts, lines, err := scanJSONL(f, opt)
+	emitted := 0
+	count := func(p *part) { emitted++; emit(p) }
+	lines, err := eachJSONL(f, opt, count)
 	if err != nil {
 		// A read error ends the file; the documents read so far stay, and
 		// the file itself is listed with the reason.
-		parts = append(parts, part{reason: fmt.Sprintf("read error after line %d: %s", lines, osReason(err))})
+		count(&part{reason: fmt.Sprintf("read error after line %d: %s", lines, osReason(err))})
 	}
-	if len(parts) == 0 {
-		return []part{{reason: reasonEmpty}}
+	if emitted == 0 {
+		emit(&part{reason: reasonEmpty})
 	}
-	return parts
 }
 
 // scanJSONL reads JSON Lines from r and returns the parts and the number of
 // lines read. The error is for a failed read only; every bad line is a part
 // with a reason.
 func scanJSONL(r io.Reader, opt *Options) ([]part, int, error) {
+	var parts []part
+	n, err := eachJSONL(r, opt, func(p *part) { parts = append(parts, *p) })
+	return parts, n, err
+}
+
+// eachJSONL is scanJSONL handing each part to emit instead of collecting.
+func eachJSONL(r io.Reader, opt *Options, emit func(*part)) (int, error) {
 	idField, textField := opt.JSONLID, opt.JSONLText
 	limit := opt.MaxJSONLLine
 	br := bufio.NewReaderSize(r, 64<<10)
 	seen := make(map[string]int) // id -> line it was first used on
-	var parts []part
 	var line []byte
 	for n := 1; ; n++ {
 		var tooLong bool
 		var err error
 		line, tooLong, err = readLine(br, line[:0], limit)
 		if err != nil && !errors.Is(err, io.EOF) {
-			return parts, n - 1, err
+			return n - 1, err
 		}
 		if len(line) > 0 || tooLong {
 			if n == 1 {
 				line = bytes.TrimPrefix(line, []byte("\uFEFF"))
 			}
-			p := jsonlPart(line, tooLong, limit, idField, textField, n, seen)
-			if p != nil {
-				parts = append(parts, *p)
+			if p := jsonlPart(line, tooLong, limit, idField, textField, n, seen); p != nil {
+				emit(p)
 			}
 		}
 		if err != nil { // io.EOF
-			return parts, n, nil
+			return n, nil
 		}
 	}
 }

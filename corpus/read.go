@@ -21,9 +21,23 @@ import (
 // Files are read and decoded by opt.Jobs workers; the result does not
 // depend on their number or timing.
 func Read(paths []string, opt Options) ([]Document, []Skipped, error) {
+	docs, _, skipped, err := ReadEach(paths, opt, func(*Document) struct{} { return struct{}{} })
+	return docs, skipped, err
+}
+
+// ReadEach is Read for corpora larger than memory: it hands every document
+// to digest, in the worker that extracted it, the moment its text is
+// ready, and keeps of the document only what digest leaves in it. A digest
+// that computes what it needs from d.Text and then sets d.Text to "" makes
+// the run hold the texts being digested (about one per worker, or one ZIP
+// archive's members) instead of every text. The values digest returns come
+// back parallel to the documents, in the same order (sorted by Path, ID
+// equal to the index). digest runs on up to opt.Jobs goroutines at once
+// and must be safe for that; it may change only the Document it is given.
+func ReadEach[T any](paths []string, opt Options, digest func(d *Document) T) ([]Document, []T, []Skipped, error) {
 	opt, err := opt.withDefaults()
 	if err != nil {
-		return nil, nil, err
+		return nil, nil, nil, err
 	}
 	w := walker{opt: opt}
 	for _, p := range paths {
@@ -37,6 +51,7 @@ func Read(paths []string, opt Options) ([]Document, []Skipped, error) {
 		e := &w.entries[i]
 		switch {
 		case e.dup:
+		case opt.Want != nil && !opt.Want(e.display):
 		case e.reason != "":
 			skipped = append(skipped, Skipped{Path: e.display, Reason: e.reason})
 		default:
@@ -44,7 +59,12 @@ func Read(paths []string, opt Options) ([]Document, []Skipped, error) {
 		}
 	}
 
-	results := make([][]part, len(todo))
+	type read struct {
+		docs    []Document
+		digests []T
+		skipped []Skipped
+	}
+	results := make([]read, len(todo))
 	var next atomic.Int64
 	var wg sync.WaitGroup
 	for range min(opt.Jobs, len(todo)) {
@@ -54,60 +74,85 @@ func Read(paths []string, opt Options) ([]Document, []Skipped, error) {
 				if i >= len(todo) {
 					return
 				}
-				results[i] = readEntry(todo[i], &opt)
+				r := &results[i]
+				readEntry(todo[i], &opt, func(p *part) {
+					name := todo[i].display + p.sub
+					if p.reason != "" {
+						r.skipped = append(r.skipped, Skipped{Path: name, Reason: p.reason})
+						return
+					}
+					d := Document{
+						Path:     name,
+						Format:   p.format,
+						Encoding: p.Encoding,
+						Size:     p.size,
+						File:     name[:len(todo[i].display)],
+						Text:     p.Text,
+						Notes:    p.Notes,
+						Marks:    p.Marks,
+					}
+					*p = part{} // the text is the digest's from here on
+					r.digests = append(r.digests, digest(&d))
+					r.docs = append(r.docs, d)
+				})
 			}
 		})
 	}
 	wg.Wait()
 
-	var docs []Document
-	for i, parts := range results {
-		for _, r := range parts {
-			p := todo[i].display + r.sub
-			if r.reason != "" {
-				skipped = append(skipped, Skipped{Path: p, Reason: r.reason})
-				continue
-			}
-			docs = append(docs, Document{
-				Path:     p,
-				Format:   r.format,
-				Encoding: r.Encoding,
-				Size:     r.size,
-				Text:     r.Text,
-				Notes:    r.Notes,
-				Marks:    r.Marks,
-			})
+	type item struct {
+		doc    Document
+		digest T
+	}
+	var items []item
+	for i := range results {
+		r := &results[i]
+		for k := range r.docs {
+			items = append(items, item{r.docs[k], r.digests[k]})
 		}
+		skipped = append(skipped, r.skipped...)
+		results[i] = read{}
 	}
 	// ZIP members ("a.zip!/x") sort among the other paths, not after their
 	// archive's siblings: sort again, then number.
-	slices.SortStableFunc(docs, func(a, b Document) int { return strings.Compare(a.Path, b.Path) })
-	for i := range docs {
+	slices.SortStableFunc(items, func(a, b item) int { return strings.Compare(a.doc.Path, b.doc.Path) })
+	docs := make([]Document, len(items))
+	digests := make([]T, len(items))
+	for i := range items {
+		docs[i], digests[i] = items[i].doc, items[i].digest
 		docs[i].ID = i
 	}
 	slices.SortStableFunc(skipped, func(a, b Skipped) int { return strings.Compare(a.Path, b.Path) })
-	return docs, skipped, nil
+	return docs, digests, skipped, nil
 }
 
-// readEntry reads one file and extracts its documents (one, or one per
-// member of a ZIP archive), or the reason there is none.
-func readEntry(e *entry, opt *Options) []part {
+// readEntry reads one file and hands emit its documents (one, or one per
+// member of a ZIP archive or line of a JSON Lines file), or the reason
+// there is none.
+func readEntry(e *entry, opt *Options, emit func(*part)) {
 	if isJSONL(e.display) { // streamed, one document per line (jsonl.go)
-		return readJSONL(e.osPath, opt)
+		readJSONLEach(e.osPath, opt, emit)
+		return
 	}
 	limit := opt.MaxFileSize
 	if e.size > limit { // stat says so: the file is not opened
-		return []part{{reason: tooLarge(limit)}}
+		emit(&part{reason: tooLarge(limit)})
+		return
 	}
 	raw, err := readFile(e.osPath, e.size, limit)
 	if err != nil {
-		return []part{{reason: osReason(err)}}
+		emit(&part{reason: osReason(err)})
+		return
 	}
 	if int64(len(raw)) > limit { // it grew since the walk
-		return []part{{reason: tooLarge(limit)}}
+		emit(&part{reason: tooLarge(limit)})
+		return
 	}
 	budget := opt.MaxContainerBytes
-	return extractFile(path.Base(e.display), &input{raw: raw, osPath: e.osPath, opt: opt, budget: &budget})
+	parts := extractFile(path.Base(e.display), &input{raw: raw, osPath: e.osPath, opt: opt, budget: &budget})
+	for k := range parts {
+		emit(&parts[k])
+	}
 }
 
 // readFile reads at most limit+1 bytes of the file (one more than allowed,

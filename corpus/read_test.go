@@ -406,9 +406,9 @@ func TestDocumentFields(t *testing.T) {
 	writeTree(t, dir, map[string]string{"a.md": md, "b.TXT": text, "c.csv": csv})
 	docs, _ := mustRead(t, []string{"a.md", "b.TXT", "c.csv"}, Options{})
 	want := []Document{
-		{ID: 0, Path: "a.md", Format: "markdown", Encoding: "utf-8", Size: int64(len(md)), Text: "  Title\n\nSome  text .\n"},
-		{ID: 1, Path: "b.TXT", Format: "text", Encoding: "utf-8", Size: int64(len(text)), Text: text},
-		{ID: 2, Path: "c.csv", Format: "text", Encoding: "utf-8", Size: int64(len(csv)), Text: csv},
+		{ID: 0, Path: "a.md", Format: "markdown", Encoding: "utf-8", Size: int64(len(md)), File: "a.md", Text: "  Title\n\nSome  text .\n"},
+		{ID: 1, Path: "b.TXT", Format: "text", Encoding: "utf-8", Size: int64(len(text)), File: "b.TXT", Text: text},
+		{ID: 2, Path: "c.csv", Format: "text", Encoding: "utf-8", Size: int64(len(csv)), File: "c.csv", Text: csv},
 	}
 	if !reflect.DeepEqual(docs, want) {
 		t.Errorf("documents =\n%#v\nwant\n%#v", docs, want)

@@ -174,17 +174,33 @@ func (p *Pair) LongestWords() int {
 }
 
 // Doc is one document as the report needs it: its text and its units in
-// text order (as shingle produced them).
+// text order (as shingle produced them). Text and Units are needed only
+// for the documents the report quotes: both of every engine pair, and the
+// first holder (CommonUnit.First) of each common unit; the others may
+// leave them empty and give their number of units in UnitCount, so that a
+// large run need not hold every text.
 type Doc struct {
-	Path     string
-	Format   string
-	Encoding string
-	Notes    []string
-	Text     string
-	Words    int
-	Units    []shingle.Unit
-	Marks    []corpus.Mark // pages, chapters, paragraphs; none for line-based formats
+	Path      string
+	Format    string
+	Encoding  string
+	Notes     []string
+	Text      string
+	Words     int
+	Units     []shingle.Unit
+	UnitCount int           // units, when Units is not given; ignored when it is
+	Marks     []corpus.Mark // pages, chapters, paragraphs; none for line-based formats
 }
+
+// unitCount is the number of units the document was split into.
+func (d *Doc) unitCount() int {
+	if d.Units != nil {
+		return len(d.Units)
+	}
+	return d.UnitCount
+}
+
+// given reports whether the document's units were given (or it has none).
+func (d *Doc) given() bool { return d.Units != nil || d.UnitCount == 0 }
 
 // Input is everything Build combines.
 type Input struct {
@@ -225,10 +241,15 @@ func Build(in Input) (*Result, error) {
 	res.Settings.Include = nonNil(res.Settings.Include)
 	res.Settings.Skip = nonNil(res.Settings.Skip)
 
-	// Each document's counted units, for Jaccard and alignment.
-	seqs := make([]sequence, n)
-	for i := range in.Docs {
-		seqs[i] = newSequence(in.Docs[i].Units, aside)
+	// Each paired document's counted units, for Jaccard and alignment,
+	// prepared on first use.
+	seqs := make([]*sequence, n)
+	seq := func(i uint32) *sequence {
+		if seqs[i] == nil {
+			s := newSequence(in.Docs[i].Units, aside)
+			seqs[i] = &s
+		}
+		return seqs[i]
 	}
 
 	reusedSpans := make([][]span, n)
@@ -242,7 +263,12 @@ func Build(in Input) (*Result, error) {
 			return nil, fmt.Errorf("report: engine pair (%d, %d) outside %d documents", ep.A, ep.B, n)
 		}
 		da, db := &in.Docs[ep.A], &in.Docs[ep.B]
-		passages := pairPassages(in.Chaining, &seqs[ep.A], &seqs[ep.B], da, db)
+		for _, d := range []*Doc{da, db} {
+			if !d.given() {
+				return nil, fmt.Errorf("report: %s is in a pair but its units were not given", d.Path)
+			}
+		}
+		passages := pairPassages(in.Chaining, seq(ep.A), seq(ep.B), da, db)
 		if len(passages) == 0 {
 			return nil, fmt.Errorf("report: %s and %s share %d units but no passage aligns", da.Path, db.Path, ep.Shared)
 		}
@@ -264,7 +290,7 @@ func Build(in Input) (*Result, error) {
 		}
 		p.CoverageA = fraction(wordsIn(da.Text, aSpans), da.Words)
 		p.CoverageB = fraction(wordsIn(db.Text, bSpans), db.Words)
-		union := seqs[ep.A].distinct + seqs[ep.B].distinct - int(ep.Shared)
+		union := seq(ep.A).distinct + seq(ep.B).distinct - int(ep.Shared)
 		p.Jaccard = fraction(int(ep.Shared), union)
 		p.Score = max(p.CoverageA, p.CoverageB)
 		reusedSpans[ep.A] = append(reusedSpans[ep.A], aSpans...)
@@ -300,18 +326,21 @@ func Build(in Input) (*Result, error) {
 			Format:   d.Format,
 			Encoding: d.Encoding,
 			Words:    d.Words,
-			Units:    len(d.Units),
+			Units:    d.unitCount(),
 			Reused:   fraction(wordsIn(d.Text, reusedSpans[i]), d.Words),
 			Notes:    nonNil(slices.Clone(d.Notes)),
 		}
 		res.Texts[i] = SourceText{Text: d.Text}
-		totalUnits += len(d.Units)
+		totalUnits += d.unitCount()
 		totalWords += d.Words
 	}
 
 	for _, c := range eng.Common {
 		if int(c.First) >= n {
 			return nil, fmt.Errorf("report: common unit in document %d outside %d documents", c.First, n)
+		}
+		if d := &in.Docs[c.First]; !d.given() {
+			return nil, fmt.Errorf("report: %s holds a common unit but its units were not given", d.Path)
 		}
 		res.Common = append(res.Common, Common{Text: unitText(&in.Docs[c.First], c.Hash), Documents: int(c.Docs)})
 	}

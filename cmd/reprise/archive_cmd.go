@@ -364,7 +364,7 @@ func archiveCheck(ar *archive.Archive, f *archiveFlags, paths []string, sopt shi
 		if len(bad) > 0 {
 			return exitUsage, fmt.Errorf("template %s: %s", bad[0].Path, bad[0].Reason)
 		}
-		docs, skipped = setTemplatesAside(docs, skipped, templates)
+		docs, skipped, _ = setTemplatesAside(docs, skipped, templates)
 		units, stats = shingleAll(docs, sopt, f.jobs)
 		tu, _ := shingleAll(templates, sopt, f.jobs)
 		for _, us := range tu {

@@ -123,6 +123,9 @@ func runCompare(args []string, stdout, stderr io.Writer) int {
 	// is the one the passages' offsets point into (same read options, same
 	// templates set aside).
 	masterDocs := make([][]corpus.Document, len(masters))
+	if len(masters) > 0 {
+		cfg.KeepText = func(path string) bool { return underAny(path, masters) }
+	}
 	cfg.KeepPairs = func(docs []corpus.Document, eng *pairs.Result) {
 		isRef := make([]bool, len(docs))
 		for i, d := range docs {

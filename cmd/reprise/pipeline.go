@@ -7,6 +7,8 @@ import (
 	"slices"
 	"sync"
 
+	"github.com/cespare/xxhash/v2"
+
 	"reprise/corpus"
 	"reprise/pairs"
 	"reprise/report"
@@ -27,6 +29,10 @@ type scanConfig struct {
 	Temp      string                           // --temp: parent of the run's temporary folder
 	Warn      func(format string, args ...any) // nil: silent (scale.go's budget warning)
 	Chaining  *report.Chaining                 // word units: passage chaining (units.go); nil for sentences
+	// KeepText, when set, names the documents whose text stays in the
+	// corpus.Document handed to KeepPairs (compare's masters); the others'
+	// texts are dropped once split.
+	KeepText func(path string) bool
 	// KeepPairs, when set, may drop pairs, groups and clusters from the
 	// engine's result before the report is built (compare.go).
 	KeepPairs func(docs []corpus.Document, eng *pairs.Result)
@@ -36,15 +42,27 @@ type scanConfig struct {
 var errNoDocuments = errors.New("no readable document")
 
 // scan runs the whole pipeline: corpus → shingle → pairs → report.
+//
+// Documents are split as they are read, and of each only its digest is
+// kept (its distinct fingerprints for the engine, its counts and notes):
+// the run never holds every text. Once the engine has found the pairs,
+// the documents the report quotes (those in a pair, and the first holder
+// of each common unit) are read again and split again; a text that is
+// not the one first read stops the run rather than misplace a passage.
 func scan(cfg scanConfig) (*report.Result, error) {
 	progress := cfg.Progress
 	if progress == nil {
 		progress = func(string, ...any) {}
 	}
 	cfg.Corpus.Jobs = cfg.Jobs
+	splitOpt := cfg.Shingle
+	effective := shingle.New(splitOpt).Options()
 
-	progress("reading %d inputs", len(cfg.Paths))
-	docs, skipped, err := corpus.Read(cfg.Paths, cfg.Corpus)
+	progress("reading and splitting %d inputs", len(cfg.Paths))
+	splitters := newSplitterPool(splitOpt)
+	docs, digests, skipped, err := corpus.ReadEach(cfg.Paths, cfg.Corpus, func(d *corpus.Document) docDigest {
+		return splitters.digest(d, effective, cfg.KeepText)
+	})
 	if err != nil {
 		return nil, err
 	}
@@ -63,21 +81,22 @@ func scan(cfg scanConfig) (*report.Result, error) {
 		if len(bad) > 0 {
 			return nil, fmt.Errorf("template %s: %s", bad[0].Path, bad[0].Reason)
 		}
-		docs, skipped = setTemplatesAside(docs, skipped, templates)
+		var kept []int
+		docs, skipped, kept = setTemplatesAside(docs, skipped, templates)
+		for k, i := range kept {
+			digests[k] = digests[i]
+		}
+		digests = digests[:len(kept)]
 	}
 	if len(docs) == 0 {
 		return nil, errNoDocuments
 	}
 
-	progress("splitting %d documents into units", len(docs))
-	splitOpt := cfg.Shingle
-	units, stats := shingleAll(docs, splitOpt, cfg.Jobs)
-	effective := shingle.New(splitOpt).Options()
-	// The engine gets what --memory leaves after the texts and units.
-	held := heldBytes(docs, units)
+	// The engine gets what --memory leaves after the documents' digests.
+	held := heldBytes(docs, digests)
 	cfg.Pairs.MemoryBudget = engineBudget(cfg.Memory, held)
 	if cfg.Memory > 0 && held > cfg.Memory && cfg.Warn != nil {
-		cfg.Warn("the documents' text and units take about %d MiB, more than --memory %d MiB; the counting spills to disk, but the run holds more than the bound", held>>20, cfg.Memory>>20)
+		cfg.Warn("the documents' names and fingerprints take about %d MiB, more than --memory %d MiB; the counting spills to disk, but the run holds more than the bound", held>>20, cfg.Memory>>20)
 	}
 	cfg.Pairs.Jobs = cfg.Jobs
 
@@ -93,12 +112,19 @@ func scan(cfg scanConfig) (*report.Result, error) {
 		excluded = slices.Compact(excluded)
 	}
 
-	in := pairs.Input{Docs: fingerprintSets(units), Excluded: excluded}
+	in := pairs.Input{Docs: make([][]uint64, len(docs)), Excluded: excluded}
+	for i := range digests {
+		in.Docs[i] = digests[i].set
+	}
 
 	progress("counting pairs among %d documents", len(docs))
 	eng, err := pairs.Count(in, cfg.Pairs)
 	if err != nil {
 		return nil, err
+	}
+	in = pairs.Input{}
+	for i := range digests {
+		digests[i].set = nil // the engine's view is no longer needed
 	}
 	if eng.Spill.Runs > 0 {
 		progress("counted in %d sorted runs on disk (%d MiB written), %d ranges of pairs", eng.Spill.Runs, eng.Spill.BytesWritten>>20, eng.Spill.Ranges)
@@ -106,6 +132,13 @@ func scan(cfg scanConfig) (*report.Result, error) {
 
 	if cfg.KeepPairs != nil {
 		cfg.KeepPairs(docs, eng)
+	}
+
+	quoted := quotedDocuments(eng, len(docs))
+	progress("reading again the %d documents of %d pairs", len(quoted), len(eng.Pairs))
+	loaded, err := readAgain(cfg, docs, digests, quoted, splitters)
+	if err != nil {
+		return nil, err
 	}
 
 	progress("aligning %d pairs", len(eng.Pairs))
@@ -133,12 +166,162 @@ func scan(cfg scanConfig) (*report.Result, error) {
 	}
 	unitSettings(&rin.Settings, effective, cfg.Chaining)
 	for i, d := range docs {
-		rin.Docs[i] = reportDoc(d, units[i], stats[i], effective)
+		g := &digests[i]
+		rin.Docs[i] = report.Doc{
+			Path: d.Path, Format: d.Format, Encoding: d.Encoding, Notes: g.notes,
+			Words: int(g.words), UnitCount: int(g.units), Marks: d.Marks,
+		}
+		if l, ok := loaded[i]; ok {
+			rin.Docs[i].Text, rin.Docs[i].Units = l.text, l.units
+		}
 	}
 	for i, s := range skipped {
 		rin.Skipped[i] = report.Skipped{Path: s.Path, Reason: s.Reason}
 	}
 	return report.Build(rin)
+}
+
+// docDigest is what a scan keeps of a document after splitting it.
+type docDigest struct {
+	set   []uint64 // distinct unit fingerprints, sorted: the engine's view
+	sum   uint64   // xxhash64 of the text, to know it when it is read again
+	size  int      // bytes of text
+	words int32
+	units int32 // units in text order
+	notes []string
+}
+
+// splitterPool lends each reading worker a Splitter and a unit buffer.
+type splitterPool struct{ pool sync.Pool }
+
+type splitterBuf struct {
+	sp    *shingle.Splitter
+	units []shingle.Unit
+}
+
+func newSplitterPool(opt shingle.Options) *splitterPool {
+	p := &splitterPool{}
+	p.pool.New = func() any { return &splitterBuf{sp: shingle.New(opt)} }
+	return p
+}
+
+// units splits text into the buffer of a pooled Splitter; the caller
+// copies what it keeps and gives the buffer back with put.
+func (p *splitterPool) units(text string) (*splitterBuf, []shingle.Unit, shingle.Stats) {
+	b := p.pool.Get().(*splitterBuf)
+	var st shingle.Stats
+	b.units, st = b.sp.Units(text, b.units)
+	return b, b.units, st
+}
+
+func (p *splitterPool) put(b *splitterBuf) { p.pool.Put(b) }
+
+// digest splits d and returns what the scan keeps of it; d's text is
+// dropped unless keepText asks for it.
+func (p *splitterPool) digest(d *corpus.Document, effective shingle.Options, keepText func(path string) bool) docDigest {
+	b, units, st := p.units(d.Text)
+	set := make([]uint64, len(units))
+	for k, u := range units {
+		set[k] = u.Hash
+	}
+	p.put(b)
+	slices.Sort(set)
+	set = slices.Clip(slices.Compact(set))
+	g := docDigest{
+		set: set, sum: xxhash.Sum64String(d.Text), size: len(d.Text),
+		words: int32(st.Words), units: int32(len(units)),
+		notes: splitNotes(d.Notes, st, d.Text, effective),
+	}
+	if keepText == nil || !keepText(d.Path) {
+		d.Text = ""
+	}
+	return g
+}
+
+// quotedDocuments lists, sorted, the documents whose text the report
+// quotes: both of every pair, and the first holder of each common unit.
+func quotedDocuments(eng *pairs.Result, n int) []int {
+	want := make([]bool, n)
+	for _, p := range eng.Pairs {
+		want[p.A], want[p.B] = true, true
+	}
+	for _, c := range eng.Common {
+		if int(c.First) < n {
+			want[c.First] = true
+		}
+	}
+	var ids []int
+	for i, w := range want {
+		if w {
+			ids = append(ids, i)
+		}
+	}
+	return ids
+}
+
+// loadedDoc is a document read again for the report: its text and units.
+type loadedDoc struct {
+	text  string
+	units []shingle.Unit
+}
+
+// readAgain reads the files of the documents ids once more, with the
+// scan's walk and options (so they are named as before), and splits them
+// again. A document whose text is not the one first read (it changed,
+// vanished or became unreadable during the run) is an error: its
+// passages' offsets would point into another text.
+func readAgain(cfg scanConfig, docs []corpus.Document, digests []docDigest, ids []int, splitters *splitterPool) (map[int]loadedDoc, error) {
+	loaded := make(map[int]loadedDoc, len(ids))
+	if len(ids) == 0 {
+		return loaded, nil
+	}
+	byPath := make(map[string]int, len(ids))
+	files := make(map[string]bool)
+	for _, i := range ids {
+		byPath[docs[i].Path] = i
+		files[docs[i].File] = true
+	}
+	opt := cfg.Corpus
+	opt.Want = func(file string) bool { return files[file] }
+	var mu sync.Mutex
+	var changed []string
+	_, _, _, err := corpus.ReadEach(cfg.Paths, opt, func(d *corpus.Document) struct{} {
+		i, ok := byPath[d.Path]
+		if !ok {
+			d.Text = ""
+			return struct{}{}
+		}
+		text := d.Text
+		d.Text = ""
+		g := &digests[i]
+		if len(text) != g.size || xxhash.Sum64String(text) != g.sum {
+			mu.Lock()
+			changed = append(changed, d.Path)
+			mu.Unlock()
+			return struct{}{}
+		}
+		b, units, _ := splitters.units(text)
+		l := loadedDoc{text: text, units: slices.Clone(units)}
+		splitters.put(b)
+		mu.Lock()
+		loaded[i] = l
+		mu.Unlock()
+		return struct{}{}
+	})
+	if err != nil {
+		return nil, err
+	}
+	for _, i := range ids {
+		if _, ok := loaded[i]; !ok {
+			changed = append(changed, docs[i].Path)
+		}
+	}
+	if len(changed) > 0 {
+		slices.Sort(changed)
+		changed = slices.Compact(changed)
+		return nil, fmt.Errorf("%s changed, moved or became unreadable while it was being scanned (%d documents in all): its passages cannot be shown; run the scan again", changed[0], len(changed))
+	}
+	return loaded, nil
 }
 
 // fingerprintSets gives the engine's view of each document: its distinct
@@ -157,37 +340,44 @@ func fingerprintSets(units [][]shingle.Unit) [][]uint64 {
 }
 
 // reportDoc is a document as the report needs it, with the notes on how it
-// was split (used by scan, compare and archive check).
+// was split (used by compare's master coverage and archive check).
 func reportDoc(d corpus.Document, units []shingle.Unit, st shingle.Stats, effective shingle.Options) report.Doc {
-	notes := slices.Clone(d.Notes)
-	notes = append(notes, skipNotes(st, d.Text)...)
+	return report.Doc{
+		Path: d.Path, Format: d.Format, Encoding: d.Encoding, Notes: splitNotes(d.Notes, st, d.Text, effective),
+		Text: d.Text, Words: st.Words, Units: units, Marks: d.Marks,
+	}
+}
+
+// splitNotes are a document's reading notes followed by what splitting it
+// set aside or had to do.
+func splitNotes(readNotes []string, st shingle.Stats, text string, effective shingle.Options) []string {
+	notes := slices.Clone(readNotes)
+	notes = append(notes, skipNotes(st, text)...)
 	if st.LineBreaks {
 		notes = append(notes, "no sentence punctuation: split at line breaks")
 	}
 	if st.Cut > 0 {
 		notes = append(notes, fmt.Sprintf("%d sentences longer than %d bytes were cut", st.Cut, effective.MaxUnitBytes))
 	}
-	return report.Doc{
-		Path: d.Path, Format: d.Format, Encoding: d.Encoding, Notes: notes,
-		Text: d.Text, Words: st.Words, Units: units, Marks: d.Marks,
-	}
+	return notes
 }
 
 // setTemplatesAside removes from docs every file that is also a template,
 // listing it as skipped, so a prompt kept beside the essays is not compared
-// with them.
-func setTemplatesAside(docs []corpus.Document, skipped []corpus.Skipped, templates []corpus.Document) ([]corpus.Document, []corpus.Skipped) {
+// with them. kept lists the original index of each document kept.
+func setTemplatesAside(docs []corpus.Document, skipped []corpus.Skipped, templates []corpus.Document) (_ []corpus.Document, _ []corpus.Skipped, kept []int) {
 	isTemplate := make(map[string]bool, len(templates))
 	for _, t := range templates {
 		isTemplate[absPath(t.Path)] = true
 	}
-	kept := docs[:0:0]
-	for _, d := range docs {
+	out := docs[:0:0]
+	for i, d := range docs {
 		if isTemplate[absPath(d.Path)] {
 			skipped = append(skipped, corpus.Skipped{Path: d.Path, Reason: "template (--exclude): not compared"})
 			continue
 		}
-		kept = append(kept, d)
+		out = append(out, d)
+		kept = append(kept, i)
 	}
 	slices.SortStableFunc(skipped, func(a, b corpus.Skipped) int {
 		switch {
@@ -198,10 +388,10 @@ func setTemplatesAside(docs []corpus.Document, skipped []corpus.Skipped, templat
 		}
 		return 0
 	})
-	for i := range kept {
-		kept[i].ID = i
+	for i := range out {
+		out[i].ID = i
 	}
-	return kept, skipped
+	return out, skipped, kept
 }
 
 func absPath(p string) string {

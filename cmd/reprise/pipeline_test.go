@@ -1,0 +1,143 @@
+package main
+
+import (
+	"bytes"
+	"os"
+	"path/filepath"
+	"slices"
+	"strings"
+	"testing"
+
+	"reprise/corpus"
+	"reprise/pairs"
+	"reprise/report"
+)
+
+// demoCopy copies the demo essays into a fresh folder a test may change.
+func demoCopy(t *testing.T) string {
+	t.Helper()
+	dir := t.TempDir()
+	entries, err := os.ReadDir("../../testdata/demo")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, e := range entries {
+		if e.IsDir() {
+			continue
+		}
+		b, err := os.ReadFile(filepath.Join("../../testdata/demo", e.Name()))
+		if err != nil {
+			t.Fatal(err)
+		}
+		writeFile(t, filepath.Join(dir, e.Name()), string(b))
+	}
+	return dir
+}
+
+func demoConfig(t *testing.T, dir string) scanConfig {
+	t.Helper()
+	var f scanFlags
+	fs := newScanFlagSet(&f, &bytes.Buffer{})
+	if err := fs.Parse([]string{dir}); err != nil {
+		t.Fatal(err)
+	}
+	cfg, _, err := f.config(fs.Args())
+	if err != nil {
+		t.Fatal(err)
+	}
+	return cfg
+}
+
+// TestScanHoldsNoTextWhileCounting: once split, a document keeps no text;
+// only the documents the report quotes are read again, and the report
+// still quotes their passages.
+func TestScanHoldsNoTextWhileCounting(t *testing.T) {
+	dir := demoCopy(t)
+	cfg := demoConfig(t, dir)
+	var seen, withText int
+	cfg.KeepPairs = func(docs []corpus.Document, eng *pairs.Result) {
+		seen = len(docs)
+		for _, d := range docs {
+			if d.Text != "" {
+				withText++
+			}
+		}
+	}
+	res, err := scan(cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if seen != 24 || withText != 0 {
+		t.Errorf("while counting: %d of %d documents held their text, want 0 of 24", withText, seen)
+	}
+	if len(res.Pairs) == 0 {
+		t.Fatal("the demo gave no pair")
+	}
+	for _, p := range res.Pairs {
+		for _, g := range p.Passages {
+			if g.Text == "" || g.Words == 0 {
+				t.Errorf("%s ~ %s: passage without text", p.A, p.B)
+			}
+		}
+	}
+	// Texts are given to the renderers for the paired documents only.
+	paired := map[string]bool{}
+	for _, p := range res.Pairs {
+		paired[p.A], paired[p.B] = true, true
+	}
+	// Texts are given for the paired documents, and otherwise only for a
+	// document that is quoted for a common unit.
+	given := 0
+	for i, d := range res.Documents {
+		text := res.Texts[i].Text
+		if text != "" {
+			given++
+		}
+		switch {
+		case paired[d.Path] && text == "":
+			t.Errorf("%s is in a pair but its text was not read again", d.Path)
+		case !paired[d.Path] && text != "" && !slices.ContainsFunc(res.Common, func(c report.Common) bool { return strings.Contains(text, c.Text) }):
+			t.Errorf("%s is in no pair and quoted for no common unit, but its text was read again", d.Path)
+		}
+	}
+	if given == len(res.Documents) {
+		t.Errorf("every one of the %d documents was read again", given)
+	}
+}
+
+// TestScanRefusesATextChangedMidRun: a paired document that changes after
+// it was split and before it is read again stops the run with an error
+// naming it, instead of showing passages at offsets into another text.
+func TestScanRefusesATextChangedMidRun(t *testing.T) {
+	dir := demoCopy(t)
+	cfg := demoConfig(t, dir)
+	var victim string
+	cfg.KeepPairs = func(docs []corpus.Document, eng *pairs.Result) {
+		if len(eng.Pairs) == 0 {
+			t.Fatal("the demo gave no pair")
+		}
+		victim = docs[eng.Pairs[0].A].Path
+		b, err := os.ReadFile(victim)
+		if err != nil {
+			t.Fatal(err)
+		}
+		writeFile(t, victim, "A new first line.\n"+string(b))
+	}
+	_, err := scan(cfg)
+	if err == nil || !strings.Contains(err.Error(), victim) || !strings.Contains(err.Error(), "changed") {
+		t.Fatalf("scan after %s changed: error %v, want one naming it as changed", victim, err)
+	}
+
+	// A paired document removed mid-run is refused the same way.
+	dir = demoCopy(t)
+	cfg = demoConfig(t, dir)
+	cfg.KeepPairs = func(docs []corpus.Document, eng *pairs.Result) {
+		victim = docs[eng.Pairs[0].B].Path
+		if err := os.Remove(victim); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if _, err := scan(cfg); err == nil || !strings.Contains(err.Error(), victim) {
+		t.Fatalf("scan after %s was removed: error %v, want one naming it", victim, err)
+	}
+}

@@ -1,0 +1,149 @@
+package corpus
+
+import (
+	"fmt"
+	"os"
+	"path/filepath"
+	"reflect"
+	"slices"
+	"strings"
+	"sync/atomic"
+	"testing"
+)
+
+// eachTree is a folder with plain files, a ZIP archive and a JSON Lines
+// file, so that File differs from Path for members and lines.
+func eachTree(t *testing.T) string {
+	t.Helper()
+	dir := t.TempDir()
+	files := map[string]string{}
+	for i := range 40 {
+		files[fmt.Sprintf("d%d/n%02d.txt", i%3, i)] = fmt.Sprintf("Plain text number %d.\n", i)
+	}
+	files["z/bad.bin"] = "\x00\x01binary"
+	files["z/lines.jsonl"] = `{"id":"one","text":"First line text."}` + "\n" + `not json` + "\n" + `{"id":"two","text":"Second line text."}` + "\n"
+	writeTree(t, dir, files)
+	zipped := zipOf(t, zipMember{name: "in/a.txt", data: []byte("Zipped member a.\n")}, zipMember{name: "in/b.txt", data: []byte("Zipped member b.\n")})
+	if err := os.WriteFile(filepath.Join(dir, "z", "arch.zip"), zipped, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return dir
+}
+
+// TestReadEachIsReadWithDigests: the documents and skipped inputs are
+// Read's, in the same order, and each digest is the one computed from its
+// own document, whatever the number of workers.
+func TestReadEachIsReadWithDigests(t *testing.T) {
+	dir := eachTree(t)
+	want, wantSkipped := mustRead(t, []string{dir}, Options{Jobs: 1})
+	if len(want) != 44 || len(wantSkipped) != 2 {
+		t.Fatalf("tree gave %d documents and %d skipped", len(want), len(wantSkipped))
+	}
+	for _, jobs := range []int{1, 4} {
+		var calls atomic.Int64
+		docs, digests, skipped, err := ReadEach([]string{dir}, Options{Jobs: jobs}, func(d *Document) string {
+			calls.Add(1)
+			return d.Path + "|" + d.Text
+		})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !reflect.DeepEqual(docs, want) || !reflect.DeepEqual(skipped, wantSkipped) {
+			t.Errorf("Jobs=%d: ReadEach's documents or skipped differ from Read's", jobs)
+		}
+		if len(digests) != len(docs) || int(calls.Load()) != len(docs) {
+			t.Fatalf("Jobs=%d: %d digests from %d calls for %d documents", jobs, len(digests), calls.Load(), len(docs))
+		}
+		for i, d := range docs {
+			if digests[i] != d.Path+"|"+d.Text {
+				t.Errorf("Jobs=%d: digest %d is %q, not its document's", jobs, i, digests[i])
+			}
+		}
+	}
+}
+
+// TestReadEachKeepsWhatDigestLeaves: a digest that drops the text drops it
+// from the result too.
+func TestReadEachKeepsWhatDigestLeaves(t *testing.T) {
+	dir := eachTree(t)
+	docs, lengths, _, err := ReadEach([]string{dir}, Options{}, func(d *Document) int {
+		n := len(d.Text)
+		if !strings.HasSuffix(d.Path, "n07.txt") {
+			d.Text = ""
+		}
+		return n
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, d := range docs {
+		if lengths[i] == 0 {
+			t.Errorf("%s: the digest saw no text", d.Path)
+		}
+		if keep := strings.HasSuffix(d.Path, "n07.txt"); keep != (d.Text != "") {
+			t.Errorf("%s: text %q after a digest that kept it: %v", d.Path, d.Text, keep)
+		}
+	}
+}
+
+// TestFileAndWant: File names the file on disk a document came from; Want
+// asked about Files reads just those files again, with the same names,
+// and lists nothing it refused as skipped.
+func TestFileAndWant(t *testing.T) {
+	dir := eachTree(t)
+	docs, _ := mustRead(t, []string{dir}, Options{})
+	byPath := map[string]Document{}
+	for _, d := range docs {
+		byPath[d.Path] = d
+		if !strings.HasPrefix(d.Path, d.File) {
+			t.Errorf("%s: File %q is not a prefix of Path", d.Path, d.File)
+		}
+		inner := strings.Contains(d.Path, "!/") || strings.Contains(d.Path, ".jsonl#")
+		if inner == (d.File == d.Path) {
+			t.Errorf("%s: File %q", d.Path, d.File)
+		}
+	}
+	member := filepath.ToSlash(filepath.Join(dir, "z", "arch.zip")) + "!/in/b.txt"
+	line := filepath.ToSlash(filepath.Join(dir, "z", "lines.jsonl")) + "#two"
+	plain := filepath.ToSlash(filepath.Join(dir, "d1", "n04.txt"))
+	for _, p := range []string{member, line, plain} {
+		if _, ok := byPath[p]; !ok {
+			t.Fatalf("no document %s among %q", p, docPaths(docs))
+		}
+	}
+	wantFiles := map[string]bool{byPath[member].File: true, byPath[line].File: true, plain: true}
+	var asked []string
+	again, skipped, err := Read([]string{dir}, Options{Want: func(f string) bool {
+		asked = append(asked, f)
+		return wantFiles[f]
+	}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(asked) < 40 {
+		t.Errorf("Want was asked about %d files, not every file found", len(asked))
+	}
+	var got []string
+	for _, d := range again {
+		got = append(got, d.Path)
+		if orig := byPath[d.Path]; orig.Text != d.Text || orig.File != d.File {
+			t.Errorf("%s read again differs from the first read", d.Path)
+		}
+	}
+	// The whole archive and the whole JSON Lines file are read again, with
+	// the line that is not JSON listed as before.
+	wantPaths := []string{
+		filepath.ToSlash(filepath.Join(dir, "d1", "n04.txt")),
+		filepath.ToSlash(filepath.Join(dir, "z", "arch.zip")) + "!/in/a.txt",
+		member,
+		filepath.ToSlash(filepath.Join(dir, "z", "lines.jsonl")) + "#one",
+		line,
+	}
+	slices.Sort(wantPaths)
+	if !reflect.DeepEqual(got, wantPaths) {
+		t.Errorf("read again: %q, want %q", got, wantPaths)
+	}
+	if len(skipped) != 1 || !strings.HasSuffix(skipped[0].Path, "lines.jsonl:2") {
+		t.Errorf("skipped when reading again: %v, want only line 2 of the JSON Lines file", skipped)
+	}
+}
