@@ -16,8 +16,9 @@ type Document struct {
 	Size     int64  // bytes on disk (for a ZIP member: its uncompressed size)
 	// File is the file on disk the document came from, named as the walk
 	// named it: Path itself, or for a ZIP member or a JSON Lines line the
-	// archive's or the file's path (a prefix of Path). Options.Want is
-	// asked about Files.
+	// archive's or the file's path (a prefix of Path). Reading File again
+	// (as a path given to Read, without Include and Skip) names the
+	// document Path again.
 	File string
 	// Text is the extracted text. For UTF-8 text files it is the file's bytes
 	// unchanged (BOM and CR included), so offsets into Text are offsets into
@@ -105,13 +106,6 @@ type Options struct {
 	// streamed.
 	JSONLID, JSONLText string
 	MaxJSONLLine       int64
-
-	// Want, when set, is asked about every file the walk finds, by the name
-	// Document.File gives it, before the file is opened; a file it refuses
-	// is neither read nor listed as skipped. It lets a caller read again
-	// just the files of chosen documents, named exactly as in the first
-	// read (same walk, same options). It is called from one goroutine.
-	Want func(file string) bool
 }
 
 // DefaultMaxFileSize is the size limit used when Options.MaxFileSize is 0.

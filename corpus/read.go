@@ -51,7 +51,6 @@ func ReadEach[T any](paths []string, opt Options, digest func(d *Document) T) ([
 		e := &w.entries[i]
 		switch {
 		case e.dup:
-		case opt.Want != nil && !opt.Want(e.display):
 		case e.reason != "":
 			skipped = append(skipped, Skipped{Path: e.display, Reason: e.reason})
 		default:
@@ -115,7 +114,10 @@ func ReadEach[T any](paths []string, opt Options, digest func(d *Document) T) ([
 	}
 	// ZIP members ("a.zip!/x") sort among the other paths, not after their
 	// archive's siblings: sort again, then number.
-	slices.SortStableFunc(items, func(a, b item) int { return strings.Compare(a.doc.Path, b.doc.Path) })
+	byPath := func(a, b item) int { return strings.Compare(a.doc.Path, b.doc.Path) }
+	if !slices.IsSortedFunc(items, byPath) { // the walk's order, unless a ZIP or JSON Lines file interleaves
+		slices.SortStableFunc(items, byPath)
+	}
 	docs := make([]Document, len(items))
 	digests := make([]T, len(items))
 	for i := range items {

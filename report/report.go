@@ -7,6 +7,8 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+	"sync"
+	"sync/atomic"
 
 	"reprise/corpus"
 	"reprise/pairs"
@@ -211,6 +213,7 @@ type Input struct {
 	Templates int      // template documents read
 	Settings  Settings
 	Chaining  *Chaining // word units: passages chained across gaps (chain.go); nil for sentences
+	Jobs      int       // pairs aligned at once (0 or 1: one at a time); the result is the same for every value
 }
 
 // Build aligns every reported pair, scores and ranks them, and assembles the Result.
@@ -241,61 +244,83 @@ func Build(in Input) (*Result, error) {
 	res.Settings.Include = nonNil(res.Settings.Include)
 	res.Settings.Skip = nonNil(res.Settings.Skip)
 
-	// Each paired document's counted units, for Jaccard and alignment,
-	// prepared on first use.
-	seqs := make([]*sequence, n)
-	seq := func(i uint32) *sequence {
-		if seqs[i] == nil {
-			s := newSequence(in.Docs[i].Units, aside)
-			seqs[i] = &s
-		}
-		return seqs[i]
-	}
-
-	reusedSpans := make([][]span, n)
-	type ranked struct {
-		pair Pair
-		a, b uint32
-	}
-	rankedPairs := make([]ranked, 0, len(eng.Pairs))
 	for _, ep := range eng.Pairs {
 		if int(ep.A) >= n || int(ep.B) >= n {
 			return nil, fmt.Errorf("report: engine pair (%d, %d) outside %d documents", ep.A, ep.B, n)
 		}
-		da, db := &in.Docs[ep.A], &in.Docs[ep.B]
-		for _, d := range []*Doc{da, db} {
+		for _, d := range []*Doc{&in.Docs[ep.A], &in.Docs[ep.B]} {
 			if !d.given() {
 				return nil, fmt.Errorf("report: %s is in a pair but its units were not given", d.Path)
 			}
 		}
-		passages := pairPassages(in.Chaining, seq(ep.A), seq(ep.B), da, db)
+	}
+	// Each paired document's counted units, for Jaccard and alignment,
+	// prepared before the pairs are aligned (in.Jobs at a time), so that
+	// aligning only reads them.
+	seqs := make([]*sequence, n)
+	for _, ep := range eng.Pairs {
+		seqs[ep.A], seqs[ep.B] = &sequence{}, &sequence{}
+	}
+	var paired []int
+	for i, s := range seqs {
+		if s != nil {
+			paired = append(paired, i)
+		}
+	}
+	parallel(len(paired), in.Jobs, func(k int) {
+		i := paired[k]
+		*seqs[i] = newSequence(in.Docs[i].Units, aside)
+		seqs[i].positions()
+	})
+
+	type ranked struct {
+		pair           Pair
+		a, b           uint32
+		aSpans, bSpans []span
+		err            error
+	}
+	rankedPairs := make([]ranked, len(eng.Pairs))
+	parallel(len(eng.Pairs), in.Jobs, func(k int) {
+		ep := eng.Pairs[k]
+		da, db := &in.Docs[ep.A], &in.Docs[ep.B]
+		r := &rankedPairs[k]
+		r.a, r.b = ep.A, ep.B
+		passages := pairPassages(in.Chaining, seqs[ep.A], seqs[ep.B], da, db)
 		if len(passages) == 0 {
-			return nil, fmt.Errorf("report: %s and %s share %d units but no passage aligns", da.Path, db.Path, ep.Shared)
+			r.err = fmt.Errorf("report: %s and %s share %d units but no passage aligns", da.Path, db.Path, ep.Shared)
+			return
 		}
 		p := Pair{A: da.Path, B: db.Path, Shared: int(ep.Shared)}
-		var aSpans, bSpans []span
-		for _, r := range passages {
-			ua, ub := da.Units[r.aFirst], db.Units[r.bFirst]
-			la, lb := da.Units[r.aLast], db.Units[r.bLast]
+		for _, l := range passages {
+			ua, ub := da.Units[l.aFirst], db.Units[l.bFirst]
+			la, lb := da.Units[l.aLast], db.Units[l.bLast]
 			g := Passage{
 				AStart: int(ua.Start), AEnd: int(la.End),
 				BStart: int(ub.Start), BEnd: int(lb.End),
-				Units: r.n,
+				Units: l.n,
 			}
 			g.Text = da.Text[g.AStart:g.AEnd]
 			g.Words = shingle.CountWords(g.Text)
-			aSpans = append(aSpans, span{g.AStart, g.AEnd})
-			bSpans = append(bSpans, span{g.BStart, g.BEnd})
+			r.aSpans = append(r.aSpans, span{g.AStart, g.AEnd})
+			r.bSpans = append(r.bSpans, span{g.BStart, g.BEnd})
 			p.Passages = append(p.Passages, g)
 		}
-		p.CoverageA = fraction(wordsIn(da.Text, aSpans), da.Words)
-		p.CoverageB = fraction(wordsIn(db.Text, bSpans), db.Words)
-		union := seq(ep.A).distinct + seq(ep.B).distinct - int(ep.Shared)
+		p.CoverageA = fraction(wordsIn(da.Text, r.aSpans), da.Words)
+		p.CoverageB = fraction(wordsIn(db.Text, r.bSpans), db.Words)
+		union := seqs[ep.A].distinct + seqs[ep.B].distinct - int(ep.Shared)
 		p.Jaccard = fraction(int(ep.Shared), union)
 		p.Score = max(p.CoverageA, p.CoverageB)
-		reusedSpans[ep.A] = append(reusedSpans[ep.A], aSpans...)
-		reusedSpans[ep.B] = append(reusedSpans[ep.B], bSpans...)
-		rankedPairs = append(rankedPairs, ranked{p, ep.A, ep.B})
+		r.pair = p
+	})
+	reusedSpans := make([][]span, n)
+	for k := range rankedPairs {
+		r := &rankedPairs[k]
+		if r.err != nil {
+			return nil, r.err
+		}
+		reusedSpans[r.a] = append(reusedSpans[r.a], r.aSpans...)
+		reusedSpans[r.b] = append(reusedSpans[r.b], r.bSpans...)
+		r.aSpans, r.bSpans = nil, nil
 	}
 	slices.SortStableFunc(rankedPairs, func(x, y ranked) int {
 		return cmp.Or(
@@ -454,4 +479,26 @@ func (x *lineIndex) line(text string, offset int) int {
 		return k + 1
 	}
 	return k
+}
+
+// parallel calls do(k) for every k in [0, n), on up to jobs goroutines;
+// each k is done once, by one goroutine.
+func parallel(n, jobs int, do func(k int)) {
+	jobs = max(1, min(jobs, n))
+	if jobs == 1 {
+		for k := range n {
+			do(k)
+		}
+		return
+	}
+	var next atomic.Int64
+	var wg sync.WaitGroup
+	for range jobs {
+		wg.Go(func() {
+			for k := int(next.Add(1) - 1); k < n; k = int(next.Add(1) - 1) {
+				do(k)
+			}
+		})
+	}
+	wg.Wait()
 }

@@ -3,8 +3,11 @@ package report
 import (
 	"bytes"
 	"flag"
+	"fmt"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"reflect"
 	"strings"
 	"testing"
 
@@ -227,5 +230,58 @@ func TestWhereNamesPagesParagraphsOrLines(t *testing.T) {
 		if got := where(tc.marks, tc.offset, 3); got != tc.want {
 			t.Errorf("%s: where = %q, want %q", tc.name, got, tc.want)
 		}
+	}
+}
+
+// TestBuildSameForEveryJobs: aligning pairs on several goroutines gives the
+// result of aligning them one at a time, for sentences and word chaining;
+// and a document in no pair may come without its text and units.
+func TestBuildSameForEveryJobs(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 7))
+	labels := []string{"a", "b", "c", "d", "e", "f", "g", "h"}
+	var docs []Doc
+	for i := range 40 {
+		var ss []string
+		for k := range 6 + rng.IntN(6) {
+			l := labels[rng.IntN(len(labels))]
+			ss = append(ss, fmt.Sprintf("%s:Sentence %s number %d here.", l, l, k))
+		}
+		docs = append(docs, doc(fmt.Sprintf("d%02d.txt", i), ss...))
+	}
+	eng := &pairs.Result{}
+	for a := range 30 {
+		for b := a + 1; b < 30; b += 1 + rng.IntN(4) {
+			eng.Pairs = append(eng.Pairs, pairs.Pair{A: uint32(a), B: uint32(b), Shared: 2})
+		}
+	}
+	// Documents 30..39 are in no pair: they are given by their counts only.
+	for i := 30; i < 40; i++ {
+		docs[i].UnitCount, docs[i].Units, docs[i].Text = len(docs[i].Units), nil, ""
+	}
+	for _, ch := range []*Chaining{nil, {Gap: 3}} {
+		one, err := Build(Input{Docs: docs, Engine: eng, Chaining: ch, Jobs: 1})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(one.Pairs) != len(eng.Pairs) {
+			t.Fatalf("%d pairs reported of %d", len(one.Pairs), len(eng.Pairs))
+		}
+		if got := one.Documents[35].Units; got != docs[35].UnitCount {
+			t.Errorf("a document given by its count shows %d units, want %d", got, docs[35].UnitCount)
+		}
+		for _, jobs := range []int{2, 8} {
+			many, err := Build(Input{Docs: docs, Engine: eng, Chaining: ch, Jobs: jobs})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !reflect.DeepEqual(many, one) {
+				t.Errorf("chaining %v, Jobs %d: the result differs from Jobs 1", ch != nil, jobs)
+			}
+		}
+	}
+	// A pair naming a document without its units is an error, not a guess.
+	eng.Pairs = append(eng.Pairs, pairs.Pair{A: 1, B: 35, Shared: 2})
+	if _, err := Build(Input{Docs: docs, Engine: eng}); err == nil || !strings.Contains(err.Error(), "d35.txt") {
+		t.Errorf("a pair with a document given without units: error %v", err)
 	}
 }

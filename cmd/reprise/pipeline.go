@@ -149,6 +149,7 @@ func scan(cfg scanConfig) (*report.Result, error) {
 		Excluded:  excluded,
 		Templates: len(templates),
 		Chaining:  cfg.Chaining,
+		Jobs:      cfg.Jobs,
 		Settings: report.Settings{
 			Version:      version,
 			Unit:         "sentence",
@@ -266,8 +267,7 @@ type loadedDoc struct {
 }
 
 // readAgain reads the files of the documents ids once more, with the
-// scan's walk and options (so they are named as before), and splits them
-// again. A document whose text is not the one first read (it changed,
+// scan's options, and splits them again. A document whose text is not the one first read (it changed,
 // vanished or became unreadable during the run) is an error: its
 // passages' offsets would point into another text.
 func readAgain(cfg scanConfig, docs []corpus.Document, digests []docDigest, ids []int, splitters *splitterPool) (map[int]loadedDoc, error) {
@@ -276,16 +276,20 @@ func readAgain(cfg scanConfig, docs []corpus.Document, digests []docDigest, ids 
 		return loaded, nil
 	}
 	byPath := make(map[string]int, len(ids))
-	files := make(map[string]bool)
+	var files []string
 	for _, i := range ids {
 		byPath[docs[i].Path] = i
-		files[docs[i].File] = true
+		files = append(files, docs[i].File)
 	}
+	slices.Sort(files)
+	files = slices.Compact(files)
+	// Named one by one, the files are read without a walk of the folders,
+	// and --include and --skip have chosen them already.
 	opt := cfg.Corpus
-	opt.Want = func(file string) bool { return files[file] }
+	opt.Include, opt.Skip = nil, nil
 	var mu sync.Mutex
 	var changed []string
-	_, _, _, err := corpus.ReadEach(cfg.Paths, opt, func(d *corpus.Document) struct{} {
+	_, _, _, err := corpus.ReadEach(files, opt, func(d *corpus.Document) struct{} {
 		i, ok := byPath[d.Path]
 		if !ok {
 			d.Text = ""
