@@ -99,29 +99,36 @@ func ReadEach[T any](paths []string, opt Options, digest func(d *Document) T) ([
 	}
 	wg.Wait()
 
-	type item struct {
-		doc    Document
-		digest T
+	total := 0
+	for i := range results {
+		total += len(results[i].docs)
 	}
-	var items []item
+	docs := make([]Document, 0, total)
+	digests := make([]T, 0, total)
 	for i := range results {
 		r := &results[i]
-		for k := range r.docs {
-			items = append(items, item{r.docs[k], r.digests[k]})
-		}
+		docs = append(docs, r.docs...)
+		digests = append(digests, r.digests...)
 		skipped = append(skipped, r.skipped...)
-		results[i] = read{}
+		results[i] = read{} // held once, not twice, for a large corpus
 	}
-	// ZIP members ("a.zip!/x") sort among the other paths, not after their
-	// archive's siblings: sort again, then number.
-	byPath := func(a, b item) int { return strings.Compare(a.doc.Path, b.doc.Path) }
-	if !slices.IsSortedFunc(items, byPath) { // the walk's order, unless a ZIP or JSON Lines file interleaves
-		slices.SortStableFunc(items, byPath)
+	// The documents come in the walk's order, sorted by path, unless a ZIP
+	// archive's members ("a.zip!/x") or a JSON Lines file's lines sort
+	// among other paths: sort again, then number.
+	byPath := func(a, b int) int { return strings.Compare(docs[a].Path, docs[b].Path) }
+	if !slices.IsSortedFunc(docs, func(a, b Document) int { return strings.Compare(a.Path, b.Path) }) {
+		order := make([]int, total)
+		for i := range order {
+			order[i] = i
+		}
+		slices.SortStableFunc(order, byPath)
+		sortedDocs, sortedDigests := make([]Document, total), make([]T, total)
+		for i, k := range order {
+			sortedDocs[i], sortedDigests[i] = docs[k], digests[k]
+		}
+		docs, digests = sortedDocs, sortedDigests
 	}
-	docs := make([]Document, len(items))
-	digests := make([]T, len(items))
-	for i := range items {
-		docs[i], digests[i] = items[i].doc, items[i].digest
+	for i := range docs {
 		docs[i].ID = i
 	}
 	slices.SortStableFunc(skipped, func(a, b Skipped) int { return strings.Compare(a.Path, b.Path) })

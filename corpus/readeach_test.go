@@ -136,3 +136,29 @@ func TestFileReadsAgain(t *testing.T) {
 		t.Errorf("skipped when reading again: %v, want only line 2 of the JSON Lines file", skipped)
 	}
 }
+
+// TestReadEachSortsMembersAmongFiles: a ZIP member sorts by its whole path
+// ("a.zip!/x" after "a.zip b.txt", '!' being after ' '), not where the walk
+// met its archive; each digest moves with its document.
+func TestReadEachSortsMembersAmongFiles(t *testing.T) {
+	dir := t.TempDir()
+	writeTree(t, dir, map[string]string{"a.zip b.txt": "Beside the archive.\n", "c.txt": "After it.\n"})
+	zipped := zipOf(t, zipMember{name: "x.txt", data: []byte("Inside the archive.\n")})
+	if err := os.WriteFile(filepath.Join(dir, "a.zip"), zipped, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	docs, digests, _, err := ReadEach([]string{dir}, Options{Jobs: 2}, func(d *Document) string { return d.Text })
+	if err != nil {
+		t.Fatal(err)
+	}
+	var got []string
+	for i, d := range docs {
+		got = append(got, strings.TrimPrefix(d.Path, filepath.ToSlash(dir)+"/"))
+		if digests[i] != d.Text || d.ID != i {
+			t.Errorf("%s: digest %q, ID %d at index %d", d.Path, digests[i], d.ID, i)
+		}
+	}
+	if want := []string{"a.zip b.txt", "a.zip!/x.txt", "c.txt"}; !reflect.DeepEqual(got, want) {
+		t.Errorf("order %q, want %q", got, want)
+	}
+}

@@ -88,6 +88,7 @@ func run() error {
 	extra := flag.String("args", "", "more flags for reprise scan, space-separated")
 	engineDocs := flag.Int("engine", 0, "also run the pair engine alone on this many documents' fingerprints (e.g. 1000000; 0: skip)")
 	engineMem := flag.String("engine-memory", "1GiB,0", "budgets for -engine, comma-separated (0: no bound)")
+	generateOnly := flag.Bool("generate-only", false, "write the corpora of -sizes under -work and stop (to time a size by hand)")
 	flag.Parse()
 	for _, s := range strings.Split(*sizes, ",") {
 		if s = strings.TrimSpace(s); s == "" {
@@ -115,6 +116,17 @@ func run() error {
 	g := newGenerator(samples, o.seed, o.reuse)
 	if err := os.MkdirAll(o.work, 0o755); err != nil {
 		return err
+	}
+	if *generateOnly {
+		for _, n := range o.sizes {
+			dir := corpusDir(o, n)
+			bytes, err := g.ensure(dir, n)
+			if err != nil {
+				return err
+			}
+			fmt.Printf("%d documents, %.1f MB in %s\n", n, float64(bytes)/1e6, dir)
+		}
+		return nil
 	}
 	bin := filepath.Join(o.work, "reprise")
 	build := exec.Command("go", "build", "-o", bin, "./cmd/reprise")
@@ -303,7 +315,7 @@ type result struct {
 // measure builds (or reuses) the corpus of n documents and times the two
 // commands alternately.
 func measure(g *generator, bin string, n int, o options) (*result, error) {
-	dir := filepath.Join(o.work, fmt.Sprintf("corpus-%d-%d-%g", n, o.seed, o.reuse))
+	dir := corpusDir(o, n)
 	bytes, err := g.ensure(dir, n)
 	if err != nil {
 		return nil, err
@@ -339,6 +351,11 @@ func measure(g *generator, bin string, n int, o options) (*result, error) {
 	fmt.Printf("  cat | wc -w:  median %.2f s (runs %s), peak RSS %.0f MiB\n", r.base, list(bases), slices.Max(baseRSS)/1024)
 	fmt.Printf("  ratio scan / baseline: %.2f\n", r.scan/r.base)
 	return r, nil
+}
+
+// corpusDir is where the corpus of n documents is written.
+func corpusDir(o options, n int) string {
+	return filepath.Join(o.work, fmt.Sprintf("corpus-%d-%d-%g", n, o.seed, o.reuse))
 }
 
 // timed runs a command under /usr/bin/time and returns its wall time in
