@@ -98,6 +98,7 @@ func ReadEach[T any](paths []string, opt Options, digest func(d *Document) T) ([
 		})
 	}
 	wg.Wait()
+	w.entries, todo = nil, nil // the walk's names and identities are not needed any more
 
 	total := 0
 	for i := range results {
