@@ -2,7 +2,11 @@ package corpus
 
 import (
 	"path/filepath"
+	"strings"
 	"testing"
+
+	"reprise/internal/brown"
+	"reprise/internal/refdata"
 )
 
 // BenchmarkExtract measures extraction throughput per format on the
@@ -46,6 +50,88 @@ func BenchmarkExtract(b *testing.B) {
 			for _, p := range extractBytes(b, "all.zip", raw, opt) {
 				if p.reason != "" {
 					b.Fatal(p.sub, p.reason)
+				}
+			}
+		}
+	})
+}
+
+// brownTextFiles cuts the first samples of the Brown corpus (fetched by
+// scripts/fetch-data.sh into .cache/data/brown; untagged by internal/brown)
+// into files of about size bytes, each ending at a line end, until total
+// bytes are collected. The files are the plain .txt a user would give: one
+// sentence per line, blank lines between paragraphs, curly quotes (UTF-8).
+func brownTextFiles(tb testing.TB, size, total int) [][]byte {
+	tb.Helper()
+	samples, err := brown.Load(refdata.Path(tb, "brown"))
+	if err != nil {
+		tb.Fatal(err)
+	}
+	var files [][]byte
+	var cur []byte
+	n := 0
+	for _, s := range samples {
+		for line := range strings.Lines(s.Text) {
+			cur = append(cur, line...)
+			if len(cur) >= size {
+				files = append(files, cur)
+				n += len(cur)
+				cur = nil
+				if n >= total {
+					return files
+				}
+			}
+		}
+	}
+	tb.Fatalf("the Brown corpus gave only %d bytes, want %d", n, total)
+	return nil
+}
+
+// BenchmarkExtractBrownText measures what reading a corpus of plain .txt
+// files costs per file once its bytes are in memory: 64 files of about
+// 5.5 KB of Brown-corpus English (63 files, 351 KB), each through
+// extractFile as Read does (format detection, then decoding), and the two
+// stages alone:
+//
+//	go test -run '^$' -bench BenchmarkExtractBrownText -count 6 ./corpus
+func BenchmarkExtractBrownText(b *testing.B) {
+	files := brownTextFiles(b, 5500, 350_000)
+	total := 0
+	for _, f := range files {
+		total += len(f)
+	}
+	opt := testOptions(b)
+	b.Run("extractFile", func(b *testing.B) {
+		b.SetBytes(int64(total))
+		b.ReportAllocs()
+		for b.Loop() {
+			for _, raw := range files {
+				budget := opt.MaxContainerBytes
+				ps := extractFile("sample.txt", &input{raw: raw, opt: opt, budget: &budget})
+				if len(ps) != 1 || ps[0].reason != "" || ps[0].format != "text" || len(ps[0].Text) != len(raw) {
+					b.Fatalf("extractFile: %+v", ps)
+				}
+			}
+		}
+	})
+	b.Run("choose", func(b *testing.B) {
+		b.SetBytes(int64(total))
+		b.ReportAllocs()
+		for b.Loop() {
+			for _, raw := range files {
+				if x := choose("sample.txt", raw); x == nil || x.format() != "text" {
+					b.Fatalf("choose: %v", x)
+				}
+			}
+		}
+	})
+	b.Run("decode", func(b *testing.B) {
+		b.SetBytes(int64(total))
+		b.ReportAllocs()
+		for b.Loop() {
+			for _, raw := range files {
+				if _, err := decode(raw); err != nil {
+					b.Fatal(err)
 				}
 			}
 		}

@@ -10,6 +10,8 @@ import (
 	"mime/quotedprintable"
 	"net/mail"
 	"strings"
+	"unicode"
+	"unicode/utf8"
 
 	"golang.org/x/text/encoding/htmlindex"
 )
@@ -36,33 +38,92 @@ type emailText struct{}
 func (emailText) format() string         { return "email" }
 func (emailText) claims(ext string) bool { return ext == ".eml" }
 
-// emailStarts are header fields a saved message commonly starts with.
-var emailStarts = []string{"received:", "return-path:", "from:", "date:", "message-id:", "mime-version:", "delivered-to:", "subject:", "to:", "x-"}
+// emailStarts are header fields a saved message commonly starts with,
+// lower case.
+var emailStarts = [...]string{"received:", "return-path:", "from:", "date:", "message-id:", "mime-version:", "delivered-to:", "subject:", "to:", "x-"}
 
 // sniff: the first line is a header field a message starts with, and the
-// header block (up to the first blank line) has both From: and Date: or
-// Subject: (RFC 5322, 3.6: From and Date are required).
+// header block (up to the first blank line, "\n\n" or "\r\n\r\n") has
+// both From: and Date: or Subject: (RFC 5322, 3.6: From and Date are
+// required). Field names are matched at line starts, in any case.
+//
+// sniff runs on every file whose format is not known yet, so it must cost
+// little on the files that are not e-mail, which are most: it compares the
+// first bytes with each field name in place, without lowering or copying
+// head, and a file whose first line is not a header field costs a few byte
+// comparisons. For one that is, it walks the header lines (bytes.IndexByte
+// finds each line end) and stops at the blank line or as soon as both
+// fields are seen, so at most head (sniffLen bytes) is read. The case
+// folding is that of bytes.ToLower, which an earlier version applied to
+// the whole head: see hasFoldPrefix.
 func (emailText) sniff(head []byte) bool {
-	l := bytes.ToLower(head)
-	ok := false
+	start := false
 	for _, s := range emailStarts {
-		if bytes.HasPrefix(l, []byte(s)) {
-			ok = true
+		if hasFoldPrefix(head, s) {
+			start = true
 			break
 		}
 	}
-	if !ok {
+	if !start {
 		return false
 	}
-	end := bytes.Index(l, []byte("\n\n"))
-	if e := bytes.Index(l, []byte("\r\n\r\n")); e >= 0 && (end < 0 || e < end) {
-		end = e
+	from, dateOrSubject := false, false
+	for p := 0; p < len(head); {
+		line := head[p:]
+		if p > 0 && (line[0] == '\n' || // "\n\n" ends the header block
+			p >= 2 && head[p-2] == '\r' && len(line) >= 2 && line[0] == '\r' && line[1] == '\n') { // "\r\n\r\n"
+			break
+		}
+		switch {
+		case hasFoldPrefix(line, "from:"):
+			from = true
+		case hasFoldPrefix(line, "date:"), hasFoldPrefix(line, "subject:"):
+			dateOrSubject = true
+		}
+		if from && dateOrSubject {
+			return true
+		}
+		n := bytes.IndexByte(line, '\n')
+		if n < 0 {
+			break
+		}
+		p += n + 1
 	}
-	if end < 0 {
-		end = len(l)
+	return false
+}
+
+// hasFoldPrefix reports whether b starts with lower, a lower-case ASCII
+// string, when b is lowered as bytes.ToLower lowers it: rune by rune with
+// unicode.ToLower (Go standard library bytes and unicode packages), an
+// invalid byte counting as U+FFFD. ASCII bytes are folded directly; any
+// other rune is decoded and lowered, because two non-ASCII letters lower to
+// ASCII (U+0130 to "i", U+212A KELVIN SIGN to "k"; listed by scanning
+// unicode.ToLower over every rune), so "RECE\u0130VED:" starts a header
+// exactly as it did when head was lowered whole.
+func hasFoldPrefix(b []byte, lower string) bool {
+	i := 0
+	for j := 0; j < len(lower); j++ {
+		if i >= len(b) {
+			return false
+		}
+		c := b[i]
+		if c >= utf8.RuneSelf {
+			r, n := utf8.DecodeRune(b[i:])
+			if unicode.ToLower(r) != rune(lower[j]) {
+				return false
+			}
+			i += n
+			continue
+		}
+		if 'A' <= c && c <= 'Z' {
+			c += 'a' - 'A'
+		}
+		if c != lower[j] {
+			return false
+		}
+		i++
 	}
-	h := append([]byte("\n"), l[:end]...)
-	return bytes.Contains(h, []byte("\nfrom:")) && (bytes.Contains(h, []byte("\ndate:")) || bytes.Contains(h, []byte("\nsubject:")))
+	return true
 }
 
 // emailBody is what the walk over the parts found.
