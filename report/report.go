@@ -2,6 +2,7 @@ package report
 
 import (
 	"cmp"
+	"errors"
 	"fmt"
 	"math"
 	"slices"
@@ -214,7 +215,17 @@ type Input struct {
 	Settings  Settings
 	Chaining  *Chaining // word units: passages chained across gaps (chain.go); nil for sentences
 	Jobs      int       // pairs aligned at once (0 or 1: one at a time); the result is the same for every value
+	// Load, when set, gives the text and units of the documents the
+	// report quotes, which Docs then leave out (UnitCount gives their
+	// number); Result.Texts is then left for the caller to fill.
+	Load Loader
 }
+
+// A Loader gives the text and units (in text order, as shingle produced
+// them) of the document with index id. Build calls it from up to
+// Input.Jobs goroutines at once, keeps what it returns only while it works
+// on that document, and asks again rather than hold many documents.
+type Loader func(id int) (text string, units []shingle.Unit, err error)
 
 // Build aligns every reported pair, scores and ranks them, and assembles the Result.
 func Build(in Input) (*Result, error) {
@@ -248,76 +259,65 @@ func Build(in Input) (*Result, error) {
 		if int(ep.A) >= n || int(ep.B) >= n {
 			return nil, fmt.Errorf("report: engine pair (%d, %d) outside %d documents", ep.A, ep.B, n)
 		}
-		for _, d := range []*Doc{&in.Docs[ep.A], &in.Docs[ep.B]} {
-			if !d.given() {
-				return nil, fmt.Errorf("report: %s is in a pair but its units were not given", d.Path)
-			}
+	}
+	for _, c := range eng.Common {
+		if int(c.First) >= n {
+			return nil, fmt.Errorf("report: common unit in document %d outside %d documents", c.First, n)
 		}
 	}
-	// Each paired document's counted units, for Jaccard and alignment,
-	// prepared before the pairs are aligned (in.Jobs at a time), so that
-	// aligning only reads them.
-	seqs := make([]*sequence, n)
-	for _, ep := range eng.Pairs {
-		seqs[ep.A], seqs[ep.B] = &sequence{}, &sequence{}
-	}
-	var paired []int
-	for i, s := range seqs {
-		if s != nil {
-			paired = append(paired, i)
-		}
-	}
-	parallel(len(paired), in.Jobs, func(k int) {
-		i := paired[k]
-		*seqs[i] = newSequence(in.Docs[i].Units, aside)
-		seqs[i].positions()
-	})
+	load := func(id uint32) (*quoted, error) { return in.quote(id, aside) }
 
+	// The pairs are aligned a first document at a time (in.Jobs at once):
+	// each first document is loaded once for all its pairs, each partner
+	// once per pair, and nothing is kept but the pair's numbers and
+	// passages, so that memory holds a few documents, not all.
 	type ranked struct {
 		pair           Pair
 		a, b           uint32
 		aSpans, bSpans []span
-		err            error
 	}
 	rankedPairs := make([]ranked, len(eng.Pairs))
-	parallel(len(eng.Pairs), in.Jobs, func(k int) {
-		ep := eng.Pairs[k]
-		da, db := &in.Docs[ep.A], &in.Docs[ep.B]
-		r := &rankedPairs[k]
-		r.a, r.b = ep.A, ep.B
-		passages := pairPassages(in.Chaining, seqs[ep.A], seqs[ep.B], da, db)
-		if len(passages) == 0 {
-			r.err = fmt.Errorf("report: %s and %s share %d units but no passage aligns", da.Path, db.Path, ep.Shared)
+	byFirst := make([]int, len(eng.Pairs))
+	for k := range byFirst {
+		byFirst[k] = k
+	}
+	slices.SortStableFunc(byFirst, func(x, y int) int { return cmp.Compare(eng.Pairs[x].A, eng.Pairs[y].A) })
+	var groups [][]int // runs of byFirst with the same first document
+	for lo := 0; lo < len(byFirst); {
+		hi := lo + 1
+		for hi < len(byFirst) && eng.Pairs[byFirst[hi]].A == eng.Pairs[byFirst[lo]].A {
+			hi++
+		}
+		groups = append(groups, byFirst[lo:hi])
+		lo = hi
+	}
+	errs := make([]error, len(groups))
+	parallel(len(groups), in.Jobs, func(gi int) {
+		a, err := load(eng.Pairs[groups[gi][0]].A)
+		if err != nil {
+			errs[gi] = err
 			return
 		}
-		p := Pair{A: da.Path, B: db.Path, Shared: int(ep.Shared)}
-		for _, l := range passages {
-			ua, ub := da.Units[l.aFirst], db.Units[l.bFirst]
-			la, lb := da.Units[l.aLast], db.Units[l.bLast]
-			g := Passage{
-				AStart: int(ua.Start), AEnd: int(la.End),
-				BStart: int(ub.Start), BEnd: int(lb.End),
-				Units: l.n,
+		for _, k := range groups[gi] {
+			ep := eng.Pairs[k]
+			b, err := load(ep.B)
+			if err != nil {
+				errs[gi] = err
+				return
 			}
-			g.Text = da.Text[g.AStart:g.AEnd]
-			g.Words = shingle.CountWords(g.Text)
-			r.aSpans = append(r.aSpans, span{g.AStart, g.AEnd})
-			r.bSpans = append(r.bSpans, span{g.BStart, g.BEnd})
-			p.Passages = append(p.Passages, g)
+			r := &rankedPairs[k]
+			r.a, r.b = ep.A, ep.B
+			if errs[gi] = alignPair(&r.pair, &r.aSpans, &r.bSpans, in.Chaining, a, b, int(ep.Shared)); errs[gi] != nil {
+				return
+			}
 		}
-		p.CoverageA = fraction(wordsIn(da.Text, r.aSpans), da.Words)
-		p.CoverageB = fraction(wordsIn(db.Text, r.bSpans), db.Words)
-		union := seqs[ep.A].distinct + seqs[ep.B].distinct - int(ep.Shared)
-		p.Jaccard = fraction(int(ep.Shared), union)
-		p.Score = max(p.CoverageA, p.CoverageB)
-		r.pair = p
 	})
+	if err := errors.Join(errs...); err != nil {
+		return nil, err
+	}
 	reusedSpans := make([][]span, n)
 	for k := range rankedPairs {
 		r := &rankedPairs[k]
-		if r.err != nil {
-			return nil, r.err
-		}
 		reusedSpans[r.a] = append(reusedSpans[r.a], r.aSpans...)
 		reusedSpans[r.b] = append(reusedSpans[r.b], r.bSpans...)
 		r.aSpans, r.bSpans = nil, nil
@@ -330,17 +330,30 @@ func Build(in Input) (*Result, error) {
 			strings.Compare(x.pair.B, y.pair.B),
 		)
 	})
-	lines := make([]lineIndex, n)
 	for _, rp := range rankedPairs {
-		p := rp.pair
-		for k := range p.Passages {
-			g := &p.Passages[k]
-			g.ALine = lines[rp.a].line(in.Docs[rp.a].Text, g.AStart)
-			g.BLine = lines[rp.b].line(in.Docs[rp.b].Text, g.BStart)
-			g.AWhere = where(in.Docs[rp.a].Marks, g.AStart, g.ALine)
-			g.BWhere = where(in.Docs[rp.b].Marks, g.BStart, g.BLine)
+		res.Pairs = append(res.Pairs, rp.pair)
+	}
+
+	// Each paired document's share of words inside any passage.
+	reused := make([]float64, n)
+	var withSpans []int
+	for i, sp := range reusedSpans {
+		if len(sp) > 0 {
+			withSpans = append(withSpans, i)
 		}
-		res.Pairs = append(res.Pairs, p)
+	}
+	errs = make([]error, len(withSpans))
+	parallel(len(withSpans), in.Jobs, func(k int) {
+		i := withSpans[k]
+		q, err := load(uint32(i))
+		if err != nil {
+			errs[k] = err
+			return
+		}
+		reused[i] = fraction(wordsIn(q.text, reusedSpans[i]), in.Docs[i].Words)
+	})
+	if err := errors.Join(errs...); err != nil {
+		return nil, err
 	}
 
 	totalUnits, totalWords := 0, 0
@@ -352,22 +365,25 @@ func Build(in Input) (*Result, error) {
 			Encoding: d.Encoding,
 			Words:    d.Words,
 			Units:    d.unitCount(),
-			Reused:   fraction(wordsIn(d.Text, reusedSpans[i]), d.Words),
+			Reused:   reused[i],
 			Notes:    nonNil(slices.Clone(d.Notes)),
 		}
-		res.Texts[i] = SourceText{Text: d.Text}
+		if in.Load == nil {
+			res.Texts[i] = SourceText{Text: d.Text}
+		}
 		totalUnits += d.unitCount()
 		totalWords += d.Words
 	}
+	if in.Load != nil {
+		res.Texts = nil // the caller gives the texts a renderer needs (Loader)
+	}
 
 	for _, c := range eng.Common {
-		if int(c.First) >= n {
-			return nil, fmt.Errorf("report: common unit in document %d outside %d documents", c.First, n)
+		q, err := load(c.First)
+		if err != nil {
+			return nil, err
 		}
-		if d := &in.Docs[c.First]; !d.given() {
-			return nil, fmt.Errorf("report: %s holds a common unit but its units were not given", d.Path)
-		}
-		res.Common = append(res.Common, Common{Text: unitText(&in.Docs[c.First], c.Hash), Documents: int(c.Docs)})
+		res.Common = append(res.Common, Common{Text: unitText(q, c.Hash), Documents: int(c.Docs)})
 	}
 	slices.SortStableFunc(res.Common, func(x, y Common) int {
 		return cmp.Or(cmp.Compare(y.Documents, x.Documents), strings.Compare(x.Text, y.Text))
@@ -404,14 +420,81 @@ func Build(in Input) (*Result, error) {
 	return res, nil
 }
 
-// unitText quotes the first unit of d with the given fingerprint.
-func unitText(d *Doc, hash uint64) string {
-	for _, u := range d.Units {
+// unitText quotes the first unit of q with the given fingerprint.
+func unitText(q *quoted, hash uint64) string {
+	for _, u := range q.units {
 		if u.Hash == hash {
-			return d.Text[u.Start:u.End]
+			return strings.Clone(q.text[u.Start:u.End])
 		}
 	}
 	return ""
+}
+
+// quoted is a document loaded for aligning and quoting.
+type quoted struct {
+	doc   *Doc
+	text  string
+	units []shingle.Unit
+	seq   sequence
+	lines lineIndex
+}
+
+// quote loads document id: from its Doc, or from in.Load when set.
+func (in *Input) quote(id uint32, aside setAside) (*quoted, error) {
+	d := &in.Docs[id]
+	q := &quoted{doc: d, text: d.Text, units: d.Units}
+	if in.Load != nil {
+		var err error
+		if q.text, q.units, err = in.Load(int(id)); err != nil {
+			return nil, fmt.Errorf("report: %s: %w", d.Path, err)
+		}
+		if len(q.units) != d.UnitCount {
+			return nil, fmt.Errorf("report: %s: %d units loaded, %d counted", d.Path, len(q.units), d.UnitCount)
+		}
+	} else if !d.given() {
+		return nil, fmt.Errorf("report: %s is quoted but its units were not given", d.Path)
+	}
+	q.seq = newSequence(q.units, aside)
+	return q, nil
+}
+
+// alignPair finds the passages of a and b, which share shared units, and
+// fills p with them and its scores; aSpans and bSpans get the passages'
+// byte spans in each document.
+func alignPair(p *Pair, aSpans, bSpans *[]span, ch *Chaining, a, b *quoted, shared int) error {
+	da, db := a.doc, b.doc
+	da2, db2 := *da, *db
+	da2.Text, da2.Units = a.text, a.units
+	db2.Text, db2.Units = b.text, b.units
+	passages := pairPassages(ch, &a.seq, &b.seq, &da2, &db2)
+	if len(passages) == 0 {
+		return fmt.Errorf("report: %s and %s share %d units but no passage aligns", da.Path, db.Path, shared)
+	}
+	*p = Pair{A: da.Path, B: db.Path, Shared: shared}
+	for _, l := range passages {
+		ua, ub := a.units[l.aFirst], b.units[l.bFirst]
+		la, lb := a.units[l.aLast], b.units[l.bLast]
+		g := Passage{
+			AStart: int(ua.Start), AEnd: int(la.End),
+			BStart: int(ub.Start), BEnd: int(lb.End),
+			Units: l.n,
+		}
+		g.Text = strings.Clone(a.text[g.AStart:g.AEnd])
+		g.Words = shingle.CountWords(g.Text)
+		g.ALine = a.lines.line(a.text, g.AStart)
+		g.BLine = b.lines.line(b.text, g.BStart)
+		g.AWhere = where(da.Marks, g.AStart, g.ALine)
+		g.BWhere = where(db.Marks, g.BStart, g.BLine)
+		*aSpans = append(*aSpans, span{g.AStart, g.AEnd})
+		*bSpans = append(*bSpans, span{g.BStart, g.BEnd})
+		p.Passages = append(p.Passages, g)
+	}
+	p.CoverageA = fraction(wordsIn(a.text, *aSpans), da.Words)
+	p.CoverageB = fraction(wordsIn(b.text, *bSpans), db.Words)
+	union := a.seq.distinct + b.seq.distinct - shared
+	p.Jaccard = fraction(shared, union)
+	p.Score = max(p.CoverageA, p.CoverageB)
+	return nil
 }
 
 // fraction is part/whole rounded to four decimals (0 when whole is 0),

@@ -141,6 +141,7 @@ func runCompare(args []string, stdout, stderr io.Writer) int {
 			eng.MaxDocs = max(2, len(docs))
 		}
 	}
+	cfg.TextPairs = sideBySidePairs(f.format, f.htmlPairs)
 	res, err := scan(cfg)
 	prog.done()
 	if err != nil {

@@ -33,6 +33,9 @@ type scanConfig struct {
 	// corpus.Document handed to KeepPairs (compare's masters); the others'
 	// texts are dropped once split.
 	KeepText func(path string) bool
+	// TextPairs: the texts of the documents of the first TextPairs ranked
+	// pairs are given in the Result (the HTML page's side-by-side views).
+	TextPairs int
 	// KeepPairs, when set, may drop pairs, groups and clusters from the
 	// engine's result before the report is built (compare.go).
 	KeepPairs func(docs []corpus.Document, eng *pairs.Result)
@@ -136,8 +139,12 @@ func scan(cfg scanConfig) (*report.Result, error) {
 
 	quoted := quotedDocuments(eng, len(docs))
 	progress("reading again the %d documents of %d pairs", len(quoted), len(eng.Pairs))
-	loaded, err := readAgain(cfg, docs, digests, quoted, splitters)
+	store, err := newQuotedStore(cfg.Pairs.TempDir)
 	if err != nil {
+		return nil, err
+	}
+	defer store.close()
+	if err := readAgain(cfg, docs, digests, quoted, splitters, store); err != nil {
 		return nil, err
 	}
 
@@ -150,6 +157,7 @@ func scan(cfg scanConfig) (*report.Result, error) {
 		Templates: len(templates),
 		Chaining:  cfg.Chaining,
 		Jobs:      cfg.Jobs,
+		Load:      store.load,
 		Settings: report.Settings{
 			Version:      version,
 			Unit:         "sentence",
@@ -172,14 +180,51 @@ func scan(cfg scanConfig) (*report.Result, error) {
 			Path: d.Path, Format: d.Format, Encoding: d.Encoding, Notes: g.notes,
 			Words: int(g.words), UnitCount: int(g.units), Marks: d.Marks,
 		}
-		if l, ok := loaded[i]; ok {
-			rin.Docs[i].Text, rin.Docs[i].Units = l.text, l.units
-		}
 	}
 	for i, s := range skipped {
 		rin.Skipped[i] = report.Skipped{Path: s.Path, Reason: s.Reason}
 	}
-	return report.Build(rin)
+	res, err := report.Build(rin)
+	if err != nil {
+		return nil, err
+	}
+	if err := giveTexts(res, docs, store, cfg.TextPairs); err != nil {
+		return nil, err
+	}
+	return res, nil
+}
+
+// giveTexts fills res.Texts for the documents of the first pairs ranked
+// pairs (the HTML page's side-by-side views), from the store; the other
+// documents' texts are marked as not needed.
+func giveTexts(res *report.Result, docs []corpus.Document, store *quotedStore, pairs int) error {
+	res.Texts = make([]report.SourceText, len(res.Documents))
+	for i := range res.Texts {
+		res.Texts[i].Missing = "not needed for the pairs shown side by side"
+	}
+	if pairs <= 0 {
+		return nil
+	}
+	id := make(map[string]int)
+	for _, p := range res.Pairs[:min(pairs, len(res.Pairs))] {
+		id[p.A], id[p.B] = -1, -1
+	}
+	for i, d := range docs {
+		if _, ok := id[d.Path]; ok {
+			id[d.Path] = i
+		}
+	}
+	for _, i := range id {
+		if i < 0 || !store.has(i) {
+			continue
+		}
+		text, _, err := store.load(i)
+		if err != nil {
+			return err
+		}
+		res.Texts[i] = report.SourceText{Text: text}
+	}
+	return nil
 }
 
 // docDigest is what a scan keeps of a document after splitting it.
@@ -260,20 +305,13 @@ func quotedDocuments(eng *pairs.Result, n int) []int {
 	return ids
 }
 
-// loadedDoc is a document read again for the report: its text and units.
-type loadedDoc struct {
-	text  string
-	units []shingle.Unit
-}
-
 // readAgain reads the files of the documents ids once more, with the
 // scan's options, and splits them again. A document whose text is not the one first read (it changed,
 // vanished or became unreadable during the run) is an error: its
 // passages' offsets would point into another text.
-func readAgain(cfg scanConfig, docs []corpus.Document, digests []docDigest, ids []int, splitters *splitterPool) (map[int]loadedDoc, error) {
-	loaded := make(map[int]loadedDoc, len(ids))
+func readAgain(cfg scanConfig, docs []corpus.Document, digests []docDigest, ids []int, splitters *splitterPool, store *quotedStore) error {
 	if len(ids) == 0 {
-		return loaded, nil
+		return store.done()
 	}
 	byPath := make(map[string]int, len(ids))
 	var files []string
@@ -289,6 +327,7 @@ func readAgain(cfg scanConfig, docs []corpus.Document, digests []docDigest, ids 
 	opt.Include, opt.Skip = nil, nil
 	var mu sync.Mutex
 	var changed []string
+	var failed []error
 	_, _, _, err := corpus.ReadEach(files, opt, func(d *corpus.Document) struct{} {
 		i, ok := byPath[d.Path]
 		if !ok {
@@ -305,27 +344,35 @@ func readAgain(cfg scanConfig, docs []corpus.Document, digests []docDigest, ids 
 			return struct{}{}
 		}
 		b, units, _ := splitters.units(text)
-		l := loadedDoc{text: text, units: slices.Clone(units)}
+		err := store.put(i, text, units)
 		splitters.put(b)
-		mu.Lock()
-		loaded[i] = l
-		mu.Unlock()
+		if err != nil {
+			mu.Lock()
+			failed = append(failed, err)
+			mu.Unlock()
+		}
 		return struct{}{}
 	})
 	if err != nil {
-		return nil, err
+		return err
+	}
+	if err := errors.Join(failed...); err != nil {
+		return err
+	}
+	if err := store.done(); err != nil {
+		return err
 	}
 	for _, i := range ids {
-		if _, ok := loaded[i]; !ok {
+		if !store.has(i) {
 			changed = append(changed, docs[i].Path)
 		}
 	}
 	if len(changed) > 0 {
 		slices.Sort(changed)
 		changed = slices.Compact(changed)
-		return nil, fmt.Errorf("%s changed, moved or became unreadable while it was being scanned (%d documents in all): its passages cannot be shown; run the scan again", changed[0], len(changed))
+		return fmt.Errorf("%s changed, moved or became unreadable while it was being scanned (%d documents in all): its passages cannot be shown; run the scan again", changed[0], len(changed))
 	}
-	return loaded, nil
+	return nil
 }
 
 // fingerprintSets gives the engine's view of each document: its distinct

@@ -4,13 +4,11 @@ import (
 	"bytes"
 	"os"
 	"path/filepath"
-	"slices"
 	"strings"
 	"testing"
 
 	"reprise/corpus"
 	"reprise/pairs"
-	"reprise/report"
 )
 
 // demoCopy copies the demo essays into a fresh folder a test may change.
@@ -80,28 +78,40 @@ func TestScanHoldsNoTextWhileCounting(t *testing.T) {
 			}
 		}
 	}
-	// Texts are given to the renderers for the paired documents only.
-	paired := map[string]bool{}
-	for _, p := range res.Pairs {
-		paired[p.A], paired[p.B] = true, true
+	// With TextPairs, the texts of those pairs' documents are given to the
+	// renderers (HTML), and only those.
+	cfg = demoConfig(t, dir)
+	cfg.TextPairs = 2
+	res, err = scan(cfg)
+	if err != nil {
+		t.Fatal(err)
 	}
-	// Texts are given for the paired documents, and otherwise only for a
-	// document that is quoted for a common unit.
-	given := 0
+	shown := map[string]bool{}
+	for _, p := range res.Pairs[:2] {
+		shown[p.A], shown[p.B] = true, true
+	}
 	for i, d := range res.Documents {
 		text := res.Texts[i].Text
-		if text != "" {
-			given++
-		}
 		switch {
-		case paired[d.Path] && text == "":
-			t.Errorf("%s is in a pair but its text was not read again", d.Path)
-		case !paired[d.Path] && text != "" && !slices.ContainsFunc(res.Common, func(c report.Common) bool { return strings.Contains(text, c.Text) }):
-			t.Errorf("%s is in no pair and quoted for no common unit, but its text was read again", d.Path)
+		case shown[d.Path] && text == "":
+			t.Errorf("%s is in a pair shown side by side but its text was not given", d.Path)
+		case !shown[d.Path] && (text != "" || res.Texts[i].Missing == ""):
+			t.Errorf("%s is not shown side by side but its text was given (missing %q)", d.Path, res.Texts[i].Missing)
 		}
 	}
-	if given == len(res.Documents) {
-		t.Errorf("every one of the %d documents was read again", given)
+	texts := map[string]string{}
+	for i, d := range res.Documents {
+		texts[d.Path] = res.Texts[i].Text
+	}
+	for _, p := range res.Pairs[:2] {
+		for _, g := range p.Passages {
+			if a, b := texts[p.A], texts[p.B]; g.AEnd > len(a) || a[g.AStart:g.AEnd] != g.Text || g.BEnd > len(b) {
+				t.Errorf("%s ~ %s: a passage is not at its offsets in the texts given", p.A, p.B)
+			}
+		}
+	}
+	if left, _ := os.ReadDir(cfg.Pairs.TempDir); cfg.Pairs.TempDir != "" && len(left) != 0 {
+		t.Errorf("temporary files left behind: %v", left)
 	}
 }
 

@@ -115,6 +115,23 @@ func htmlPairsOption(n int) int {
 	return n
 }
 
+// sideBySidePairs is how many top pairs the output shows side by side with
+// their documents' texts: --html-pairs for the HTML page (0: none), no
+// pair for the other formats.
+func sideBySidePairs(format string, htmlPairs int) int {
+	if format != "html" {
+		return 0
+	}
+	switch n := htmlPairsOption(htmlPairs); {
+	case n < 0:
+		return 0
+	case n == 0:
+		return report.DefaultHTMLPairs
+	default:
+		return n
+	}
+}
+
 // readResult decodes a saved JSON result and checks that it is one.
 func readResult(name string) (*report.Result, error) {
 	raw, err := os.ReadFile(name)

@@ -140,6 +140,7 @@ func runScan(args []string, stdout, stderr io.Writer) int {
 		cfg.Progress = prog.show
 	}
 
+	cfg.TextPairs = sideBySidePairs(f.format, f.htmlPairs)
 	res, err := scan(cfg)
 	prog.done()
 	if err != nil {

@@ -1,0 +1,120 @@
+package main
+
+import (
+	"bufio"
+	"encoding/binary"
+	"fmt"
+	"os"
+	"sync"
+
+	"reprise/shingle"
+)
+
+// quotedStore keeps, in one temporary file, the texts and units of the
+// documents a report quotes, once they are read again: on a large corpus
+// those are a fifth of the documents or more (a million documents with one
+// in ten copied give some 200,000 of them, about 1.3 GB with their units),
+// which memory must not hold at once. The report loads each one back
+// (ReadAt, so from the page cache when there is room) while it aligns its
+// pairs. Writing is sequential; the file lives in the run's temporary
+// folder, so an interrupt removes it with the rest.
+type quotedStore struct {
+	mu  sync.Mutex
+	f   *os.File
+	w   *bufio.Writer
+	end int64              // bytes written so far
+	at  map[int]quotedSpot // document index -> where it is
+	buf []byte             // encoding scratch, under mu
+}
+
+// quotedSpot is where one document lies in the file: its text, then its
+// units, unitBytes each.
+type quotedSpot struct {
+	off   int64
+	text  int32 // bytes of text
+	units int32
+}
+
+// unitBytes is one encoded unit: Hash, Start, End, Words, Pos.
+const unitBytes = 8 + 4*4
+
+func newQuotedStore(dir string) (*quotedStore, error) {
+	f, err := os.CreateTemp(dir, "quoted-*.bin")
+	if err != nil {
+		return nil, fmt.Errorf("temporary file for the quoted documents: %w", err)
+	}
+	return &quotedStore{f: f, w: bufio.NewWriterSize(f, 1<<20), at: make(map[int]quotedSpot)}, nil
+}
+
+// put adds document id; it is safe for concurrent use.
+func (s *quotedStore) put(id int, text string, units []shingle.Unit) error {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	b := s.buf[:0]
+	for _, u := range units {
+		b = binary.LittleEndian.AppendUint64(b, u.Hash)
+		b = binary.LittleEndian.AppendUint32(b, u.Start)
+		b = binary.LittleEndian.AppendUint32(b, u.End)
+		b = binary.LittleEndian.AppendUint32(b, u.Words)
+		b = binary.LittleEndian.AppendUint32(b, u.Pos)
+	}
+	s.buf = b
+	spot := quotedSpot{off: s.end, text: int32(len(text)), units: int32(len(units))}
+	if _, err := s.w.WriteString(text); err != nil {
+		return fmt.Errorf("writing the quoted documents: %w", err)
+	}
+	if _, err := s.w.Write(b); err != nil {
+		return fmt.Errorf("writing the quoted documents: %w", err)
+	}
+	s.end += int64(len(text) + len(b))
+	s.at[id] = spot
+	return nil
+}
+
+// done ends the writing; load may be called from then on.
+func (s *quotedStore) done() error {
+	if err := s.w.Flush(); err != nil {
+		return fmt.Errorf("writing the quoted documents: %w", err)
+	}
+	return nil
+}
+
+// has reports whether document id was put.
+func (s *quotedStore) has(id int) bool {
+	_, ok := s.at[id]
+	return ok
+}
+
+// load reads document id back; it is safe for concurrent use after done.
+func (s *quotedStore) load(id int) (string, []shingle.Unit, error) {
+	spot, ok := s.at[id]
+	if !ok {
+		return "", nil, fmt.Errorf("not among the documents read again")
+	}
+	raw := make([]byte, int(spot.text)+int(spot.units)*unitBytes)
+	if _, err := s.f.ReadAt(raw, spot.off); err != nil {
+		return "", nil, fmt.Errorf("reading back the quoted documents: %w", err)
+	}
+	units := make([]shingle.Unit, spot.units)
+	b := raw[spot.text:]
+	for k := range units {
+		u := b[k*unitBytes:]
+		units[k] = shingle.Unit{
+			Hash:  binary.LittleEndian.Uint64(u),
+			Start: binary.LittleEndian.Uint32(u[8:]),
+			End:   binary.LittleEndian.Uint32(u[12:]),
+			Words: binary.LittleEndian.Uint32(u[16:]),
+			Pos:   binary.LittleEndian.Uint32(u[20:]),
+		}
+	}
+	return string(raw[:spot.text]), units, nil
+}
+
+// close removes the file.
+func (s *quotedStore) close() error {
+	err := s.f.Close()
+	if rerr := os.Remove(s.f.Name()); err == nil {
+		err = rerr
+	}
+	return err
+}
