@@ -5,7 +5,7 @@
 // by scripts/fetch-data.sh): N documents of 20 to 80 sentences, with a
 // fixed share of documents receiving a planted copy of 3 to 8 consecutive
 // sentences from an earlier document. Every sentence is a Brown sentence
-// with two of its words replaced by words drawn from the corpus vocabulary:
+// with one word in every four replaced by a word drawn from the corpus vocabulary:
 // the 57,000 Brown sentences alone, spread over 10^5 documents, would put
 // every sentence in about ninety documents, while real collections hold
 // mostly distinct sentences; the replacement keeps Brown's sentence
@@ -136,7 +136,7 @@ func run() error {
 	}
 	mem, _ := os.ReadFile("/proc/meminfo")
 	fmt.Printf("machine: %s/%s, %d cores, %s, %s\n", runtime.GOOS, runtime.GOARCH, runtime.NumCPU(), memTotal(mem), runtime.Version())
-	fmt.Printf("corpus: Brown sentences (two words replaced), 20-80 per document, %.0f%% of documents with a planted copy of 3-8 sentences, seed %d\n\n", o.reuse*100, o.seed)
+	fmt.Printf("corpus: Brown sentences (one word in four replaced), 20-80 per document, %.0f%% of documents with a planted copy of 3-8 sentences, seed %d\n\n", o.reuse*100, o.seed)
 
 	var prev *result
 	for _, n := range o.sizes {
@@ -353,9 +353,13 @@ func measure(g *generator, bin string, n int, o options) (*result, error) {
 	return r, nil
 }
 
+// corpusVersion names the generator's version in the corpus folder, so
+// that a corpus written by an earlier generator is not reused.
+const corpusVersion = 2
+
 // corpusDir is where the corpus of n documents is written.
 func corpusDir(o options, n int) string {
-	return filepath.Join(o.work, fmt.Sprintf("corpus-%d-%d-%g", n, o.seed, o.reuse))
+	return filepath.Join(o.work, fmt.Sprintf("corpus-%d-%d-%g-v%d", n, o.seed, o.reuse, corpusVersion))
 }
 
 // timed runs a command under /usr/bin/time and returns its wall time in
@@ -444,6 +448,28 @@ func newGenerator(samples []brown.Sample, seed uint64, reuse float64) *generator
 	return g
 }
 
+// replaceEvery: one word is replaced in every run of this many tokens.
+const replaceEvery = 4
+
+// replaceWord replaces the letters of *tok (a word with any punctuation
+// before or after it, "daughter," or "(Mr.") by w, and reports whether it
+// held a word.
+func replaceWord(tok *string, w string) bool {
+	t := *tok
+	lo, hi := 0, len(t)
+	for lo < hi && !isWord(t[lo:lo+1]) {
+		lo++
+	}
+	for hi > lo && !isWord(t[hi-1:hi]) {
+		hi--
+	}
+	if lo == hi || !isWord(t[lo:hi]) {
+		return false
+	}
+	*tok = t[:lo] + w + t[hi:]
+	return true
+}
+
 func isWord(t string) bool {
 	for _, c := range []byte(t) {
 		if (c|0x20) < 'a' || (c|0x20) > 'z' {
@@ -460,10 +486,17 @@ func (g *generator) base(i int) []string {
 	out := make([]string, n)
 	for k := range out {
 		toks := slices.Clone(g.words[r.IntN(len(g.words))])
-		for range 2 {
-			x := r.IntN(len(toks))
-			if isWord(toks[x]) {
-				toks[x] = g.vocab[r.IntN(len(g.vocab))]
+		// One word in every replaceEvery tokens (at a random place in each
+		// run of that many) is replaced, keeping any punctuation around it,
+		// so that every piece the splitter may cut a line into ("Mr."
+		// ends a sentence for UAX #29) holds a replaced word: replacing two
+		// words per line left many pieces as Brown wrote them, shared by
+		// the ninety documents that drew the line.
+		for lo := 0; lo < len(toks); lo += replaceEvery {
+			hi := min(lo+replaceEvery, len(toks))
+			x := lo + r.IntN(hi-lo)
+			for try := 0; try < hi-lo && !replaceWord(&toks[x], g.vocab[r.IntN(len(g.vocab))]); try++ {
+				x = lo + (x-lo+1)%(hi-lo)
 			}
 		}
 		out[k] = strings.Join(toks, " ")
@@ -544,7 +577,7 @@ const bruteMinShared = 2
 
 func bruteForce(g *generator, bin string, o options) error {
 	n := o.brute
-	dir := filepath.Join(o.work, fmt.Sprintf("corpus-%d-%d-%g", n, o.seed, o.reuse))
+	dir := corpusDir(o, n)
 	if _, err := g.ensure(dir, n); err != nil {
 		return err
 	}
