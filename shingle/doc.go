@@ -86,13 +86,25 @@
 // # Cost
 //
 // One copy of the text into the Splitter's scratch buffer, one UAX #29
-// sentence pass, and per sentence one word pass, one normalization and one
-// hash, all into reused buffers: no allocation per unit once the buffers
-// have grown. A Splitter is used by one goroutine; make one per worker.
-// On English prose (BenchmarkSentences, 2-core Xeon, median of 5): 51 MB/s
-// per core with the fast path below, 15 MB/s before it, when 70% of the
-// time went to uniseg's binary searches for each rune's break property;
-// Latin-1 prose 26 MB/s (BenchmarkSentencesLatin). See BENCHMARKS.md.
+// sentence pass, and per sentence one fused pass that counts the words and
+// writes the normalized form at once (fused.go; a sentence outside its set
+// gets one word pass and one normalization instead), and one hash, all into
+// reused buffers: no allocation per unit once the buffers have grown. A
+// Splitter is used by one goroutine; make one per worker.
+//
+// Measured on the shared 2-core Xeon (medians of 6 runs, base and changed
+// tree alternated; the load of other jobs made single runs vary by ±25%):
+// BenchmarkSentences (English prose) 80-107 MB/s per core with the two-pass
+// fast path, 277-404 MB/s with the fused pass (3.5-3.8x);
+// BenchmarkSentencesBrown (the 500 Brown samples, one Units call each)
+// 43-54 MB/s before, 156-179 MB/s after (3.3-3.7x); BenchmarkSentencesLatin
+// 42-52 MB/s before, 178-253 MB/s after. Before the fast path, 70% of the
+// time went to uniseg's binary searches for each rune's break property
+// (15 MB/s; see BENCHMARKS.md); before the fused pass, normalization took
+// 45% of it and the word count 33% (pprof, BenchmarkSentencesBrown). In
+// instructions (cachegrind, the same benchmark, so free of the load): 188
+// a byte before, 47 after, of which the fused pass is 55% and the sentence
+// pass 23%; the hash, trimming and the line-break rewrite share the rest.
 //
 // # Fast path
 //
@@ -119,17 +131,35 @@
 //     other than ª µ º, the Latin-1 symbols without compatibility
 //     decompositions and the punctuation U+2010-U+2029 (all but U+2017),
 //     NFKC is the identity or turns punctuation into punctuation, and full
-//     case folding is +0x20 on A-Z and À-Þ (not ×) and ß to "ss"; one fused
-//     pass does steps 2-4 (latinNormal lists the set and why).
+//     case folding is +0x20 on A-Z and À-Þ (not ×) and ß to "ss"; one pass,
+//     separateLatin, does steps 2-4 (latinNormal lists the set and why).
+//   - Words and normalization together: on a sentence whose runes both of
+//     the above know (all of English prose: ASCII and typographic quotes
+//     and dashes), the form of a rune depends on the rune alone, but for a
+//     hyphen at a line end, so fuseSentence (fused.go) walks the sentence
+//     once, one word segment at a time as the fast counter does, writing
+//     each rune's form as it goes: no copy by prepare, no second pass, no
+//     call per rune. Its first loop takes ASCII and – — “ ” with table
+//     look-ups only; anything else of the set goes to a second loop that
+//     decodes runes; anything outside it, to the two passes above.
+//   - Sentence boundaries: inside a sentence, a run of ASCII bytes other
+//     than CR, LF and . ! ? never breaks, and is skipped with one table
+//     look-up a byte (sbStop); line breaks are found for the rewrite with
+//     bytes.IndexByte.
 //
 // Why it is exact is checked, not argued: Splitter.slow forces the full
 // path (uniseg for every rune, NFKC and folding for every sentence), and
 // FuzzFastPathSameUnits compares the two on arbitrary bytes under five
-// option sets; TestFastPathSameUnitsBrown on the 500 Brown samples, plain
-// and with quotes and Latin letters swapped in, and on the demo corpus;
+// option sets; TestFastPathSameUnitsBrown on the 500 Brown samples, plain,
+// with quotes and Latin letters swapped in, and with line-break hyphens,
+// numbers and '_' compounds swapped in, and on the demo corpus;
 // TestFastSentenceTableMatchesUniseg every code point of the set alone and
 // in pairs in contexts that bring each rule into play, against uniseg
-// directly. Rejected: a faster general segmenter (a DFA over all of
+// directly. The fused pass has its own checks against the two passes and
+// the full path, and the tables it reads are derived from theirs (fused.go
+// lists them). Rejected: a faster general segmenter (a DFA over all of
 // Unicode) — more code to keep equal to uniseg for little gain on the text
-// people actually submit.
+// people actually submit; and testing eight bytes at a time for sbStop's
+// bytes (the "has zero byte" trick), which cut the sentence pass's
+// instructions by 8% but the whole call's by 1.5%, not worth the code.
 package shingle

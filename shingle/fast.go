@@ -15,6 +15,12 @@ import "unicode/utf8"
 // sentence or in the SB8 look-ahead. The caller then segments that one
 // sentence with uniseg. Invalid UTF-8 is never in the set, so it always goes
 // to uniseg.
+//
+// Word counting and normalization of a sentence whose runes are in both
+// fastClass's set (words.go) and latinNormal's (below) are done in one pass
+// by fuseSentence (fused.go), which reads tables derived from these two;
+// separateLatin and the fast counter remain for the other sentences and are
+// the references it is tested against, with uniseg and x/text behind them.
 
 // Sentence_Break property values of the fast set (UAX #29, table 4).
 const (
@@ -54,7 +60,7 @@ const (
 
 // asciiSB holds the Sentence_Break property of each ASCII byte, one byte per
 // code point (from SentenceBreakProperty-15.0.0, as in uniseg's table; the
-// test TestFastTablesMatchUniseg checks every entry by behaviour).
+// test TestFastSentenceTableMatchesUniseg checks every entry by behaviour).
 const asciiSB = "" +
 	"\x00\x00\x00\x00\x00\x00\x00\x00\x00\x04\x02\x04\x04\x01\x00\x00" + // 00-0F: TAB LF VT FF CR
 	"\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00" + // 10-1F
@@ -64,6 +70,31 @@ const asciiSB = "" +
 	"\x06\x06\x06\x06\x06\x06\x06\x06\x06\x06\x06\x0a\x00\x0a\x00\x00" + // P-Z [ ]
 	"\x00\x05\x05\x05\x05\x05\x05\x05\x05\x05\x05\x05\x05\x05\x05\x05" + // a-o
 	"\x05\x05\x05\x05\x05\x05\x05\x05\x05\x05\x05\x0a\x00\x0a\x00\x00" // p-z { }
+
+// sbStop marks, for each byte, whether fastFirstSentence's inner loop must
+// stop there: at CR, LF, an ATerm or STerm (. ! ?) and at any byte outside
+// ASCII; every other ASCII byte leaves the state its own base and never
+// breaks inside a sentence (TestFusedTablesMatch checks every entry against
+// asciiSB). A constant string of 256 bytes indexed by a byte needs no bounds
+// check. The loop it serves took 18 instructions a byte with asciiSB and
+// four comparisons, 8 with it (cachegrind, BenchmarkSentencesBrown).
+const sbStop = "" +
+	"\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x01\x00\x00\x01\x00\x00" + // 00-0F: LF CR
+	"\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00" + // 10-1F
+	"\x00\x01\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x01\x00" + // ! .
+	"\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x01" + // ?
+	"\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00" + // 40-4F
+	"\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00" + // 50-5F
+	"\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00" + // 60-6F
+	"\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00\x00" + // 70-7F
+	"\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01" + // 80-FF
+	"\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01" +
+	"\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01" +
+	"\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01" +
+	"\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01" +
+	"\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01" +
+	"\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01" +
+	"\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01"
 
 // fastSBProp returns the Sentence_Break property of the rune at the start of
 // b and its length, or sbpSlow for anything outside the fast set: ASCII,
@@ -237,17 +268,13 @@ func fastFirstSentence(b []byte) (n int, ok bool) {
 			// Inside a sentence, an ASCII rune other than CR, LF and the
 			// terminators never breaks and leaves the state its own base:
 			// skip the run in one tight loop.
-			last := -1
-			for length < len(b) && b[length] < utf8.RuneSelf {
-				p := int(asciiSB[b[length]])
-				if p == sbpCR || p == sbpLF || p == sbpATerm || p == sbpSTerm {
-					break
-				}
-				last = p
+			start := length
+			for uint(length) < uint(len(b)) && sbStop[b[length]] == 0 {
 				length++
 			}
-			if last >= 0 {
-				state = sbBase(last)
+			if length > start {
+				// The skipped bytes are ASCII; the mask spares a bounds check.
+				state = sbBase(int(asciiSB[b[length-1]&0x7F]))
 			}
 			if len(b) <= length {
 				return len(b), true

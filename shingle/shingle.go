@@ -206,7 +206,15 @@ func nextSentence(b []byte, state int) (int, int) {
 // appends its unit.
 func (s *Splitter) emit(dst []Unit, st *Stats, text string, start, end int) []Unit {
 	sentence := text[start:end]
-	words := s.countWords(sentence)
+	var words int
+	fused := false
+	if !s.slow {
+		// One pass for words and form when the sentence allows (fused.go).
+		s.out, words, fused = fuseSentence(s.out[:0], sentence)
+	}
+	if !fused {
+		words = s.countWords(sentence)
+	}
 	pos := st.Words
 	st.Sentences++
 	st.Words += words
@@ -214,7 +222,9 @@ func (s *Splitter) emit(dst []Unit, st *Stats, text string, start, end int) []Un
 		st.Short++
 		return dst
 	}
-	s.out = s.norm.appendPath(s.out[:0], sentence, s.slow)
+	if !fused {
+		s.out = s.norm.appendPath(s.out[:0], sentence, s.slow)
+	}
 	return append(dst, Unit{
 		Hash:  Fingerprint(s.out),
 		Start: uint32(start),
