@@ -13,8 +13,9 @@ import (
 // On Linux it calls open, read and close itself: os.Open also registers
 // every file with the runtime's network poller (a refused epoll_ctl for a
 // regular file), one system call in four for a small file, and a corpus
-// is mostly small files. The file is still read until read returns 0, so
-// a short read never cuts a text.
+// is mostly small files. A file is read until read returns 0, or until a
+// short read ends exactly at the size the walk saw (the end of a file that
+// has not changed), so a short read elsewhere never cuts a text.
 func readFile(name string, size, limit int64) ([]byte, error) {
 	var fd int
 	var err error
@@ -33,6 +34,7 @@ func readFile(name string, size, limit int64) ([]byte, error) {
 		if len(buf) == cap(buf) {
 			buf = slices.Grow(buf, max(512, min(len(buf), 1<<20)))
 		}
+		want := cap(buf) - len(buf)
 		n, err := syscall.Read(fd, buf[len(buf):cap(buf)])
 		if err == syscall.EINTR {
 			continue
@@ -44,6 +46,11 @@ func readFile(name string, size, limit int64) ([]byte, error) {
 			break
 		}
 		buf = buf[:len(buf)+n]
+		if n < want && int64(len(buf)) == size {
+			// Short, and exactly the size the walk saw: the end of the
+			// file, without a last read to hear it say so.
+			break
+		}
 	}
 	return buf, nil
 }
