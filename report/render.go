@@ -41,11 +41,11 @@ func Write(w io.Writer, r *Result, format string, opt TextOptions) error {
 	return fmt.Errorf("report: unknown format %q (want one of %s)", format, strings.Join(Formats, ", "))
 }
 
-// WriteJSON writes the whole result as one indented JSON document.
+// WriteJSON writes the whole result as one indented JSON document: the
+// bytes json.Encoder with SetIndent("", "  ") gives for r, written by the
+// appenders of render_json.go. Nothing is written if r cannot be encoded.
 func WriteJSON(w io.Writer, r *Result) error {
-	enc := json.NewEncoder(w)
-	enc.SetIndent("", "  ")
-	if err := enc.Encode(r); err != nil {
+	if err := newJSONEncoder(w, true).writeResultJSON(r); err != nil {
 		return fmt.Errorf("report: json: %w", err)
 	}
 	return nil
@@ -54,75 +54,51 @@ func WriteJSON(w io.Writer, r *Result) error {
 // WriteNDJSON writes one JSON object per line, each with a "type" field:
 // first a "report" line (format, caution, settings, summary), then every
 // document, skipped input, common unit, pair, group and cluster, in the order
-// and with the fields of the JSON contract.
+// and with the fields of the JSON contract. Each line holds the bytes
+// json.Marshal gives for its record, with "type" first. Nothing is written if
+// a record cannot be encoded.
 func WriteNDJSON(w io.Writer, r *Result) error {
-	bw := bufio.NewWriter(w)
-	enc := json.NewEncoder(bw)
-	put := func(v any) error {
-		if err := enc.Encode(v); err != nil {
-			return fmt.Errorf("report: ndjson: %w", err)
-		}
-		return nil
+	if r == nil {
+		return fmt.Errorf("report: ndjson: no result")
 	}
-	head := struct {
+	head, err := json.Marshal(struct {
 		Type     string   `json:"type"`
 		Format   int      `json:"format"`
 		Caution  string   `json:"caution"`
 		Settings Settings `json:"settings"`
 		Summary  Summary  `json:"summary"`
-	}{"report", r.Format, r.Caution, r.Settings, r.Summary}
-	if err := put(head); err != nil {
-		return err
+	}{"report", r.Format, r.Caution, r.Settings, r.Summary})
+	if err != nil {
+		return fmt.Errorf("report: ndjson: %w", err)
 	}
+	if kind, err := checkJSONFloats(r); err != nil {
+		return fmt.Errorf("report: ndjson: %s: cannot encode as an object: %v", kind, err)
+	}
+	e := newJSONEncoder(w, false)
+	e.buf = append(e.buf, head...)
+	e.buf = append(e.buf, '\n')
 	for i := range r.Documents {
-		if err := putTyped(bw, "document", &r.Documents[i]); err != nil {
-			return err
-		}
+		typedLine(e, "document", &r.Documents[i], (*jsonEncoder).documentFields)
 	}
 	for i := range r.Skipped {
-		if err := putTyped(bw, "skipped", &r.Skipped[i]); err != nil {
-			return err
-		}
+		typedLine(e, "skipped", &r.Skipped[i], (*jsonEncoder).skippedFields)
 	}
 	for i := range r.Common {
-		if err := putTyped(bw, "common", &r.Common[i]); err != nil {
-			return err
-		}
+		typedLine(e, "common", &r.Common[i], (*jsonEncoder).commonFields)
 	}
 	for i := range r.Pairs {
-		if err := putTyped(bw, "pair", &r.Pairs[i]); err != nil {
-			return err
-		}
+		typedLine(e, "pair", &r.Pairs[i], (*jsonEncoder).pairFields)
 	}
 	for i := range r.Groups {
-		if err := putTyped(bw, "group", &r.Groups[i]); err != nil {
-			return err
-		}
+		typedLine(e, "group", &r.Groups[i], (*jsonEncoder).groupFields)
 	}
 	for i := range r.Clusters {
-		if err := putTyped(bw, "cluster", &r.Clusters[i]); err != nil {
-			return err
-		}
+		typedLine(e, "cluster", &r.Clusters[i], (*jsonEncoder).clusterFields)
 	}
-	if err := bw.Flush(); err != nil {
+	if err := e.flush(); err != nil {
 		return fmt.Errorf("report: ndjson: %w", err)
 	}
 	return nil
-}
-
-// putTyped writes v as one JSON line whose first field is "type": kind.
-// v must encode as a JSON object.
-func putTyped(w *bufio.Writer, kind string, v any) error {
-	b, err := json.Marshal(v)
-	if err != nil || len(b) < 2 || b[0] != '{' {
-		return fmt.Errorf("report: ndjson: %s: cannot encode as an object: %v", kind, err)
-	}
-	fmt.Fprintf(w, "{\"type\":%q", kind)
-	if len(b) > 2 {
-		w.WriteByte(',')
-	}
-	w.Write(b[1:])
-	return w.WriteByte('\n')
 }
 
 // csvHeader names the CSV columns. One table holds every record kind, told
