@@ -90,7 +90,7 @@ func (w *walker) dir(osPath, display, abs string) {
 	for _, e := range ents {
 		name := e.Name()
 		d := joinDisplay(display, name)
-		op, ap := filepath.Join(osPath, name), filepath.Join(abs, name)
+		op, ap := joinOS(osPath, name), filepath.Join(abs, name)
 		if w.skipped(name, d) {
 			continue
 		}
@@ -165,6 +165,17 @@ func matchAny(globs []string, s string) bool {
 		}
 	}
 	return false
+}
+
+// joinOS joins a folder path as given and a name without cleaning the
+// path as text (filepath.Join would): "link/../docs" must stay as it is,
+// for the system resolves ".." after the symbolic link, as it did when the
+// folder was listed, and as it does when the displayed name is read again.
+func joinOS(dir, name string) string {
+	if strings.HasSuffix(dir, string(filepath.Separator)) || strings.HasSuffix(dir, "/") {
+		return dir + name
+	}
+	return dir + string(filepath.Separator) + name
 }
 
 // joinDisplay joins a displayed folder path and a name with "/", without

@@ -31,8 +31,8 @@ type quotedStore struct {
 // units, unitBytes each.
 type quotedSpot struct {
 	off   int64
-	text  int32 // bytes of text
-	units int32
+	text  int64 // bytes of text
+	units int64
 }
 
 // unitBytes is one encoded unit: Hash, Start, End, Words, Pos.
@@ -59,7 +59,7 @@ func (s *quotedStore) put(id int, text string, units []shingle.Unit) error {
 		b = binary.LittleEndian.AppendUint32(b, u.Pos)
 	}
 	s.buf = b
-	spot := quotedSpot{off: s.end, text: int32(len(text)), units: int32(len(units))}
+	spot := quotedSpot{off: s.end, text: int64(len(text)), units: int64(len(units))}
 	if _, err := s.w.WriteString(text); err != nil {
 		return fmt.Errorf("writing the quoted documents: %w", err)
 	}
@@ -91,7 +91,7 @@ func (s *quotedStore) load(id int) (string, []shingle.Unit, error) {
 	if !ok {
 		return "", nil, fmt.Errorf("not among the documents read again")
 	}
-	raw := make([]byte, int(spot.text)+int(spot.units)*unitBytes)
+	raw := make([]byte, spot.text+spot.units*unitBytes)
 	if _, err := s.f.ReadAt(raw, spot.off); err != nil {
 		return "", nil, fmt.Errorf("reading back the quoted documents: %w", err)
 	}

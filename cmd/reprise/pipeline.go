@@ -114,6 +114,8 @@ func scan(cfg scanConfig) (*report.Result, error) {
 		slices.Sort(excluded)
 		excluded = slices.Compact(excluded)
 	}
+	templateCount := len(templates)
+	templates = nil // their fingerprints are all the run needs of them
 
 	in := pairs.Input{Docs: make([][]uint64, len(docs)), Excluded: excluded}
 	for i := range digests {
@@ -154,7 +156,7 @@ func scan(cfg scanConfig) (*report.Result, error) {
 		Skipped:   make([]report.Skipped, len(skipped)),
 		Engine:    eng,
 		Excluded:  excluded,
-		Templates: len(templates),
+		Templates: templateCount,
 		Chaining:  cfg.Chaining,
 		Jobs:      cfg.Jobs,
 		Load:      store.load,
@@ -279,7 +281,9 @@ func (p *splitterPool) digest(d *corpus.Document, effective shingle.Options, kee
 		notes: splitNotes(d.Notes, st, d.Text, effective),
 	}
 	if keepText == nil || !keepText(d.Path) {
-		d.Text = ""
+		// Only the quoted documents need their text and marks, and
+		// readAgain gives them back; the notes live on in g.
+		d.Text, d.Marks, d.Notes = "", nil, nil
 	}
 	return g
 }
@@ -313,36 +317,36 @@ func readAgain(cfg scanConfig, docs []corpus.Document, digests []docDigest, ids 
 	if len(ids) == 0 {
 		return store.done()
 	}
-	byPath := make(map[string]int, len(ids))
+	type name struct{ file, path string } // a path alone may name two documents (a file "a.jsonl#x" beside a.jsonl)
+	byName := make(map[name]int, len(ids))
 	var files []string
 	for _, i := range ids {
-		byPath[docs[i].Path] = i
+		byName[name{docs[i].File, docs[i].Path}] = i
 		files = append(files, docs[i].File)
 	}
 	slices.Sort(files)
 	files = slices.Compact(files)
-	// Named one by one, the files are read without a walk of the folders,
-	// and --include and --skip have chosen them already.
-	opt := cfg.Corpus
-	opt.Include, opt.Skip = nil, nil
+	// Named one by one, the files are read without a walk of the folders;
+	// --include and --skip still apply, as they choose a ZIP archive's
+	// members too (and named so, a file gets the first walk's decisions).
 	var mu sync.Mutex
-	var changed []string
+	differs := map[string]bool{} // read again, but not the text first read
 	var failed []error
-	_, _, _, err := corpus.ReadEach(files, opt, func(d *corpus.Document) struct{} {
-		i, ok := byPath[d.Path]
-		if !ok {
-			d.Text = ""
-			return struct{}{}
-		}
+	_, _, skipped, err := corpus.ReadEach(files, cfg.Corpus, func(d *corpus.Document) struct{} {
+		i, ok := byName[name{d.File, d.Path}]
 		text := d.Text
 		d.Text = ""
+		if !ok {
+			return struct{}{}
+		}
 		g := &digests[i]
 		if len(text) != g.size || xxhash.Sum64String(text) != g.sum {
 			mu.Lock()
-			changed = append(changed, d.Path)
+			differs[d.Path] = true
 			mu.Unlock()
 			return struct{}{}
 		}
+		docs[i].Marks = d.Marks // each i once: the digest let them go
 		b, units, _ := splitters.units(text)
 		err := store.put(i, text, units)
 		splitters.put(b)
@@ -362,17 +366,32 @@ func readAgain(cfg scanConfig, docs []corpus.Document, digests []docDigest, ids 
 	if err := store.done(); err != nil {
 		return err
 	}
+	reasons := make(map[string]string, len(skipped))
+	for _, sk := range skipped {
+		reasons[sk.Path] = sk.Reason
+	}
+	var changed []string
+	file := make(map[string]string)
 	for _, i := range ids {
 		if !store.has(i) {
 			changed = append(changed, docs[i].Path)
+			file[docs[i].Path] = docs[i].File
 		}
 	}
-	if len(changed) > 0 {
-		slices.Sort(changed)
-		changed = slices.Compact(changed)
-		return fmt.Errorf("%s changed, moved or became unreadable while it was being scanned (%d documents in all): its passages cannot be shown; run the scan again", changed[0], len(changed))
+	if len(changed) == 0 {
+		return nil
 	}
-	return nil
+	slices.Sort(changed)
+	first := changed[0]
+	why := "it is no longer there"
+	if differs[first] {
+		why = "its text is not the one first read"
+	} else if r, ok := reasons[first]; ok {
+		why = "reading it again: " + r
+	} else if r, ok := reasons[file[first]]; ok {
+		why = "reading it again: " + r
+	}
+	return fmt.Errorf("%s changed, moved or became unreadable while it was being scanned (%s; %d such documents in all): its passages cannot be shown; run the scan again", first, why, len(changed))
 }
 
 // fingerprintSets gives the engine's view of each document: its distinct

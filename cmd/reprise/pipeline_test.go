@@ -1,6 +1,7 @@
 package main
 
 import (
+	"archive/zip"
 	"bytes"
 	"os"
 	"path/filepath"
@@ -134,7 +135,7 @@ func TestScanRefusesATextChangedMidRun(t *testing.T) {
 		writeFile(t, victim, "A new first line.\n"+string(b))
 	}
 	_, err := scan(cfg)
-	if err == nil || !strings.Contains(err.Error(), victim) || !strings.Contains(err.Error(), "changed") {
+	if err == nil || !strings.Contains(err.Error(), victim) || !strings.Contains(err.Error(), "not the one first read") {
 		t.Fatalf("scan after %s changed: error %v, want one naming it as changed", victim, err)
 	}
 
@@ -147,7 +148,42 @@ func TestScanRefusesATextChangedMidRun(t *testing.T) {
 			t.Fatal(err)
 		}
 	}
-	if _, err := scan(cfg); err == nil || !strings.Contains(err.Error(), victim) {
+	if _, err := scan(cfg); err == nil || !strings.Contains(err.Error(), victim) || !strings.Contains(err.Error(), "reading it again: no such file") {
 		t.Fatalf("scan after %s was removed: error %v, want one naming it", victim, err)
+	}
+}
+
+// TestReadAgainKeepsIncludeForMembers: --include also chooses a ZIP
+// archive's members, so reading a quoted member again must apply it as
+// the first read did; otherwise the members left out the first time use
+// up --max-container-size and the quoted one is refused.
+func TestReadAgainKeepsIncludeForMembers(t *testing.T) {
+	dir := t.TempDir()
+	essay := strings.Join(masterSentences, " ") + "\n"
+	var buf bytes.Buffer
+	zw := zip.NewWriter(&buf)
+	for _, m := range []struct {
+		name string
+		data []byte
+	}{
+		{"a.dat", bytes.Repeat([]byte("0123456789abcdef"), 1<<16-4)}, // 64 bytes under 1 MiB, not a file the scan wants
+		{"b.txt", []byte(essay)},
+	} {
+		w, err := zw.CreateHeader(&zip.FileHeader{Name: m.name, Method: zip.Store})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if _, err := w.Write(m.data); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := zw.Close(); err != nil {
+		t.Fatal(err)
+	}
+	writeFile(t, filepath.Join(dir, "a.zip"), buf.String())
+	writeFile(t, filepath.Join(dir, "c.txt"), essay)
+	res := scanJSON(t, exitOK, "--include", "*.txt", "--include", "*.zip", "--max-container-size", "1MiB", dir)
+	if len(res.Pairs) != 1 || !strings.HasSuffix(res.Pairs[0].A, "a.zip!/b.txt") {
+		t.Fatalf("pairs %+v, want the member and its copy", res.Pairs)
 	}
 }
