@@ -44,6 +44,9 @@ type input struct {
 	opt    *Options // defaults applied
 	budget *int64   // uncompressed container bytes still allowed (see readMember)
 	depth  int      // ZIP nesting: 0 for a file on disk, 1 inside a ZIP, ...
+	// owned: raw is the buffer readFile allocated for this one file, and
+	// nothing writes to it once read, so a text may alias it (text.go).
+	owned bool
 }
 
 // An extraction is what an extractor hands back.

@@ -157,7 +157,7 @@ func readEntry(e *entry, opt *Options, emit func(*part)) {
 		return
 	}
 	budget := opt.MaxContainerBytes
-	parts := extractFile(path.Base(e.display), &input{raw: raw, osPath: e.osPath, opt: opt, budget: &budget})
+	parts := extractFile(path.Base(e.display), &input{raw: raw, osPath: e.osPath, opt: opt, budget: &budget, owned: true})
 	for k := range parts {
 		emit(&parts[k])
 	}

@@ -1,5 +1,7 @@
 package corpus
 
+import "unsafe"
+
 // plainText reads any file whose content is text: it is decoded (see
 // decode) and kept as it is, so for UTF-8 files offsets into Text are
 // offsets into the file.
@@ -9,22 +11,23 @@ func (plainText) format() string         { return "text" }
 func (plainText) sniff(_ []byte) bool    { return false } // text has no signature
 func (plainText) claims(ext string) bool { return ext == ".txt" }
 
-// extract costs, for a UTF-8 file, the binary test, one utf8.Valid and
-// one copy: string(d.text), where d.text is in.raw itself. The text could
-// alias in.raw instead (unsafe.String) only if nothing ever wrote to that
-// buffer again while a Document lives, and this package does not own it:
-// readFile (read.go) happens to allocate one per file, but nothing in its
-// contract stops a caller that streams documents from reusing one per
-// worker; a ZIP member's bytes come from io.ReadAll, with spare capacity
-// an alias would keep alive; the fuzz engine reuses its inputs. The copy
-// runs at memory speed and allocates exactly the text's size. It is still
-// about a fifth of what is left of extracting a plain UTF-8 file
-// (BenchmarkExtractBrownText, measured with an aliasing variant), which is
-// the price of not making every caller keep that rule.
+// extract costs, for a UTF-8 file, the binary test and one utf8.Valid:
+// d.text is in.raw itself. When in.owned says the buffer is the file's own
+// (readFile allocates one per file and nothing writes to it again), the
+// text aliases it (unsafe.String) instead of copying it: for a corpus of
+// small text files that copy and its garbage were a tenth of a scan's
+// reading and splitting. Any other caller's bytes (a ZIP member's, a
+// fuzz input the engine reuses, a test's) are copied, as string(raw).
 func (plainText) extract(in *input) (extraction, error) {
 	d, err := decode(in.raw)
 	if err != nil {
 		return extraction{}, err
 	}
-	return extraction{Text: string(d.text), Encoding: d.encoding, Notes: d.notes()}, nil
+	text := ""
+	if in.owned && len(d.text) > 0 && len(in.raw) > 0 && unsafe.SliceData(d.text) == unsafe.SliceData(in.raw) {
+		text = unsafe.String(unsafe.SliceData(d.text), len(d.text))
+	} else {
+		text = string(d.text)
+	}
+	return extraction{Text: text, Encoding: d.encoding, Notes: d.notes()}, nil
 }
