@@ -1,6 +1,10 @@
 package shingle
 
-import "unicode/utf8"
+import (
+	"encoding/binary"
+	"math/bits"
+	"unicode/utf8"
+)
 
 // The fast path for ASCII and Latin text (see "Fast path" in the package
 // comment). The sentence segmenter below runs the UAX #29 sentence rules as
@@ -95,6 +99,21 @@ const sbStop = "" +
 	"\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01" +
 	"\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01" +
 	"\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01\x01"
+
+// sbStops marks, with the high bit of its byte, the first byte of the block
+// x (eight bytes, little-endian; see fused.go) that sbStop marks: one
+// outside ASCII, or CR, LF, '!', '.' or '?'; 0 when there is none. A byte
+// of x equals c when that byte of v = x^(c*swarOnes) is zero, which
+// (v-swarOnes)&^v flags with its high bit (common practice: a borrow out of
+// a zero byte may flag bytes after it, never one before, so the lowest
+// flag is exact; bytes past it may be flagged wrongly).
+func sbStops(x uint64) uint64 {
+	return (x | zeroBytes(x^'\r'*swarOnes) | zeroBytes(x^'\n'*swarOnes) | zeroBytes(x^'!'*swarOnes) |
+		zeroBytes(x^'.'*swarOnes) | zeroBytes(x^'?'*swarOnes)) & swarHigh
+}
+
+// zeroBytes flags the zero bytes of v as sbStops says.
+func zeroBytes(v uint64) uint64 { return (v - swarOnes) &^ v }
 
 // fastSBProp returns the Sentence_Break property of the rune at the start of
 // b and its length, or sbpSlow for anything outside the fast set: ASCII,
@@ -269,6 +288,13 @@ func fastFirstSentence(b []byte) (n int, ok bool) {
 			// terminators never breaks and leaves the state its own base:
 			// skip the run in one tight loop.
 			start := length
+			for uint(length)+8 <= uint(len(b)) {
+				if stops := sbStops(binary.LittleEndian.Uint64(b[length:])); stops != 0 {
+					length += bits.TrailingZeros64(stops) >> 3
+					break
+				}
+				length += 8
+			}
 			for uint(length) < uint(len(b)) && sbStop[b[length]] == 0 {
 				length++
 			}

@@ -1,6 +1,10 @@
 package shingle
 
-import "slices"
+import (
+	"encoding/binary"
+	"math/bits"
+	"slices"
+)
 
 // The fused sentence pass (see "Fast path" in the package comment). For a
 // sentence made only of runes of the fused set below, fuseSentence counts
@@ -34,8 +38,10 @@ import "slices"
 //
 // Two versions share that logic. fusePlain takes ASCII and – — “ ” (what
 // English prose is made of: every line of the Brown corpus, as
-// TestFusedPathTakenBrown counts) with table look-ups only, so that its loops make no call, keep their state in registers and
-// copy a run of letters with one look-up and one store a byte; fuseLatin
+// TestFusedPathTakenBrown counts) with table look-ups only, so that its
+// loops make no call and keep their state in registers, and it copies
+// runs of letters and single spaces eight bytes at a time
+// (lettersAndSpaces), the rest with one look-up and one store a byte; fuseLatin
 // takes the whole set, decoding runes outside ASCII with fusedRune. A
 // sentence fusePlain gives up is run again by fuseLatin, and one fuseLatin
 // gives up (a rune outside the set, invalid UTF-8 included) goes the
@@ -270,6 +276,24 @@ func fusePlain(buf []byte, s string) (j, n int, ok bool) {
 				r := s[i:]
 				w := buf[j:][:len(r)]
 				k := 0
+				// Eight bytes at a time while they are letters and single
+				// spaces (most of English prose): the form is the bytes
+				// lowered, and every space starts a word.
+				for k+8 <= len(r) {
+					x := load64(r[k:])
+					p, spaces := lettersAndSpaces(x)
+					if p == 0 {
+						break
+					}
+					// The bytes past p are written too, and overwritten
+					// later: j stays at or before i.
+					binary.LittleEndian.PutUint64(w[k:k+8], x|swarCase)
+					n += spaces
+					k += p
+					if p < 8 {
+						break
+					}
+				}
 				for k < len(r) {
 					o := alnumLower[r[k]]
 					if o == 0 {
@@ -312,6 +336,59 @@ func fusePlain(buf []byte, s string) (j, n int, ok bool) {
 		}
 	}
 	return j, n, true
+}
+
+// Eight bytes at a time ("SWAR": SIMD within a register). A block is the
+// eight bytes from some position read as a little-endian uint64; the tests
+// below look at every byte at once with masks whose every byte is the same
+// (common practice; the carry-free forms hold because no byte of x has its
+// high bit set by then, so no byte sum reaches the next byte).
+const (
+	swarOnes = 0x0101010101010101
+	swarHigh = 0x8080808080808080 // the high bit of every byte
+	swarLow7 = 0x7f7f7f7f7f7f7f7f
+	swarCase = 0x2020202020202020 // the A-Z lowering bit, and the space
+)
+
+// load64 reads s[:8] as a little-endian uint64 (one load: the compiler
+// combines the byte reads).
+func load64(s string) uint64 {
+	_ = s[7]
+	return uint64(s[0]) | uint64(s[1])<<8 | uint64(s[2])<<16 | uint64(s[3])<<24 |
+		uint64(s[4])<<32 | uint64(s[5])<<40 | uint64(s[6])<<48 | uint64(s[7])<<56
+}
+
+// lettersAndSpaces returns the length p of the longest prefix of the block
+// x made of ASCII letters and spaces, no two spaces side by side and the
+// last byte a letter, and the number of spaces in it. After a letter (or
+// at a letter), fusePlain's form of such a prefix is the prefix with A-Z
+// lowered (x | swarCase: a space has the bit already), and each space
+// starts a word: between two letters a space is a separator written as one
+// space, and the letter after it opens a new word segment (UAX #29
+// WB3d-WB999: a space is never inside a word).
+//
+// A byte with the high bit set is neither a letter nor a space below (its
+// sp byte has the high bit; b|0x20 plus 0x1f has it or wraps past 0xff),
+// so it ends the prefix; the sums may carry out of such a byte, but only
+// into the bytes after it, which are not in the prefix.
+func lettersAndSpaces(x uint64) (p int, spaces int) {
+	y := x | swarCase // A-Z lowered; other bytes may move, but not into a-z
+	// A byte b is in 'a'..'z' when b+(0x80-'a') has its high bit set and
+	// b+(0x80-'z'-1) has not.
+	letters := (y + (0x80-'a')*swarOnes) &^ (y + (0x80-'z'-1)*swarOnes)
+	// A byte of sp is zero, a space in x, when neither its low seven bits
+	// plus 0x7f nor sp itself reach the high bit.
+	sp := x ^ swarCase
+	space := ^((sp&swarLow7 + swarLow7) | sp) & swarHigh
+	// The prefix ends at the first byte that is neither, or the second of
+	// two spaces...
+	bad := (^(letters | space) | space<<8&space) & swarHigh
+	p = bits.TrailingZeros64(bad) >> 3 // 8 when none
+	// ...and before a space that ends it.
+	if p > 0 && space>>(8*p-1)&1 != 0 {
+		p--
+	}
+	return p, bits.OnesCount64(space & (1<<(8*p) - 1))
 }
 
 // fuseLatin is fuseSentence for any text of the fused set. It follows

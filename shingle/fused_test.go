@@ -88,6 +88,13 @@ func TestFusedSentenceCases(t *testing.T) {
 		"don’t ‘quoted’ “double” „low“ ‚single‛ ‟x‟ a‒b a–b a—b a―b †‡•…",
 		"l·l a·b ·a a· 1·2", "À-\nçb É-\nÉ", "é-\n é", "¡Hola! ¿Qué? §1 ¶2", "NBSP\u00a0here",
 		"résumé’s naïve-\ncafé 3.5 km—etwa",
+		// Runs of letters and spaces that fusePlain takes eight bytes at a
+		// time, and blocks it must not: two spaces, a space last, a byte
+		// next to the letters ('@' '[' '`' '{'), a digit, a tab.
+		"The Committee met on a grey morning", "abcdefgh ijklmnop qrstuvwx yz",
+		"abcdefg  hijklmn", "abcdefgh  ijklmnop", "abc defg hij", "abcdefg hijklmn op",
+		"abcd@efgh ijkl", "abcd[efgh ijkl", "abcd`efgh ijkl", "abcd{efgh ijkl", "abcd5efgh ijkl",
+		"abcd\tefgh ijkl", "ABCDEFGH IJKLMNOP", "a b c d e f g h i j", "Zzzzzzzz Aaaaaaaa.",
 	} {
 		if !checkFused(t, s) {
 			t.Errorf("%q: fused pass did not take a text of its set", s)
@@ -112,11 +119,14 @@ func TestFusedSentenceMatchesTwoPass(t *testing.T) {
 	plain := []rune("aAbZz09_:.',;-  \t\n\r$^~!?\"()`\u2013\u2014\u201c\u201d")
 	latin := append([]rune("aAz9_:.',;-  \n\r\t$"),
 		[]rune("éÀßÿÞ×÷·«»\u00a0¿¢°\u2018\u2019\u201c\u201d\u2013\u2014\u2026\u2022ª\u00ad©Ω")...)
+	// Mostly letters and single spaces, as prose is: the blocks fusePlain
+	// takes eight bytes at a time, with the bytes that end them.
+	prose := []rune("abcdefgzAMZ        abcdefgzAMZ  -.,'\n@[`{9\t“")
 	for _, tc := range []struct {
 		name  string
 		alpha []rune
 		min   int // texts in a hundred the pass must accept
-	}{{"plain", plain, 99}, {"latin", latin, 10}} {
+	}{{"plain", plain, 99}, {"latin", latin, 10}, {"prose", prose, 99}} {
 		t.Run(tc.name, func(t *testing.T) {
 			accepted, runs := 0, 0
 			rapid.Check(t, func(rt *rapid.T) {
@@ -255,4 +265,55 @@ func BenchmarkFuseSentence(b *testing.B) {
 			b.Fatalf("%q not taken", s)
 		}
 	}
+}
+
+// TestBlockTestsMatchBytes checks the eight-byte tests of fusePlain and
+// fastFirstSentence against the byte-at-a-time definitions they replace, on
+// blocks drawn from the bytes at the edges of each range (common practice
+// for such masks: the bytes next to 'a', 'z', 'A', 'Z', the space and the
+// stops, and bytes with the high bit set).
+func TestBlockTestsMatchBytes(t *testing.T) {
+	edges := []byte("aAzZbmMy @[`{\x00\x1f!.?\n\r\t-,'\x7f")
+	edges = append(edges, 0x80, 0xa0, 0xc3, 0xe2, 0xff, 0x8a, 0xae)
+	rapid.Check(t, func(rt *rapid.T) {
+		// Mostly letters and spaces, with up to two edge bytes put in.
+		blk := rapid.SliceOfN(rapid.SampledFrom([]byte("aAzZm  ")), 8, 8).Draw(rt, "block")
+		for range rapid.IntRange(0, 2).Draw(rt, "edges") {
+			blk[rapid.IntRange(0, 7).Draw(rt, "at")] = rapid.SampledFrom(edges).Draw(rt, "edge")
+		}
+		x := uint64(0)
+		for k := 7; k >= 0; k-- {
+			x = x<<8 | uint64(blk[k])
+		}
+		if got := load64(string(blk)); got != x {
+			rt.Fatalf("load64(%q) = %#x, want %#x", blk, got, x)
+		}
+		// lettersAndSpaces: the longest prefix of letters and single
+		// spaces that ends in a letter, and its spaces.
+		wantP := 0
+		for k, c := range blk {
+			letter := 'a' <= c && c <= 'z' || 'A' <= c && c <= 'Z'
+			if !letter && (c != ' ' || k > 0 && blk[k-1] == ' ') {
+				break
+			}
+			if letter {
+				wantP = k + 1
+			}
+		}
+		wantSpaces := strings.Count(string(blk[:wantP]), " ")
+		if p, spaces := lettersAndSpaces(x); p != wantP || spaces != wantSpaces {
+			rt.Fatalf("lettersAndSpaces(%q) = %d %d, want %d %d", blk, p, spaces, wantP, wantSpaces)
+		}
+		// sbStops: the first byte that sbStop marks.
+		want := uint64(0)
+		for k, c := range blk {
+			if sbStop[c] != 0 {
+				want = 0x80 << (8 * k)
+				break
+			}
+		}
+		if got := sbStops(x); got&-got != want {
+			rt.Fatalf("sbStops(%q) = %#x, want lowest flag %#x", blk, got, want)
+		}
+	})
 }
