@@ -105,7 +105,13 @@ func BenchmarkSortEntries(b *testing.B) {
 	b.Run("radix", func(b *testing.B) {
 		for b.Loop() {
 			copy(work, ents)
-			radixSortEntries(work, buf)
+			radixSortEntries(work, buf, 1)
+		}
+	})
+	b.Run("radix-jobs2", func(b *testing.B) {
+		for b.Loop() {
+			copy(work, ents)
+			radixSortEntries(work, buf, 2)
 		}
 	})
 	b.Run("slices.SortFunc", func(b *testing.B) {

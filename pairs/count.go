@@ -137,7 +137,7 @@ func Count(in Input, opt Options) (*Result, error) {
 	}
 
 	// Step 1: baskets.
-	ents := gather(in.Docs)
+	ents := gather(in.Docs, cfg.jobs)
 	bk, common, hits := formBaskets(ents, in.Excluded, cfg.maxDocs)
 	res.Common = common
 	res.Stats.ExcludedHits = hits
@@ -238,7 +238,7 @@ type entry struct {
 // gather lists every occurrence, documents in ascending order, and sorts
 // the list by fingerprint. The sort is stable, so the documents of each
 // basket stay ascending.
-func gather(docs [][]uint64) []entry {
+func gather(docs [][]uint64, jobs int) []entry {
 	total := 0
 	for _, fps := range docs {
 		total += len(fps)
@@ -249,7 +249,7 @@ func gather(docs [][]uint64) []entry {
 			ents = append(ents, entry{fp: fp, doc: uint32(d)})
 		}
 	}
-	return radixSortEntries(ents, make([]entry, len(ents)))
+	return radixSortEntries(ents, make([]entry, len(ents)), jobs)
 }
 
 // baskets holds baskets in compressed rows: basket b has fingerprint fps[b]

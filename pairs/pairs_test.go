@@ -488,11 +488,14 @@ func TestSparseTableGrowsAndCountsExactly(t *testing.T) {
 
 func TestRadixSortMatchesStableSort(t *testing.T) {
 	r := rand.New(rand.NewPCG(3, 4))
-	for _, n := range []int{0, 1, 2, 100, 5000} {
+	for _, n := range []int{0, 1, 2, 100, 5000, parallelSortMin + 777} {
 		ents := make([]entry, n)
 		for i := range ents {
 			// Few distinct values in some bytes, random in others.
 			ents[i] = entry{fp: r.Uint64()&0xff00ff00000000ff | uint64(r.IntN(4))<<40, doc: uint32(i)}
+			if i%2 == 1 { // and ties below random top bytes
+				ents[i].fp = r.Uint64()&0xffff000000000000 | uint64(r.IntN(3))
+			}
 		}
 		want := slices.Clone(ents)
 		slices.SortStableFunc(want, func(x, y entry) int {
@@ -504,9 +507,11 @@ func TestRadixSortMatchesStableSort(t *testing.T) {
 			}
 			return 0
 		})
-		got := radixSortEntries(ents, make([]entry, n))
-		if !slices.Equal(got, want) {
-			t.Fatalf("n=%d: radix sort differs from a stable sort", n)
+		for _, jobs := range []int{1, 3} {
+			got := radixSortEntries(slices.Clone(ents), make([]entry, n), jobs)
+			if !slices.Equal(got, want) {
+				t.Fatalf("n=%d, jobs %d: radix sort differs from a stable sort", n, jobs)
+			}
 		}
 	}
 }

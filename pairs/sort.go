@@ -1,5 +1,10 @@
 package pairs
 
+import (
+	"sync"
+	"sync/atomic"
+)
+
 // radixSortEntries sorts a by fingerprint, stably (entries with equal
 // fingerprints keep their order), using buf (len(buf) == len(a)) as
 // scratch, and returns the sorted slice.
@@ -14,10 +19,52 @@ package pairs
 // sort this replaced took about three times as long, because each of its
 // passes scatters writes over the whole array, and slices.SortFunc about
 // four times as long.
-func radixSortEntries(a, buf []entry) []entry {
-	sortMSD(a, buf[:len(a)], 56)
+//
+// With jobs > 1 the buckets of the first pass, which do not overlap, are
+// sorted by jobs goroutines at once; the result is the same, for a stable
+// sort has only one.
+func radixSortEntries(a, buf []entry, jobs int) []entry {
+	buf = buf[:len(a)]
+	if jobs <= 1 || len(a) < parallelSortMin {
+		sortMSD(a, buf, 56)
+		return a
+	}
+	var at [257]int
+	for _, e := range a {
+		at[int(e.fp>>56)+1]++
+	}
+	for i := 1; i < len(at); i++ {
+		at[i] += at[i-1]
+	}
+	next := at
+	for _, e := range a {
+		k := e.fp >> 56
+		buf[next[k]] = e
+		next[k]++
+	}
+	copy(a, buf)
+	var bucket atomic.Int32
+	var wg sync.WaitGroup
+	for range jobs {
+		wg.Go(func() {
+			for {
+				k := int(bucket.Add(1) - 1)
+				if k >= 256 {
+					return
+				}
+				if lo, hi := at[k], at[k+1]; hi-lo > 1 {
+					sortMSD(a[lo:hi], buf[lo:hi], 48)
+				}
+			}
+		})
+	}
+	wg.Wait()
 	return a
 }
+
+// parallelSortMin is the least number of entries radixSortEntries shares
+// among goroutines: below it, starting them costs more than it saves.
+const parallelSortMin = 1 << 16
 
 func sortMSD(b, scratch []entry, shift uint) {
 	for {

@@ -54,6 +54,7 @@ type spillConfig struct {
 	bufSize   int    // bytes of each file buffer
 	countMem  int64  // bytes for all counters at once
 	perDocRAM int64  // bytes held per document (deg, rank, orig, weights)
+	jobs      int    // goroutines sorting a run
 }
 
 const (
@@ -90,6 +91,7 @@ func countSpilled(in Input, cfg config, res *Result) error {
 	}
 	defer os.RemoveAll(dir)
 	sc := newSpillConfig(cfg.budget, cfg.documents, dir)
+	sc.jobs = cfg.jobs
 	sp := &spiller{cfg: sc}
 
 	// Step 1: sorted runs, merged into the basket file.
@@ -189,7 +191,7 @@ func (sp *spiller) writeRuns(docs [][]uint64) ([]string, error) {
 		if len(chunk) == 0 {
 			return nil
 		}
-		radixSortEntries(chunk, scratch[:len(chunk)])
+		radixSortEntries(chunk, scratch[:len(chunk)], sp.cfg.jobs)
 		p, err := sp.writeRun(func(emit func(entry) error) error {
 			for _, e := range chunk {
 				if err := emit(e); err != nil {
