@@ -277,20 +277,7 @@ func Build(in Input) (*Result, error) {
 		aSpans, bSpans []span
 	}
 	rankedPairs := make([]ranked, len(eng.Pairs))
-	byFirst := make([]int, len(eng.Pairs))
-	for k := range byFirst {
-		byFirst[k] = k
-	}
-	slices.SortStableFunc(byFirst, func(x, y int) int { return cmp.Compare(eng.Pairs[x].A, eng.Pairs[y].A) })
-	var groups [][]int // runs of byFirst with the same first document
-	for lo := 0; lo < len(byFirst); {
-		hi := lo + 1
-		for hi < len(byFirst) && eng.Pairs[byFirst[hi]].A == eng.Pairs[byFirst[lo]].A {
-			hi++
-		}
-		groups = append(groups, byFirst[lo:hi])
-		lo = hi
-	}
+	groups := runsBy(len(eng.Pairs), func(k int) uint32 { return eng.Pairs[k].A })
 	errs := make([]error, len(groups))
 	parallel(len(groups), in.Jobs, func(gi int) {
 		a, err := load(eng.Pairs[groups[gi][0]].A)
@@ -345,7 +332,7 @@ func Build(in Input) (*Result, error) {
 	errs = make([]error, len(withSpans))
 	parallel(len(withSpans), in.Jobs, func(k int) {
 		i := withSpans[k]
-		q, err := load(uint32(i))
+		q, err := in.text(uint32(i))
 		if err != nil {
 			errs[k] = err
 			return
@@ -378,12 +365,24 @@ func Build(in Input) (*Result, error) {
 		res.Texts = nil // the caller gives the texts a renderer needs (Loader)
 	}
 
-	for _, c := range eng.Common {
-		q, err := load(c.First)
+	// Each common unit is quoted from its first holder, each holder loaded
+	// once.
+	res.Common = res.Common[:len(eng.Common)]
+	holders := runsBy(len(eng.Common), func(k int) uint32 { return eng.Common[k].First })
+	errs = make([]error, len(holders))
+	parallel(len(holders), in.Jobs, func(h int) {
+		q, err := in.text(eng.Common[holders[h][0]].First)
 		if err != nil {
-			return nil, err
+			errs[h] = err
+			return
 		}
-		res.Common = append(res.Common, Common{Text: unitText(q, c.Hash), Documents: int(c.Docs)})
+		for _, k := range holders[h] {
+			c := eng.Common[k]
+			res.Common[k] = Common{Text: unitText(q, c.Hash), Documents: int(c.Docs)}
+		}
+	})
+	if err := errors.Join(errs...); err != nil {
+		return nil, err
 	}
 	slices.SortStableFunc(res.Common, func(x, y Common) int {
 		return cmp.Or(cmp.Compare(y.Documents, x.Documents), strings.Compare(x.Text, y.Text))
@@ -420,6 +419,26 @@ func Build(in Input) (*Result, error) {
 	return res, nil
 }
 
+// runsBy orders 0..n-1 by key, stably, and cuts the order into runs of
+// one key each: the work of one loaded document.
+func runsBy(n int, key func(int) uint32) [][]int {
+	order := make([]int, n)
+	for k := range order {
+		order[k] = k
+	}
+	slices.SortStableFunc(order, func(x, y int) int { return cmp.Compare(key(x), key(y)) })
+	var runs [][]int
+	for lo := 0; lo < n; {
+		hi := lo + 1
+		for hi < n && key(order[hi]) == key(order[lo]) {
+			hi++
+		}
+		runs = append(runs, order[lo:hi])
+		lo = hi
+	}
+	return runs
+}
+
 // unitText quotes the first unit of q with the given fingerprint.
 func unitText(q *quoted, hash uint64) string {
 	for _, u := range q.units {
@@ -439,8 +458,20 @@ type quoted struct {
 	lines lineIndex
 }
 
-// quote loads document id: from its Doc, or from in.Load when set.
+// quote loads document id for aligning: its text and units, and their
+// sequence.
 func (in *Input) quote(id uint32, aside setAside) (*quoted, error) {
+	q, err := in.text(id)
+	if err != nil {
+		return nil, err
+	}
+	q.seq = newSequence(q.units, aside)
+	return q, nil
+}
+
+// text loads document id's text and units: from its Doc, or from in.Load
+// when set.
+func (in *Input) text(id uint32) (*quoted, error) {
 	d := &in.Docs[id]
 	q := &quoted{doc: d, text: d.Text, units: d.Units}
 	if in.Load != nil {
@@ -454,7 +485,6 @@ func (in *Input) quote(id uint32, aside setAside) (*quoted, error) {
 	} else if !d.given() {
 		return nil, fmt.Errorf("report: %s is quoted but its units were not given", d.Path)
 	}
-	q.seq = newSequence(q.units, aside)
 	return q, nil
 }
 

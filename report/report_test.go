@@ -8,6 +8,7 @@ import (
 	"os"
 	"path/filepath"
 	"reflect"
+	"slices"
 	"strings"
 	"testing"
 
@@ -246,6 +247,9 @@ func TestBuildSameForEveryJobs(t *testing.T) {
 			l := labels[rng.IntN(len(labels))]
 			ss = append(ss, fmt.Sprintf("%s:Sentence %s number %d here.", l, l, k))
 		}
+		if i == 2 || i == 5 || i == 9 { // sentences of their own, quoted as common units below
+			ss = append(ss, fmt.Sprintf("z:Only document %d has this one.", i), fmt.Sprintf("z:And this one is document %d's.", i))
+		}
 		docs = append(docs, doc(fmt.Sprintf("d%02d.txt", i), ss...))
 	}
 	eng := &pairs.Result{}
@@ -253,6 +257,12 @@ func TestBuildSameForEveryJobs(t *testing.T) {
 		for b := a + 1; b < 30; b += 1 + rng.IntN(4) {
 			eng.Pairs = append(eng.Pairs, pairs.Pair{A: uint32(a), B: uint32(b), Shared: 2})
 		}
+	}
+	// Common units, several from one first holder, holders out of order:
+	// each is quoted from its holder's text.
+	for _, c := range []struct{ k, back int }{{5, 1}, {2, 2}, {5, 2}, {9, 1}, {2, 1}} {
+		u := docs[c.k].Units[len(docs[c.k].Units)-c.back]
+		eng.Common = append(eng.Common, pairs.CommonUnit{Hash: u.Hash, Docs: 3, First: uint32(c.k)})
 	}
 	// Documents 30..39 are in no pair: they are given by their counts only.
 	for i := 30; i < 40; i++ {
@@ -265,6 +275,19 @@ func TestBuildSameForEveryJobs(t *testing.T) {
 		}
 		if len(one.Pairs) != len(eng.Pairs) {
 			t.Fatalf("%d pairs reported of %d", len(one.Pairs), len(eng.Pairs))
+		}
+		for _, c := range eng.Common {
+			d := docs[c.First]
+			want := ""
+			for _, u := range d.Units {
+				if u.Hash == c.Hash {
+					want = d.Text[u.Start:u.End]
+					break
+				}
+			}
+			if !slices.ContainsFunc(one.Common, func(x Common) bool { return x.Text == want && want != "" }) {
+				t.Errorf("common unit of %s: %q not among %v", d.Path, want, one.Common)
+			}
 		}
 		if got := one.Documents[35].Units; got != docs[35].UnitCount {
 			t.Errorf("a document given by its count shows %d units, want %d", got, docs[35].UnitCount)
