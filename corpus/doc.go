@@ -21,12 +21,20 @@
 // Arguments may be files or folders, in any mix. Folders are walked
 // recursively, entries in lexical order; a document's Path is the argument
 // as given joined with "/" and its path inside the folder ("docs" gives
-// "docs/a.txt", "docs/" gives "docs/a.txt", "./docs" gives
-// "./docs/a.txt"). The walk only stats; files are then sorted by Path and
-// the same file reached twice (same cleaned absolute path, or same device
-// and inode) is kept once, under the Path that sorts first. Then
-// Options.Jobs workers read and decode the files, each into its own slot,
-// so the result does not depend on the number of workers.
+// "docs/a.txt", "docs/" gives "docs/a.txt", "./docs" gives "./docs/a.txt").
+// The walk only lists folders and stats files, and hands each file to
+// Options.Jobs workers the moment it finds it, so that the reads go on
+// while the walk does (on a folder of 10^5 small files the walk alone takes
+// about 0.6 s of one core, BenchmarkWalkFolder). Each file's documents go
+// into its own slot, numbered in walk order. Once the walk and the reads
+// are over, the files are sorted by Path and the same file reached twice
+// (same cleaned absolute path, or same device and inode) is kept once,
+// under the Path that sorts first; the slots are then taken in that order,
+// so the result does not depend on the number of workers or their timing.
+// The price of not waiting for the walk: a file reached twice is read
+// twice, and its second reading thrown away. os.ReadDir lists a whole
+// folder before its first entry is handed on, so in one huge flat folder
+// the listing itself is not overlapped, only the stats.
 //
 // Policy, in the order it is applied to each entry:
 //

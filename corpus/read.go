@@ -6,7 +6,6 @@ import (
 	"slices"
 	"strings"
 	"sync"
-	"sync/atomic"
 )
 
 // Read walks paths (files and folders, in any mix), reads every text file
@@ -32,85 +31,118 @@ func Read(paths []string, opt Options) ([]Document, []Skipped, error) {
 // back parallel to the documents, in the same order (sorted by Path, ID
 // equal to the index). digest runs on up to opt.Jobs goroutines at once
 // and must be safe for that; it may change only the Document it is given.
+//
+// The workers start reading while the walk goes on: each file is read as
+// soon as the walk has found it, and the result is put in order only once
+// the walk and the reads are over. So a file reached twice (named twice,
+// or through a hard link) is read under each name, and digest may see a
+// document that is not returned: the one read under the name that does
+// not sort first, whose documents, digests and skipped parts are dropped.
+// That is rare, and costs one more read of the file; knowing the duplicate
+// in advance would mean waiting for the whole walk.
+//
+// The walk runs in the calling goroutine and hands each file it finds to
+// the workers through a queue of jobQueue copies of its entry; each file's
+// documents, digests and skipped parts go into a slot of its own, numbered
+// in walk order (a chunked store, so the slots the workers write to never
+// move). Memory is what it was when the reads waited for the walk: one
+// entry and one slot per file, and once the walk is over the order of the
+// kept slots (one int per file, as the list of files to read was); the
+// entries are dropped before the documents are gathered.
 func ReadEach[T any](paths []string, opt Options, digest func(d *Document) T) ([]Document, []T, []Skipped, error) {
 	opt, err := opt.withDefaults()
 	if err != nil {
 		return nil, nil, nil, err
 	}
-	w := walker{opt: opt}
-	for _, p := range paths {
-		w.arg(p)
-	}
-	w.sortAndDedupe()
 
-	var todo []*entry
-	var skipped []Skipped
-	for i := range w.entries {
-		e := &w.entries[i]
-		switch {
-		case e.dup:
-		case e.reason != "":
-			skipped = append(skipped, Skipped{Path: e.display, Reason: e.reason})
-		default:
-			todo = append(todo, e)
-		}
-	}
-
+	// What one candidate entry gave, stored by its seq (its rank among the
+	// candidates in walk order): written by the worker that read it, read
+	// here after all the workers are done.
 	type read struct {
 		docs    []Document
 		digests []T
 		skipped []Skipped
 	}
-	results := make([]read, len(todo))
-	var next atomic.Int64
-	var wg sync.WaitGroup
-	for range min(opt.Jobs, len(todo)) {
-		wg.Go(func() {
-			for {
-				i := int(next.Add(1) - 1)
-				if i >= len(todo) {
+	type job struct {
+		e entry // a copy: the walker's slice moves as it grows
+		r *read
+	}
+	var results chunked[read] // grown by this goroutine only, during the walk
+	jobs := make(chan job, jobQueue)
+	work := func() {
+		for j := range jobs {
+			r, name0 := j.r, j.e.display
+			readEntry(&j.e, &opt, func(p *part) {
+				name := name0 + p.sub
+				if p.reason != "" {
+					r.skipped = append(r.skipped, Skipped{Path: name, Reason: p.reason})
 					return
 				}
-				r := &results[i]
-				readEntry(todo[i], &opt, func(p *part) {
-					name := todo[i].display + p.sub
-					if p.reason != "" {
-						r.skipped = append(r.skipped, Skipped{Path: name, Reason: p.reason})
-						return
-					}
-					d := Document{
-						Path:     name,
-						Format:   p.format,
-						Encoding: p.Encoding,
-						Size:     p.size,
-						File:     name[:len(todo[i].display)],
-						Text:     p.Text,
-						Notes:    p.Notes,
-						Marks:    p.Marks,
-					}
-					*p = part{} // the text is the digest's from here on
-					r.digests = append(r.digests, digest(&d))
-					r.docs = append(r.docs, d)
-				})
-			}
-		})
+				d := Document{
+					Path:     name,
+					Format:   p.format,
+					Encoding: p.Encoding,
+					Size:     p.size,
+					File:     name0,
+					Text:     p.Text,
+					Notes:    p.Notes,
+					Marks:    p.Marks,
+				}
+				*p = part{} // the text is the digest's from here on
+				r.digests = append(r.digests, digest(&d))
+				r.docs = append(r.docs, d)
+			})
+		}
 	}
+	var wg sync.WaitGroup
+	workers := 0
+	w := walker{opt: opt, found: func(e *entry) {
+		if workers < opt.Jobs { // started as files come, at most one per file
+			workers++
+			wg.Go(work)
+		}
+		jobs <- job{e: *e, r: results.at(e.seq)}
+	}}
+	for _, p := range paths {
+		w.arg(p)
+	}
+	close(jobs)
 	wg.Wait()
-	w.entries, todo = nil, nil // the walk's names and identities are not needed any more
+
+	// Sorted and de-duplicated as if nothing had been read yet; the
+	// readings of the entries found to be duplicates are thrown away.
+	w.sortAndDedupe()
+	var skipped []Skipped
+	order := make([]int, 0, w.candidates) // the seq of each kept candidate, by Path
+	for i := range w.entries {
+		e := &w.entries[i]
+		switch {
+		case e.dup:
+			if e.reason == "" {
+				*results.at(e.seq) = read{}
+			}
+		case e.reason != "":
+			skipped = append(skipped, Skipped{Path: e.display, Reason: e.reason})
+		default:
+			order = append(order, e.seq)
+		}
+	}
+	w.entries = nil // the walk's names and identities are not needed any more
 
 	total := 0
-	for i := range results {
-		total += len(results[i].docs)
+	for _, k := range order {
+		total += len(results.at(k).docs)
 	}
 	docs := make([]Document, 0, total)
 	digests := make([]T, 0, total)
-	for i := range results {
-		r := &results[i]
+	for _, k := range order {
+		r := results.at(k)
 		docs = append(docs, r.docs...)
 		digests = append(digests, r.digests...)
 		skipped = append(skipped, r.skipped...)
-		results[i] = read{} // held once, not twice, for a large corpus
+		*r = read{} // held once, not twice, for a large corpus
 	}
+	results, order = chunked[read]{}, nil
 	// The documents come in the walk's order, sorted by path, unless a ZIP
 	// archive's members ("a.zip!/x") or a JSON Lines file's lines sort
 	// among other paths: sort again, then number.
@@ -132,6 +164,32 @@ func ReadEach[T any](paths []string, opt Options, digest func(d *Document) T) ([
 	}
 	slices.SortStableFunc(skipped, func(a, b Skipped) int { return strings.Compare(a.Path, b.Path) })
 	return docs, digests, skipped, nil
+}
+
+// jobQueue is how many found files may wait for a worker: enough for the
+// walk to run ahead of the reads without waking up for every file, few
+// enough that their copies cost nothing next to the walk's own entries.
+const jobQueue = 1024
+
+// chunkLen is the number of values in one chunk of a chunked store.
+const chunkLen = 1024
+
+// A chunked store holds values by index in chunks of chunkLen that never
+// move, so a pointer to one stays valid while the store grows (a slice
+// that is appended to is copied elsewhere when it outgrows its capacity).
+// It costs what a slice of the same values would, plus less than one
+// chunk. Growing it is not safe for concurrent use; writing through the
+// pointers it gave out is, one goroutine per value.
+type chunked[V any] struct {
+	chunks [][]V
+}
+
+// at returns the value of index i, growing the store to hold it.
+func (c *chunked[V]) at(i int) *V {
+	for i/chunkLen >= len(c.chunks) {
+		c.chunks = append(c.chunks, make([]V, chunkLen))
+	}
+	return &c.chunks[i/chunkLen][i%chunkLen]
 }
 
 // readEntry reads one file and hands emit its documents (one, or one per

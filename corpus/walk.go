@@ -31,15 +31,22 @@ type entry struct {
 	size    int64  // from the walk's stat
 	dev     uint64
 	ino     uint64
-	hasID   bool // dev and ino are known
 	reason  string
+	seq     int  // for a candidate: how many candidates the walk found before it
+	hasID   bool // dev and ino are known
 	dup     bool // the same file under a display path that sorts earlier
 }
 
-// A walker collects entries from the arguments, in walk order.
+// A walker collects entries from the arguments, in walk order. When found
+// is set, it is called with every candidate (reason == "") the moment the
+// walk appends it, so that reading can start while the walk goes on; the
+// entry it is given is the walker's and is moved by later appends, so
+// found must copy what it keeps.
 type walker struct {
-	opt     Options
-	entries []entry
+	opt        Options
+	entries    []entry
+	candidates int // entries with reason == "" so far: the next one's seq
+	found      func(e *entry)
 }
 
 // arg adds one command-line argument: a file, a folder, or a symbolic link
@@ -132,9 +139,13 @@ func (w *walker) dir(osPath, display, abs string) {
 }
 
 func (w *walker) file(osPath, display, abs string, fi fs.FileInfo) {
-	e := entry{display: display, osPath: osPath, abs: abs, size: fi.Size()}
+	e := entry{display: display, osPath: osPath, abs: abs, size: fi.Size(), seq: w.candidates}
 	e.dev, e.ino, e.hasID = fileIdentity(fi)
+	w.candidates++
 	w.entries = append(w.entries, e)
+	if w.found != nil {
+		w.found(&w.entries[len(w.entries)-1])
+	}
 }
 
 func (w *walker) skip(display, abs, reason string) {

@@ -50,3 +50,6 @@ func TestDotDotAfterALinkIsResolvedByTheSystem(t *testing.T) {
 		t.Errorf("read again by its name: %+v", again)
 	}
 }
+
+// makeFifo makes a named pipe (an irregular file) at p.
+func makeFifo(p string) error { return syscall.Mkfifo(p, 0o644) }
