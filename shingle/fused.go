@@ -383,12 +383,12 @@ func lettersAndSpaces(x uint64) (p int, spaces int) {
 	// The prefix ends at the first byte that is neither, or the second of
 	// two spaces...
 	bad := (^(letters | space) | space<<8&space) & swarHigh
-	p = bits.TrailingZeros64(bad) >> 3 // 8 when none
-	// ...and before a space that ends it.
-	if p > 0 && space>>(8*p-1)&1 != 0 {
-		p--
-	}
-	return p, bits.OnesCount64(space & (1<<(8*p) - 1))
+	// ...and at a space before such a byte, or before the block's end.
+	// (Of these spaces only the one before the first bad byte can come
+	// first.)
+	bad |= space & (bad>>8 | 1<<63)
+	// bad&-bad is the lowest flag: the prefix is the bytes below it.
+	return bits.TrailingZeros64(bad) >> 3, bits.OnesCount64(space & (bad&-bad - 1))
 }
 
 // fuseLatin is fuseSentence for any text of the fused set. It follows
