@@ -27,7 +27,12 @@ func Read(paths []string, opt Options) ([]Document, []Skipped, error) {
 // ready, and keeps of the document only what digest leaves in it. A digest
 // that computes what it needs from d.Text and then sets d.Text to "" makes
 // the run hold the texts being digested (about one per worker, or one ZIP
-// archive's members) instead of every text. The values digest returns come
+// archive's members) instead of every text. Such a digest gives the text
+// back: it must keep no part of it once it returns (no substring, no
+// slice of its bytes), for the worker reads its next file into the buffer
+// a text may share (text.go) when every document of a file gave its text
+// back; a digest that leaves d.Text set keeps its buffer, which is then
+// never read into again. The values digest returns come
 // back parallel to the documents, in the same order (sorted by Path, ID
 // equal to the index). digest runs on up to opt.Jobs goroutines at once
 // and must be safe for that; it may change only the Document it is given.
@@ -70,9 +75,11 @@ func ReadEach[T any](paths []string, opt Options, digest func(d *Document) T) ([
 	var results chunked[read] // grown by this goroutine only, during the walk
 	jobs := make(chan job, jobQueue)
 	work := func() {
+		var scratch []byte // the buffer files are read into, while no document keeps it
 		for j := range jobs {
 			r, name0 := j.r, j.e.display
-			readEntry(&j.e, &opt, func(p *part) {
+			kept := false
+			used := readEntry(&j.e, &opt, scratch, func(p *part) {
 				name := name0 + p.sub
 				if p.reason != "" {
 					r.skipped = append(r.skipped, Skipped{Path: name, Reason: p.reason})
@@ -90,8 +97,16 @@ func ReadEach[T any](paths []string, opt Options, digest func(d *Document) T) ([
 				}
 				*p = part{} // the text is the digest's from here on
 				r.digests = append(r.digests, digest(&d))
+				kept = kept || d.Text != ""
 				r.docs = append(r.docs, d)
 			})
+			// A plain text file's text may be the buffer itself (text.go):
+			// it is read into again only when every document of the file
+			// gave its text back.
+			scratch = nil
+			if !kept && cap(used) <= maxReusedBuffer {
+				scratch = used
+			}
 		}
 	}
 	var wg sync.WaitGroup
@@ -192,33 +207,53 @@ func (c *chunked[V]) at(i int) *V {
 	return &c.chunks[i/chunkLen][i%chunkLen]
 }
 
-// readEntry reads one file and hands emit its documents (one, or one per
-// member of a ZIP archive or line of a JSON Lines file), or the reason
-// there is none.
-func readEntry(e *entry, opt *Options, emit func(*part)) {
+// readEntry reads one file, into buf when it is large enough, and hands
+// emit its documents (one, or one per member of a ZIP archive or line of a
+// JSON Lines file), or the reason there is none. It returns the buffer the
+// file was read into (nil when none was), which a document's text may
+// alias (text.go): the caller may read into it again only once no document
+// keeps its text.
+func readEntry(e *entry, opt *Options, buf []byte, emit func(*part)) []byte {
 	if isJSONL(e.display) { // streamed, one document per line (jsonl.go)
 		readJSONLEach(e.osPath, opt, emit)
-		return
+		return buf
 	}
 	limit := opt.MaxFileSize
 	if e.size > limit { // stat says so: the file is not opened
 		emit(&part{reason: tooLarge(limit)})
-		return
+		return buf
 	}
-	raw, err := readFile(e.osPath, e.size, limit)
+	raw, err := readFile(e.osPath, e.size, limit, buf)
 	if err != nil {
 		emit(&part{reason: osReason(err)})
-		return
+		return raw
 	}
 	if int64(len(raw)) > limit { // it grew since the walk
 		emit(&part{reason: tooLarge(limit)})
-		return
+		return raw
 	}
 	budget := opt.MaxContainerBytes
 	parts := extractFile(path.Base(e.display), &input{raw: raw, osPath: e.osPath, opt: opt, budget: &budget, owned: true})
 	for k := range parts {
 		emit(&parts[k])
 	}
+	return raw
+}
+
+// maxReusedBuffer is the largest read buffer a worker keeps for the next
+// file: a corpus of small files reads them all into one buffer per worker
+// instead of allocating one per file (an eighth of a scan's allocations
+// and their collection), and one large file does not make its worker hold
+// its size for the rest of the run.
+const maxReusedBuffer = 1 << 20
+
+// readBuffer returns buf emptied when it has room for want bytes, else a
+// new buffer of capacity want.
+func readBuffer(buf []byte, want int64) []byte {
+	if int64(cap(buf)) >= want {
+		return buf[:0]
+	}
+	return make([]byte, 0, want)
 }
 
 // tooLarge is the reason for a file over the size limit.

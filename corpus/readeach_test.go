@@ -162,3 +162,49 @@ func TestReadEachSortsMembersAmongFiles(t *testing.T) {
 		t.Errorf("order %q, want %q", got, want)
 	}
 }
+
+// TestReadEachReusesOnlyGivenBackBuffers: a worker reads its next file
+// into the buffer of the last one only when the digest gave the text back.
+// Files of falling and rising sizes (a short text read into a longer
+// one's buffer) must each reach the digest as they are on disk, and every
+// text a digest keeps must still be its file's once all files are read.
+func TestReadEachReusesOnlyGivenBackBuffers(t *testing.T) {
+	dir := t.TempDir()
+	files := map[string]string{}
+	for i := range 60 {
+		n := []int{900, 30, 4000, 5, 1200, 70}[i%6] + i
+		files[fmt.Sprintf("f%02d.txt", i)] = strings.Repeat(fmt.Sprintf("Word%c ", 'a'+i%26), n/6+1)[:n] + "\n"
+	}
+	writeTree(t, dir, files)
+	for _, jobs := range []int{1, 3} {
+		docs, seen, _, err := ReadEach([]string{dir}, Options{Jobs: jobs}, func(d *Document) string {
+			text := strings.Clone(d.Text) // what the digest saw, as it saw it
+			if !strings.HasSuffix(d.Path, "3.txt") && !strings.HasSuffix(d.Path, "7.txt") {
+				d.Text = "" // given back
+			}
+			return text
+		})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(docs) != len(files) {
+			t.Fatalf("jobs %d: %d documents of %d files", jobs, len(docs), len(files))
+		}
+		kept := 0
+		for i, d := range docs {
+			want := files[filepath.Base(d.Path)]
+			if seen[i] != want {
+				t.Errorf("jobs %d: %s reached the digest as %.40q..., want %.40q...", jobs, d.Path, seen[i], want)
+			}
+			if d.Text != "" {
+				kept++
+				if d.Text != want {
+					t.Errorf("jobs %d: kept text of %s is %.40q..., want %.40q... (its buffer was read into again)", jobs, d.Path, d.Text, want)
+				}
+			}
+		}
+		if kept != 12 {
+			t.Errorf("jobs %d: %d texts kept, want 12", jobs, kept)
+		}
+	}
+}

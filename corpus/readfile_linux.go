@@ -7,8 +7,9 @@ import (
 )
 
 // readFile reads at most limit+1 bytes of the file (one more than allowed,
-// to notice a file that outgrew the limit), into a buffer sized from the
-// size the walk saw.
+// to notice a file that outgrew the limit), into buf when it has room for
+// the size the walk saw and one byte more, else into a new buffer of that
+// size.
 //
 // On Linux it calls open, read and close itself: os.Open also registers
 // every file with the runtime's network poller (a refused epoll_ctl for a
@@ -16,7 +17,7 @@ import (
 // is mostly small files. A file is read until read returns 0, or until a
 // short read ends exactly at the size the walk saw (the end of a file that
 // has not changed), so a short read elsewhere never cuts a text.
-func readFile(name string, size, limit int64) ([]byte, error) {
+func readFile(name string, size, limit int64, buf []byte) ([]byte, error) {
 	var fd int
 	var err error
 	for {
@@ -29,7 +30,7 @@ func readFile(name string, size, limit int64) ([]byte, error) {
 		return nil, &fs.PathError{Op: "open", Path: name, Err: err}
 	}
 	defer syscall.Close(fd)
-	buf := make([]byte, 0, min(size, limit)+1)
+	buf = readBuffer(buf, min(size, limit)+1)
 	for int64(len(buf)) <= limit {
 		if len(buf) == cap(buf) {
 			buf = slices.Grow(buf, max(512, min(len(buf), 1<<20)))

@@ -9,15 +9,16 @@ import (
 )
 
 // readFile reads at most limit+1 bytes of the file (one more than allowed,
-// to notice a file that outgrew the limit), into a buffer sized from the
-// size the walk saw.
-func readFile(name string, size, limit int64) ([]byte, error) {
+// to notice a file that outgrew the limit), into buf when it has room for
+// the size the walk saw and one byte more, else into a new buffer of that
+// size.
+func readFile(name string, size, limit int64, buf []byte) ([]byte, error) {
 	f, err := os.Open(name)
 	if err != nil {
 		return nil, err
 	}
 	defer f.Close()
-	buf := make([]byte, 0, min(size, limit)+1)
+	buf = readBuffer(buf, min(size, limit)+1)
 	for int64(len(buf)) <= limit {
 		if len(buf) == cap(buf) {
 			buf = slices.Grow(buf, max(512, min(len(buf), 1<<20)))
