@@ -47,11 +47,12 @@ var errNoDocuments = errors.New("no readable document")
 // scan runs the whole pipeline: corpus → shingle → pairs → report.
 //
 // Documents are split as they are read, and of each only its digest is
-// kept (its distinct fingerprints for the engine, its counts and notes):
-// the run never holds every text. Once the engine has found the pairs,
-// the documents the report quotes (those in a pair, and the first holder
-// of each common unit) are read again and split again; a text that is
-// not the one first read stops the run rather than misplace a passage.
+// kept (its distinct fingerprints for the engine, its counts and notes),
+// its units going to a temporary file (unitSpool): the run never holds
+// every text. Once the engine has found the pairs, the documents the
+// report quotes (those in a pair, and the first holder of each common
+// unit) are read again for their texts; a text that is not the one first
+// read stops the run rather than misplace a passage.
 func scan(cfg scanConfig) (*report.Result, error) {
 	progress := cfg.Progress
 	if progress == nil {
@@ -63,10 +64,18 @@ func scan(cfg scanConfig) (*report.Result, error) {
 
 	progress("reading and splitting %d inputs", len(cfg.Paths))
 	splitters := newSplitterPool(splitOpt)
+	spool, err := newUnitSpool(cfg.Pairs.TempDir)
+	if err != nil {
+		return nil, err
+	}
+	defer spool.close()
 	docs, digests, skipped, err := corpus.ReadEach(cfg.Paths, cfg.Corpus, func(d *corpus.Document) docDigest {
-		return splitters.digest(d, effective, cfg.KeepText)
+		return splitters.digest(d, effective, cfg.KeepText, spool)
 	})
 	if err != nil {
+		return nil, err
+	}
+	if err := spool.done(); err != nil {
 		return nil, err
 	}
 
@@ -146,7 +155,7 @@ func scan(cfg scanConfig) (*report.Result, error) {
 		return nil, err
 	}
 	defer store.close()
-	if err := readAgain(cfg, docs, digests, quoted, splitters, store); err != nil {
+	if err := readAgain(cfg, docs, digests, quoted, spool, store); err != nil {
 		return nil, err
 	}
 
@@ -236,6 +245,7 @@ type docDigest struct {
 	size  int      // bytes of text
 	words int32
 	units int32 // units in text order
+	spool int64 // where the units are in the run's unitSpool
 	notes []string
 }
 
@@ -245,6 +255,7 @@ type splitterPool struct{ pool sync.Pool }
 type splitterBuf struct {
 	sp    *shingle.Splitter
 	units []shingle.Unit
+	enc   []byte // units encoded for the spool
 }
 
 func newSplitterPool(opt shingle.Options) *splitterPool {
@@ -264,20 +275,21 @@ func (p *splitterPool) units(text string) (*splitterBuf, []shingle.Unit, shingle
 
 func (p *splitterPool) put(b *splitterBuf) { p.pool.Put(b) }
 
-// digest splits d and returns what the scan keeps of it; d's text is
-// dropped unless keepText asks for it.
-func (p *splitterPool) digest(d *corpus.Document, effective shingle.Options, keepText func(path string) bool) docDigest {
+// digest splits d and returns what the scan keeps of it, with its units
+// written to spool; d's text is dropped unless keepText asks for it.
+func (p *splitterPool) digest(d *corpus.Document, effective shingle.Options, keepText func(path string) bool, spool *unitSpool) docDigest {
 	b, units, st := p.units(d.Text)
 	set := make([]uint64, len(units))
 	for k, u := range units {
 		set[k] = u.Hash
 	}
+	at := spool.add(units, &b.enc)
 	p.put(b)
 	slices.Sort(set)
 	set = slices.Clip(slices.Compact(set))
 	g := docDigest{
 		set: set, sum: xxhash.Sum64String(d.Text), size: len(d.Text),
-		words: int32(st.Words), units: int32(len(units)),
+		words: int32(st.Words), units: int32(len(units)), spool: at,
 		notes: splitNotes(d.Notes, st, d.Text, effective),
 	}
 	if keepText == nil || !keepText(d.Path) {
@@ -310,10 +322,11 @@ func quotedDocuments(eng *pairs.Result, n int) []int {
 }
 
 // readAgain reads the files of the documents ids once more, with the
-// scan's options, and splits them again. A document whose text is not the one first read (it changed,
-// vanished or became unreadable during the run) is an error: its
-// passages' offsets would point into another text.
-func readAgain(cfg scanConfig, docs []corpus.Document, digests []docDigest, ids []int, splitters *splitterPool, store *quotedStore) error {
+// scan's options, and puts their texts in store with the units the first
+// reading wrote to spool. A document whose text is not the one first read
+// (it changed, vanished or became unreadable during the run) is an error:
+// its passages' offsets would point into another text.
+func readAgain(cfg scanConfig, docs []corpus.Document, digests []docDigest, ids []int, spool *unitSpool, store *quotedStore) error {
 	if len(ids) == 0 {
 		return store.done()
 	}
@@ -347,9 +360,10 @@ func readAgain(cfg scanConfig, docs []corpus.Document, digests []docDigest, ids 
 			return struct{}{}
 		}
 		docs[i].Marks = d.Marks // each i once: the digest let them go
-		b, units, _ := splitters.units(text)
-		err := store.put(i, text, units)
-		splitters.put(b)
+		units, err := spool.read(g.spool, int(g.units))
+		if err == nil {
+			err = store.put(i, text, units)
+		}
 		if err != nil {
 			mu.Lock()
 			failed = append(failed, err)
