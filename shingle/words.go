@@ -13,7 +13,16 @@ import (
 // between ("term-end", "1-1/2") count as one word, as does a word hyphenated
 // across a line break ("exam-\n ple"). Apostrophe forms ("don't", "Atlanta's")
 // are one segment under UAX #29 already.
-func CountWords(text string) int { return countWords(text, true) }
+//
+// Text of ASCII and – — “ ” is counted by the fused pass (fused.go), which
+// gives countWords' count (TestFusedSentenceMatchesTwoPass) three to four
+// times faster, into a scratch copy of the text's length.
+func CountWords(text string) int {
+	if _, n, ok := fusePlain(make([]byte, len(text)), text); ok {
+		return n
+	}
+	return countWords(text, true)
+}
 
 // countWords counts words; joinHyphens chooses whether hyphen compounds are
 // one word (the rule CountWords uses) or one per part (kept for the

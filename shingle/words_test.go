@@ -119,6 +119,13 @@ func TestFastWordCountAgrees(t *testing.T) {
 				t.Fatalf("%q (join hyphens %v): fast %d, uniseg %d", s, join, fast, slow)
 			}
 		}
+		// CountWords takes the fused pass where it can: the same count.
+		// Prose-like runs of letters and single spaces, which it reads
+		// eight bytes at a time, are added.
+		p := s + rapid.StringOf(rapid.SampledFrom([]rune("abcXYZ     -.,'\n"))).Draw(t, "prose")
+		if got, want := CountWords(p), countWordsUAX(p, true); got != want {
+			t.Fatalf("%q: CountWords %d, uniseg %d", p, got, want)
+		}
 	})
 	for _, s := range []string{"a\u00adb", "©", "a\u0301", "\x00", "日本", "a\u200bb", "\u0101"} {
 		if _, ok := countWordsFast(s, true); ok {
