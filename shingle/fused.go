@@ -282,17 +282,16 @@ func fusePlain(buf []byte, s string) (j, n int, ok bool) {
 				for k+8 <= len(r) {
 					x := load64(r[k:])
 					p, spaces := lettersAndSpaces(x)
-					if p == 0 {
-						break
-					}
 					// The bytes past p are written too, and overwritten
 					// later: j stays at or before i.
 					binary.LittleEndian.PutUint64(w[k:k+8], x|swarCase)
 					n += spaces
-					k += p
 					if p < 8 {
+						k += p
 						break
 					}
+					// A constant step: the next load need not wait for p.
+					k += 8
 				}
 				for k < len(r) {
 					o := alnumLower[r[k]]
