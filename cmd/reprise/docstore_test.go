@@ -3,9 +3,11 @@ package main
 import (
 	"fmt"
 	"reflect"
+	"slices"
 	"strings"
 	"sync"
 	"testing"
+	"unsafe"
 
 	"reprise/shingle"
 )
@@ -36,11 +38,6 @@ func TestUnitSpoolGivesBackWhatWasAdded(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer spool.close()
-	store, err := newQuotedStore(dir)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer store.close()
 	const n = 200
 	texts := make([]string, n)
 	units := make([][]shingle.Unit, n)
@@ -69,26 +66,63 @@ func TestUnitSpoolGivesBackWhatWasAdded(t *testing.T) {
 		if !reflect.DeepEqual(got, units[k]) {
 			t.Fatalf("document %d: spool gave %v, want %v", k, got, units[k])
 		}
-		if k%3 == 0 {
-			if err := store.put(k, texts[k], got); err != nil {
-				t.Fatal(err)
-			}
-		}
 	}
-	if err := store.done(); err != nil {
-		t.Fatal(err)
-	}
-	for k := 0; k < n; k += 3 {
-		text, got, err := store.load(k)
+	for _, inMemory := range []bool{false, true} {
+		store, err := newQuotedStore(dir, inMemory)
 		if err != nil {
 			t.Fatal(err)
 		}
-		if text != texts[k] || !reflect.DeepEqual(got, units[k]) {
-			t.Fatalf("document %d: store gave %q %v, want %q %v", k, text, got, texts[k], units[k])
+		defer store.close()
+		for k := 0; k < n; k += 3 {
+			// What put is given may be overwritten after it returns (a
+			// read buffer used again): the store keeps copies.
+			text, us := []byte(texts[k]), slices.Clone(units[k])
+			if err := store.put(k, unsafe.String(&text[0], len(text)), us); err != nil {
+				t.Fatal(err)
+			}
+			for b := range text {
+				text[b] = 'x'
+			}
+			clear(us)
+		}
+		if err := store.done(); err != nil {
+			t.Fatal(err)
+		}
+		for k := range n {
+			text, got, err := store.load(k)
+			if k%3 != 0 {
+				if err == nil || store.has(k) {
+					t.Errorf("in memory %v: document %d never put, but loaded (%v)", inMemory, k, err)
+				}
+				continue
+			}
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !store.has(k) || text != texts[k] || !reflect.DeepEqual(got, units[k]) {
+				t.Fatalf("in memory %v: document %d: store gave %q %v, want %q %v", inMemory, k, text, got, texts[k], units[k])
+			}
 		}
 	}
-	if _, _, err := store.load(1); err == nil {
-		t.Error("store.load of a document never put: no error")
+}
+
+// TestQuotedFit: the quoted documents are held in memory with no bound,
+// or when they take at most half of what the bound leaves.
+func TestQuotedFit(t *testing.T) {
+	digests := []docDigest{{size: 1000, units: 10}, {size: 5000, units: 40}, {size: 3000, units: 20}}
+	need := quotedBytes(1000, 10) + quotedBytes(3000, 20) // documents 0 and 2: 4720 bytes
+	for _, tc := range []struct {
+		memory, held int64
+		want         bool
+	}{
+		{0, 1 << 40, true},
+		{2*need + 100, 100, true},
+		{2*need + 99, 100, false},
+		{100, 200, false},
+	} {
+		if got := quotedFit(tc.memory, tc.held, digests, []int{0, 2}); got != tc.want {
+			t.Errorf("memory %d, held %d, need %d: fit %v, want %v", tc.memory, tc.held, need, got, tc.want)
+		}
 	}
 }
 

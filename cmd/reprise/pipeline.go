@@ -150,7 +150,7 @@ func scan(cfg scanConfig) (*report.Result, error) {
 
 	quoted := quotedDocuments(eng, len(docs))
 	progress("reading again the %d documents of %d pairs", len(quoted), len(eng.Pairs))
-	store, err := newQuotedStore(cfg.Pairs.TempDir)
+	store, err := newQuotedStore(cfg.Pairs.TempDir, quotedFit(cfg.Memory, held, digests, quoted))
 	if err != nil {
 		return nil, err
 	}
@@ -319,6 +319,21 @@ func quotedDocuments(eng *pairs.Result, n int) []int {
 		}
 	}
 	return ids
+}
+
+// quotedFit reports whether the quoted documents ids may be held in
+// memory: with no --memory bound, or when their texts and units take at
+// most half of what the bound leaves after the held bytes (the engine has
+// let go of its memory by then; the other half is for the report).
+func quotedFit(memory, held int64, digests []docDigest, ids []int) bool {
+	if memory == 0 {
+		return true
+	}
+	var need int64
+	for _, i := range ids {
+		need += quotedBytes(digests[i].size, int(digests[i].units))
+	}
+	return need <= (memory-held)/2
 }
 
 // readAgain reads the files of the documents ids once more, with the
