@@ -36,6 +36,12 @@
 // folder before its first entry is handed on, so in one huge flat folder
 // the listing itself is not overlapped, only the stats.
 //
+// A worker reads a file with one buffer sized from the walk's stat, and a
+// plain UTF-8 text is that buffer (text.go), not a copy. When a ReadEach
+// digest gives the text back (sets it to ""), the worker reads its next
+// file into the same buffer (up to 1 MiB): a scan of small files then
+// allocates a few buffers, not one per file.
+//
 // Policy, in the order it is applied to each entry:
 //
 //   - Options.Skip (glob on the base name or on the displayed path): not
