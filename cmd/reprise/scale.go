@@ -29,7 +29,7 @@ const minEngineBudget = 1 << 20
 // Bytes the pipeline holds per document and per distinct unit while the
 // engine counts (see BENCHMARKS.md, "What the budget covers"): a distinct
 // unit is one 8-byte fingerprint in the engine's input; a document's fixed
-// cost is its corpus.Document (144 bytes), its digest (72 bytes), slice
+// cost is its corpus.Document (144 bytes), its digest (80 bytes), slice
 // headers and allocation rounding; its path and notes are counted by
 // their length.
 const (

@@ -13,7 +13,9 @@ import (
 	"strings"
 	"testing"
 	"time"
+	"unsafe"
 
+	"reprise/corpus"
 	"reprise/internal/brown"
 	"reprise/internal/plant"
 	"reprise/report"
@@ -364,4 +366,15 @@ func TestInterruptRemovesTheOutputTempFile(t *testing.T) {
 			}
 		})
 	}
+}
+
+// TestHeldPerDocumentCoversTheStructs: the fixed cost charged per document
+// is at least what its corpus.Document and digest take, with their two
+// slices of results (ReadEach's docs and digests) holding one each.
+func TestHeldPerDocumentCoversTheStructs(t *testing.T) {
+	structs := unsafe.Sizeof(corpus.Document{}) + unsafe.Sizeof(docDigest{})
+	if structs > heldPerDocument {
+		t.Errorf("a document's structs take %d bytes, more than heldPerDocument %d", structs, heldPerDocument)
+	}
+	t.Logf("corpus.Document %d bytes, docDigest %d bytes, charged %d", unsafe.Sizeof(corpus.Document{}), unsafe.Sizeof(docDigest{}), heldPerDocument)
 }
