@@ -22,15 +22,13 @@ import (
 // pairs. Writing is sequential; the file lives in the run's temporary
 // folder, so an interrupt removes it with the rest.
 //
-// When the documents fit in the room --memory leaves (quotedRoom), the
+// When the documents fit in the room --memory leaves (quotedFit), the
 // store holds them in memory instead, and a load gives the same text and
 // units each time: on 10^5 documents that saved writing 110 MB and
 // reading it back once per pair and per document.
 type quotedStore struct {
 	mu  sync.Mutex
-	f   *os.File // nil when the store is in memory
-	w   *bufio.Writer
-	end int64              // bytes written so far
+	f   *tempFile          // nil when the store is in memory
 	at  map[int]quotedSpot // document index -> where it is
 	buf []byte             // encoding scratch, under mu
 	mem map[int]quotedDoc  // the documents, when in memory
@@ -59,11 +57,11 @@ func newQuotedStore(dir string, inMemory bool) (*quotedStore, error) {
 	if inMemory {
 		return &quotedStore{mem: make(map[int]quotedDoc)}, nil
 	}
-	f, err := os.CreateTemp(dir, "quoted-*.bin")
+	f, err := newTempFile(dir, "quoted-*.bin", "the quoted documents")
 	if err != nil {
-		return nil, fmt.Errorf("temporary file for the quoted documents: %w", err)
+		return nil, err
 	}
-	return &quotedStore{f: f, w: bufio.NewWriterSize(f, 1<<20), at: make(map[int]quotedSpot)}, nil
+	return &quotedStore{f: f, at: make(map[int]quotedSpot)}, nil
 }
 
 // quotedBytes is what a store holds of a document of the given text bytes
@@ -109,15 +107,11 @@ func (s *quotedStore) put(id int, text string, units []shingle.Unit) error {
 	}
 	b := appendUnits(s.buf[:0], units)
 	s.buf = b
-	spot := quotedSpot{off: s.end, text: int64(len(text)), units: int64(len(units))}
-	if _, err := s.w.WriteString(text); err != nil {
-		return fmt.Errorf("writing the quoted documents: %w", err)
+	off, err := s.f.write(text, b)
+	if err != nil {
+		return err
 	}
-	if _, err := s.w.Write(b); err != nil {
-		return fmt.Errorf("writing the quoted documents: %w", err)
-	}
-	s.end += int64(len(text) + len(b))
-	s.at[id] = spot
+	s.at[id] = quotedSpot{off: off, text: int64(len(text)), units: int64(len(units))}
 	return nil
 }
 
@@ -126,10 +120,7 @@ func (s *quotedStore) done() error {
 	if s.f == nil {
 		return nil
 	}
-	if err := s.w.Flush(); err != nil {
-		return fmt.Errorf("writing the quoted documents: %w", err)
-	}
-	return nil
+	return s.f.flush()
 }
 
 // has reports whether document id was put.
@@ -157,9 +148,9 @@ func (s *quotedStore) load(id int) (string, []shingle.Unit, error) {
 	if !ok {
 		return "", nil, fmt.Errorf("not among the documents read again")
 	}
-	raw := make([]byte, spot.text+spot.units*unitBytes)
-	if _, err := s.f.ReadAt(raw, spot.off); err != nil {
-		return "", nil, fmt.Errorf("reading back the quoted documents: %w", err)
+	raw, err := s.f.read(spot.off, spot.text+spot.units*unitBytes)
+	if err != nil {
+		return "", nil, err
 	}
 	// The text is the buffer's first bytes, not a copy: the buffer is this
 	// call's own and nothing writes to it again (a report loads a
@@ -177,11 +168,7 @@ func (s *quotedStore) close() error {
 	if s.f == nil {
 		return nil
 	}
-	err := s.f.Close()
-	if rerr := os.Remove(s.f.Name()); err == nil {
-		err = rerr
-	}
-	return err
+	return s.f.remove()
 }
 
 // unitSpool keeps, in one temporary file, the units of every document as
@@ -193,18 +180,16 @@ func (s *quotedStore) close() error {
 // folder, so an interrupt removes it with the rest.
 type unitSpool struct {
 	mu  sync.Mutex
-	f   *os.File
-	w   *bufio.Writer
-	end int64 // bytes written so far
+	f   *tempFile
 	err error // the first write error, reported by done
 }
 
 func newUnitSpool(dir string) (*unitSpool, error) {
-	f, err := os.CreateTemp(dir, "units-*.bin")
+	f, err := newTempFile(dir, "units-*.bin", "the documents' units")
 	if err != nil {
-		return nil, fmt.Errorf("temporary file for the documents' units: %w", err)
+		return nil, err
 	}
-	return &unitSpool{f: f, w: bufio.NewWriterSize(f, 1<<20)}, nil
+	return &unitSpool{f: f}, nil
 }
 
 // add writes units, encoded into *scratch first (outside the lock), and
@@ -215,13 +200,10 @@ func (s *unitSpool) add(units []shingle.Unit, scratch *[]byte) int64 {
 	*scratch = b
 	s.mu.Lock()
 	defer s.mu.Unlock()
-	off := s.end
-	if s.err == nil {
-		if _, err := s.w.Write(b); err != nil {
-			s.err = fmt.Errorf("writing the documents' units: %w", err)
-		}
+	off, err := s.f.write("", b)
+	if err != nil && s.err == nil {
+		s.err = err
 	}
-	s.end += int64(len(b))
 	return off
 }
 
@@ -231,26 +213,77 @@ func (s *unitSpool) done() error {
 	if s.err != nil {
 		return s.err
 	}
-	if err := s.w.Flush(); err != nil {
-		return fmt.Errorf("writing the documents' units: %w", err)
-	}
-	return nil
+	return s.f.flush()
 }
 
 // read returns the n units written at off; it is safe for concurrent use
 // after done.
 func (s *unitSpool) read(off int64, n int) ([]shingle.Unit, error) {
-	raw := make([]byte, n*unitBytes)
-	if _, err := s.f.ReadAt(raw, off); err != nil {
-		return nil, fmt.Errorf("reading back the documents' units: %w", err)
+	raw, err := s.f.read(off, int64(n)*unitBytes)
+	if err != nil {
+		return nil, err
 	}
 	return decodeUnits(raw), nil
 }
 
 // close removes the file.
-func (s *unitSpool) close() error {
-	err := s.f.Close()
-	if rerr := os.Remove(s.f.Name()); err == nil {
+func (s *unitSpool) close() error { return s.f.remove() }
+
+// tempFile is an append-only temporary file written through a buffer and
+// read back at offsets, the storage of quotedStore and unitSpool; what
+// names its contents in errors. Writes are not safe for concurrent use
+// (its owners hold a lock); reads are, once flushed.
+type tempFile struct {
+	f    *os.File
+	w    *bufio.Writer
+	end  int64 // bytes written so far, failed writes included
+	what string
+}
+
+func newTempFile(dir, pattern, what string) (*tempFile, error) {
+	f, err := os.CreateTemp(dir, pattern)
+	if err != nil {
+		return nil, fmt.Errorf("temporary file for %s: %w", what, err)
+	}
+	return &tempFile{f: f, w: bufio.NewWriterSize(f, 1<<20), what: what}, nil
+}
+
+// write appends text, then b, and returns where they start. After an
+// error the offsets go on as if both had been written; the owner reports
+// the error.
+func (t *tempFile) write(text string, b []byte) (int64, error) {
+	off := t.end
+	t.end += int64(len(text) + len(b))
+	if _, err := t.w.WriteString(text); err != nil {
+		return off, fmt.Errorf("writing %s: %w", t.what, err)
+	}
+	if _, err := t.w.Write(b); err != nil {
+		return off, fmt.Errorf("writing %s: %w", t.what, err)
+	}
+	return off, nil
+}
+
+// flush ends the writing.
+func (t *tempFile) flush() error {
+	if err := t.w.Flush(); err != nil {
+		return fmt.Errorf("writing %s: %w", t.what, err)
+	}
+	return nil
+}
+
+// read returns the n bytes at off, in a buffer of the caller's own.
+func (t *tempFile) read(off, n int64) ([]byte, error) {
+	raw := make([]byte, n)
+	if _, err := t.f.ReadAt(raw, off); err != nil {
+		return nil, fmt.Errorf("reading back %s: %w", t.what, err)
+	}
+	return raw, nil
+}
+
+// remove closes and removes the file.
+func (t *tempFile) remove() error {
+	err := t.f.Close()
+	if rerr := os.Remove(t.f.Name()); err == nil {
 		err = rerr
 	}
 	return err

@@ -134,7 +134,7 @@ func TestUnitSpoolReportsAWriteError(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer spool.close()
-	spool.f.Close() // every write from here on fails
+	spool.f.f.Close() // every write from here on fails
 	_, units := someUnits(t, 1)
 	var scratch []byte
 	for range 1 + (1<<20)/(unitBytes*len(units)) { // past the write buffer
