@@ -17,6 +17,7 @@ var (
 const (
 	defaultMinShared          = 3
 	defaultMaxGroupCandidates = 200000
+	defaultNearCopy           = 0.9
 )
 
 // DefaultMaxDocs is the common-text cap used when Options.MaxDocs is 0: a
@@ -40,6 +41,8 @@ func DefaultMaxDocs(n int) int {
 type config struct {
 	s         int
 	maxDocs   int
+	auto      bool    // maxDocs is the automatic cap: the mostly-common rule applies
+	nearCopy  float64 // Options.NearCopy
 	maxCand   int
 	counter   CounterKind
 	documents int
@@ -73,6 +76,14 @@ func resolve(in Input, opt Options) (config, error) {
 	}
 	if c.maxDocs == 0 {
 		c.maxDocs = DefaultMaxDocs(len(in.Docs))
+		c.auto = true
+	}
+	c.nearCopy = opt.NearCopy
+	if c.nearCopy == 0 {
+		c.nearCopy = defaultNearCopy
+	}
+	if !(c.nearCopy > 0 && c.nearCopy <= 1) {
+		return c, fmt.Errorf("pairs: NearCopy %v outside (0, 1]: %w", opt.NearCopy, ErrOption)
 	}
 	if c.maxDocs < 1 {
 		return c, fmt.Errorf("pairs: MaxDocs %d < 1: %w", opt.MaxDocs, ErrOption)
@@ -133,12 +144,20 @@ func Count(in Input, opt Options) (*Result, error) {
 		if err := countSpilled(in, cfg, res); err != nil {
 			return nil, err
 		}
-		return res, nil
+	} else if err := countInMemory(in, cfg, res, entries); err != nil {
+		return nil, err
 	}
+	res.NearCopies = nearCopies(in, res, cfg.nearCopy)
+	return res, nil
+}
 
+// countInMemory is Count's path when the entries fit the budget.
+func countInMemory(in Input, cfg config, res *Result, entries int64) error {
 	// Step 1: baskets.
 	ents := gather(in.Docs, cfg.jobs)
-	bk, common, hits := formBaskets(ents, in.Excluded, cfg.maxDocs)
+	var mostly []bool
+	res.CommonShares, mostly = commonShares(frequentPerDoc(ents, in.Excluded, cfg.maxDocs, cfg.documents), in.Docs, cfg.auto)
+	bk, common, hits := formBaskets(ents, in.Excluded, cfg.maxDocs, mostly)
 	res.Common = common
 	res.Stats.ExcludedHits = hits
 	res.Stats.Baskets = bk.len()
@@ -166,7 +185,7 @@ func Count(in Input, opt Options) (*Result, error) {
 		res.Spill.Ranges = 1
 	} else {
 		if kind == CounterTriangular && possiblePairs(m) > maxTriangularCells {
-			return nil, fmt.Errorf("pairs: triangular counter for %d documents needs %d cells, more than %d: %w", m, possiblePairs(m), maxTriangularCells, ErrOption)
+			return fmt.Errorf("pairs: triangular counter for %d documents needs %d cells, more than %d: %w", m, possiblePairs(m), maxTriangularCells, ErrOption)
 		}
 		src := memoryRows{&bk}
 		var weights []int64
@@ -180,10 +199,10 @@ func Count(in Input, opt Options) (*Result, error) {
 		}
 	}
 	if err2 != nil {
-		return nil, err2
+		return err2
 	}
 	finish(res, &bk, m, orig, found, cfg)
-	return res, nil
+	return nil
 }
 
 // chooseKind resolves CounterAuto by the one-third rule, falling back to
@@ -268,8 +287,10 @@ func (b *baskets) row(i int) []uint32 { return b.docs[b.start[i]:b.start[i+1]] }
 // excluded is skipped and counted in hits (whatever its size: exclusion
 // comes first, so an excluded unit is never listed as common either); a run
 // of one document is dropped; a run of more than maxDocs documents is common
-// text and listed; every other run becomes a basket.
-func formBaskets(ents []entry, excluded []uint64, maxDocs int) (b baskets, common []CommonUnit, hits int) {
+// text: its mostly-common documents (mostly[d], nil for none) still form a
+// basket, and it is listed unless they are all of its holders; every other
+// run becomes a basket.
+func formBaskets(ents []entry, excluded []uint64, maxDocs int, mostly []bool) (b baskets, common []CommonUnit, hits int) {
 	b.start = append(b.start, 0)
 	xi := 0
 	for i := 0; i < len(ents); {
@@ -287,7 +308,25 @@ func formBaskets(ents []entry, excluded []uint64, maxDocs int) (b baskets, commo
 			hits++
 		case d < 2:
 		case d > maxDocs:
-			common = append(common, CommonUnit{Hash: fp, Docs: uint32(d), First: ents[i].doc})
+			kept := 0
+			if mostly != nil {
+				for _, e := range ents[i:j] {
+					if mostly[e.doc] {
+						b.docs = append(b.docs, e.doc)
+						kept++
+					}
+				}
+				switch {
+				case kept >= 2:
+					b.fps = append(b.fps, fp)
+					b.start = append(b.start, len(b.docs))
+				default:
+					b.docs = b.docs[:len(b.docs)-kept]
+				}
+			}
+			if kept < d {
+				common = append(common, CommonUnit{Hash: fp, Docs: uint32(d), First: ents[i].doc, Kept: uint32(kept)})
+			}
 		default:
 			b.fps = append(b.fps, fp)
 			for _, e := range ents[i:j] {

@@ -58,6 +58,44 @@
 //     (union-find, near O(pairs)), each ascending, ordered by their smallest
 //     member.
 //
+// # Common text and near-copies
+//
+// The common-text cap exists for text that is a small part of each
+// document holding it: a prompt, a disclaimer, a header, a license footer.
+// Applied blindly it also sets aside text that makes up most of the
+// documents holding it: a folder that is mostly copies of one essay would
+// have every sentence over the cap and come out clean, the worst answer a
+// near-duplicate finder can give. So, under the automatic cap only
+// (Options.MaxDocs 0), a document more than half of whose distinct units
+// are each in more than MaxDocs documents is mostly common text
+// (CommonShare.Mostly), and common units still count in such documents:
+// the basket of a common unit keeps its mostly-common holders and drops
+// the others. A prompt pasted into twenty essays is still set aside in
+// them; the eleven copies of one essay still pair on every sentence,
+// prompt included. The rule is judged per document, in units (sentences
+// or shingles, which track words closely), with one pass over the entries
+// to count each document's common units before baskets form (in the
+// spilling path the common runs go to a side file that is read once more
+// when there are any). An explicit MaxDocs, and templates in
+// Input.Excluded, keep their meaning for every document.
+//
+// What it costs: a kept common unit in k documents costs C(k, 2)
+// increments, which the automatic cap no longer bounds; the counting still
+// keeps to MemoryBudget (pair ranges), and 1,000 copies of one text are
+// about 500,000 pairs. Whole-document grouping before counting (count a
+// unit once per group of nearly equal documents, as in Broder's
+// resemblance) was the alternative; it needs an approximate sketch to find
+// the groups and makes the engine's pair counts depend on it, while this
+// rule keeps every count exact.
+//
+// Near-copies (Result.NearCopies) are the connected components of the
+// pairs in which each document holds at least Options.NearCopy (0.9) of
+// the other's counted units, so that a caller can show them as one set
+// and need not align all C(k, 2) of their pairs: each member's shared
+// units with one representative (the member sharing the most with its
+// near-copies) are counted directly by a merge of the two fingerprint
+// lists, linear in their units.
+//
 // # Why pruning is exact
 //
 // Removing document x from the baskets changes no basket's membership for

@@ -9,8 +9,16 @@ type Options struct {
 	// share to be reported (0 means 3).
 	MinShared int
 	// MaxDocs: a unit found in more documents than this is common text and
-	// pairs nothing; it is returned in Result.Common (0 means DefaultMaxDocs(n)).
+	// pairs nothing; it is returned in Result.Common. 0 means the automatic
+	// cap, DefaultMaxDocs(n), with the mostly-common rule: in a document
+	// whose units are mostly common text, common units still count (see
+	// "Common text and near-copies" in the package documentation). An
+	// explicit MaxDocs applies to every document alike.
 	MaxDocs int
+	// NearCopy is the containment, both ways, above which two documents
+	// of a pair are near-copies (0 means 0.9; at most 1): each holds at
+	// least this share of the other's counted units.
+	NearCopy float64
 	// MaxGroupCandidates bounds the candidate sets examined while growing
 	// groups; when reached, growth stops and Result.GroupsTruncated is set
 	// (0 means 200000).
@@ -77,11 +85,38 @@ type Group struct {
 }
 
 // A CommonUnit is a unit found in more than MaxDocs documents: common text,
-// set aside and reported, never silently hidden.
+// set aside and reported, never silently hidden. Under the automatic cap it
+// still counts in the documents that are mostly common text (Kept of them);
+// a unit that counts in all its holders is not common and not listed.
 type CommonUnit struct {
 	Hash  uint64
 	Docs  uint32 // documents containing it
 	First uint32 // the lowest document ID containing it (to quote its text)
+	Kept  uint32 // holders in which it still counts (mostly-common documents)
+}
+
+// A CommonShare says how much of one document is common text: Common of
+// its distinct units are each in more than MaxDocs documents. Mostly is
+// set when that is more than half of its units; the common units then still
+// count in it (automatic cap only).
+type CommonShare struct {
+	Doc    uint32
+	Common uint32
+	Units  uint32 // the document's distinct units
+	Mostly bool
+}
+
+// A NearCopies is a set of two or more documents that are near-copies of
+// each other: connected by pairs whose documents each hold at least
+// Options.NearCopy of the other's counted units. Every slice is parallel to
+// Docs. Counted units are a document's distinct units less those excluded
+// and those set aside as common text in it.
+type NearCopies struct {
+	Docs           []uint32 // ascending
+	Representative uint32   // the member sharing the most with the other near-copies
+	Shared         []uint32 // counted units each member shares with the representative
+	Units          []uint32 // each member's counted units
+	Pairs          int      // the engine's pairs with both documents in the set
 }
 
 // Stats count the engine's work, for the report's summary.
@@ -98,13 +133,19 @@ type Stats struct {
 
 // Result is the engine's output. Every slice is in a deterministic order.
 type Result struct {
-	Pairs           []Pair       // sorted by (A, B)
-	Groups          []Group      // by size desc, Shared desc, then Docs
-	Clusters        [][]uint32   // connected components of Pairs, each sorted; ordered by first member
-	Common          []CommonUnit // by Docs desc, then Hash
-	MaxDocs         int          // the effective common-text cap
-	MinShared       int          // the effective support threshold
-	Counter         CounterKind  // the structure that counted
+	Pairs    []Pair       // sorted by (A, B)
+	Groups   []Group      // by size desc, Shared desc, then Docs
+	Clusters [][]uint32   // connected components of Pairs, each sorted; ordered by first member
+	Common   []CommonUnit // by Docs desc, then Hash
+	// CommonShares lists, by document, the documents holding common
+	// units (ascending Doc); nil when there are none.
+	CommonShares []CommonShare
+	// NearCopies are the sets of near-copies among the pairs, ordered by
+	// size descending, then first member.
+	NearCopies      []NearCopies
+	MaxDocs         int         // the effective common-text cap
+	MinShared       int         // the effective support threshold
+	Counter         CounterKind // the structure that counted
 	GroupsTruncated bool
 	Stats           Stats
 	// Spill describes how the work was split; unlike everything else in

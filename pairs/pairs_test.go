@@ -544,3 +544,80 @@ func TestClustersOfKeptPairsFollowTheResultRule(t *testing.T) {
 		}
 	}
 }
+
+// TestMostlyCommonDocumentsStillCount checks the automatic cap's rule: a
+// unit in more than half of the documents is set aside only in documents
+// where it is a small part; documents that are mostly such units are
+// copies of one text and still pair on it.
+func TestMostlyCommonDocumentsStillCount(t *testing.T) {
+	// 11 copies of one 30-unit text (copy 10 lacks its first unit, as a
+	// format that drops a title would) and one unrelated document.
+	docs := make([][]uint64, 12)
+	for d := range 11 {
+		for u := uint64(1); u <= 30; u++ {
+			if d == 10 && u == 1 {
+				continue
+			}
+			docs[d] = append(docs[d], u)
+		}
+	}
+	docs[11] = []uint64{100, 101, 102}
+	got, err := Count(Input{Docs: docs}, Options{MinShared: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Run("every pair of copies is reported", func(t *testing.T) {
+		if len(got.Pairs) != 55 {
+			t.Fatalf("%d pairs, want 55", len(got.Pairs))
+		}
+		for _, p := range got.Pairs {
+			if p.B == 11 {
+				t.Fatalf("the unrelated document is in pair %v", p)
+			}
+		}
+	})
+	t.Run("nothing is listed as common text", func(t *testing.T) {
+		if len(got.Common) != 0 {
+			t.Fatalf("common = %v", got.Common)
+		}
+	})
+	t.Run("the copies are one set of near-copies", func(t *testing.T) {
+		if len(got.NearCopies) != 1 || len(got.NearCopies[0].Docs) != 11 || got.NearCopies[0].Pairs != 55 {
+			t.Fatalf("near-copies = %+v", got.NearCopies)
+		}
+		nc := got.NearCopies[0]
+		// Copy 10 shares 29 units with the others and so has the least affinity;
+		// the representative is the lowest ID among the equal rest.
+		if nc.Representative != 0 || nc.Shared[10] != 29 || nc.Units[10] != 29 || nc.Shared[0] != 30 {
+			t.Fatalf("near-copies = %+v", nc)
+		}
+	})
+	t.Run("an explicit cap applies to every document", func(t *testing.T) {
+		got, err := Count(Input{Docs: docs}, Options{MinShared: 2, MaxDocs: 6})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(got.Pairs) != 0 || len(got.Common) != 30 {
+			t.Fatalf("%d pairs and %d common units, want 0 and 30", len(got.Pairs), len(got.Common))
+		}
+	})
+	t.Run("a prompt pasted into copies and essays counts only in the copies", func(t *testing.T) {
+		// Documents 0-10 as above plus, for 5 more essays of their own,
+		// unit 1 (the first unit of the copied text) as a pasted line.
+		more := slices.Clone(docs)
+		for e := range 5 {
+			more = append(more, []uint64{1, 1000 + 10*uint64(e), 1001 + 10*uint64(e), 1002 + 10*uint64(e)})
+		}
+		got, err := Count(Input{Docs: more}, Options{MinShared: 2})
+		if err != nil {
+			t.Fatal(err)
+		}
+		// 17 documents: cap 8; unit 1 is in 15 of them and counts in
+		// the 10 copies that hold it, not in the essays (1 unit of 4);
+		// the essays pair with nothing.
+		want := []CommonUnit{{Hash: 1, Docs: 15, First: 0, Kept: 10}}
+		if !slices.Equal(got.Common, want) || len(got.Pairs) != 55 {
+			t.Fatalf("common %v and %d pairs, want %v and 55", got.Common, len(got.Pairs), want)
+		}
+	})
+}

@@ -1,6 +1,7 @@
 package pairs
 
 import (
+	"cmp"
 	"flag"
 	"os"
 	"slices"
@@ -30,6 +31,9 @@ type oracleResult struct {
 	groups   []Group
 	clusters [][]uint32
 	common   []CommonUnit
+	shares   []CommonShare
+	counted  []uint32 // each document's counted units
+	support  func(members []uint32) int
 	hits     int
 	baskets  int
 	inBasket int // documents in at least one counted unit
@@ -38,8 +42,11 @@ type oracleResult struct {
 // oracle compares every pair and every subset of three or more documents
 // directly: after setting aside excluded units and units in more than
 // maxDocs documents, the support of a set of documents is the number of
-// units all of them contain. It does no pruning and no counting structure.
-func oracle(docs [][]uint64, excluded []uint64, s, maxDocs int) oracleResult {
+// units all of them contain. Under the automatic cap (auto), a document
+// more than half of whose distinct units are in more than maxDocs
+// documents is mostly common text, and those units still count in it. It
+// does no pruning and no counting structure.
+func oracle(docs [][]uint64, excluded []uint64, s, maxDocs int, auto bool) oracleResult {
 	var r oracleResult
 	holders := map[uint64][]uint32{}
 	for d, fps := range docs {
@@ -47,18 +54,51 @@ func oracle(docs [][]uint64, excluded []uint64, s, maxDocs int) oracleResult {
 			holders[fp] = append(holders[fp], uint32(d))
 		}
 	}
-	counted := map[uint64]bool{}
+	isFrequent := func(fp uint64) bool { return !slices.Contains(excluded, fp) && len(holders[fp]) > maxDocs }
+	mostly := make([]bool, len(docs))
+	for d, fps := range docs {
+		f := 0
+		for _, fp := range fps {
+			if isFrequent(fp) {
+				f++
+			}
+		}
+		if f > 0 {
+			r.shares = append(r.shares, CommonShare{Doc: uint32(d), Common: uint32(f), Units: uint32(len(fps)), Mostly: auto && 2*f > len(fps)})
+		}
+		mostly[d] = auto && 2*f > len(fps)
+	}
+	// countsIn says whether unit fp counts in document d.
+	countsIn := map[uint64]map[uint32]bool{}
 	for fp, ds := range holders {
 		switch {
 		case slices.Contains(excluded, fp):
 			r.hits++
 		case len(ds) > maxDocs:
-			r.common = append(r.common, CommonUnit{Hash: fp, Docs: uint32(len(ds)), First: slices.Min(ds)})
+			var kept []uint32
+			for _, d := range ds {
+				if mostly[d] {
+					kept = append(kept, d)
+				}
+			}
+			if len(kept) < len(ds) {
+				r.common = append(r.common, CommonUnit{Hash: fp, Docs: uint32(len(ds)), First: slices.Min(ds), Kept: uint32(len(kept))})
+			}
+			if len(kept) >= 2 {
+				r.baskets++
+				countsIn[fp] = map[uint32]bool{}
+				for _, d := range kept {
+					countsIn[fp][d] = true
+				}
+			}
 		case len(ds) >= 2:
-			counted[fp] = true
+			r.baskets++
+			countsIn[fp] = map[uint32]bool{}
+			for _, d := range ds {
+				countsIn[fp][d] = true
+			}
 		}
 	}
-	r.baskets = len(counted)
 	slices.SortFunc(r.common, func(x, y CommonUnit) int {
 		if x.Docs != y.Docs {
 			return int(y.Docs) - int(x.Docs)
@@ -69,11 +109,15 @@ func oracle(docs [][]uint64, excluded []uint64, s, maxDocs int) oracleResult {
 		return 1
 	})
 	sets := make([]map[uint64]bool, len(docs))
+	r.counted = make([]uint32, len(docs))
 	for d, fps := range docs {
 		sets[d] = map[uint64]bool{}
 		for _, fp := range fps {
-			if counted[fp] {
+			if countsIn[fp][uint32(d)] {
 				sets[d][fp] = true
+			}
+			if !slices.Contains(excluded, fp) && (!isFrequent(fp) || mostly[d]) {
+				r.counted[d]++
 			}
 		}
 		if len(sets[d]) > 0 {
@@ -93,6 +137,7 @@ func oracle(docs [][]uint64, excluded []uint64, s, maxDocs int) oracleResult {
 		}
 		return n
 	}
+	r.support = support
 	n := len(docs)
 	for a := 0; a < n; a++ {
 		for b := a + 1; b < n; b++ {
@@ -235,7 +280,9 @@ func checkAgainstOracle(t *rapid.T) {
 	if maxDocs == 0 {
 		maxDocs = DefaultMaxDocs(n)
 	}
-	want := oracle(docs, excluded, s, maxDocs)
+	want := oracle(docs, excluded, s, maxDocs, opt.MaxDocs == 0)
+	opt.NearCopy = rapid.SampledFrom([]float64{0, 0.5, 1}).Draw(t, "NearCopy")
+	wantNear := oracleNearCopies(want, cmp.Or(opt.NearCopy, 0.9))
 
 	var first *Result
 	for _, kind := range []CounterKind{CounterAuto, CounterTriangular, CounterSparse} {
@@ -258,6 +305,12 @@ func checkAgainstOracle(t *rapid.T) {
 		}
 		if !slices.Equal(got.Common, want.common) {
 			t.Fatalf("%v: common\n got %v\nwant %v", kind, got.Common, want.common)
+		}
+		if !slices.Equal(got.CommonShares, want.shares) {
+			t.Fatalf("%v: common shares\n got %v\nwant %v", kind, got.CommonShares, want.shares)
+		}
+		if !nearCopiesEqual(got.NearCopies, wantNear) {
+			t.Fatalf("%v: near-copies\n got %+v\nwant %+v", kind, got.NearCopies, wantNear)
 		}
 		if got.Stats.ExcludedHits != want.hits || got.Stats.Baskets != want.baskets {
 			t.Fatalf("%v: excluded hits %d baskets %d, want %d and %d", kind, got.Stats.ExcludedHits, got.Stats.Baskets, want.hits, want.baskets)
@@ -300,4 +353,74 @@ func checkAgainstOracle(t *rapid.T) {
 			t.Fatalf("%v: stats %+v differ from %+v", kind, got.Stats, first.Stats)
 		}
 	}
+}
+
+// oracleNearCopies finds the near-copy sets of the oracle's pairs by
+// definition: components of the pairs whose shared units reach threshold
+// times the larger of the two documents' counted units, each with the
+// member of largest summed shared units (lowest first) as representative.
+func oracleNearCopies(r oracleResult, threshold float64) []NearCopies {
+	n := len(r.counted)
+	adj := make([][]uint32, n)
+	affinity := make([]int, n)
+	for _, p := range r.pairs {
+		if float64(p.Shared) >= threshold*float64(max(r.counted[p.A], r.counted[p.B])) {
+			adj[p.A] = append(adj[p.A], p.B)
+			adj[p.B] = append(adj[p.B], p.A)
+			affinity[p.A] += int(p.Shared)
+			affinity[p.B] += int(p.Shared)
+		}
+	}
+	seen := make([]bool, n)
+	var out []NearCopies
+	for d := range n {
+		if seen[d] || len(adj[d]) == 0 {
+			continue
+		}
+		stack, comp := []uint32{uint32(d)}, []uint32{}
+		seen[d] = true
+		for len(stack) > 0 {
+			x := stack[len(stack)-1]
+			stack = stack[:len(stack)-1]
+			comp = append(comp, x)
+			for _, y := range adj[x] {
+				if !seen[y] {
+					seen[y] = true
+					stack = append(stack, y)
+				}
+			}
+		}
+		slices.Sort(comp)
+		nc := NearCopies{Docs: comp, Representative: comp[0]}
+		for _, x := range comp {
+			if affinity[x] > affinity[nc.Representative] {
+				nc.Representative = x
+			}
+		}
+		for _, x := range comp {
+			nc.Units = append(nc.Units, r.counted[x])
+			if x == nc.Representative {
+				nc.Shared = append(nc.Shared, r.counted[x])
+			} else {
+				nc.Shared = append(nc.Shared, uint32(r.support([]uint32{nc.Representative, x})))
+			}
+		}
+		for _, p := range r.pairs {
+			if slices.Contains(comp, p.A) && slices.Contains(comp, p.B) {
+				nc.Pairs++
+			}
+		}
+		out = append(out, nc)
+	}
+	slices.SortFunc(out, func(x, y NearCopies) int {
+		return cmp.Or(cmp.Compare(len(y.Docs), len(x.Docs)), cmp.Compare(x.Docs[0], y.Docs[0]))
+	})
+	return out
+}
+
+func nearCopiesEqual(x, y []NearCopies) bool {
+	return slices.EqualFunc(x, y, func(a, b NearCopies) bool {
+		return slices.Equal(a.Docs, b.Docs) && a.Representative == b.Representative &&
+			slices.Equal(a.Shared, b.Shared) && slices.Equal(a.Units, b.Units) && a.Pairs == b.Pairs
+	})
 }

@@ -106,7 +106,7 @@ func countSpilled(in Input, cfg config, res *Result) error {
 	}
 	deg := make([]uint32, cfg.documents)
 	basketPath := filepath.Join(dir, "baskets")
-	common, hits, nb, err := sp.formBaskets(runs, basketPath, in.Excluded, cfg.maxDocs, deg)
+	common, hits, nb, err := sp.formBaskets(runs, basketPath, in.Excluded, cfg, deg, res, in.Docs)
 	if err != nil {
 		return err
 	}
@@ -361,15 +361,32 @@ func (sp *spiller) merge(paths []string, emit func(entry) error) error {
 // count.go for the rules, applied in the same order) to path, counting
 // every document's baskets in deg. It returns the common units, sorted,
 // the excluded hits and the number of baskets.
-func (sp *spiller) formBaskets(runs []string, path string, excluded []uint64, maxDocs int, deg []uint32) ([]CommonUnit, int, int, error) {
+//
+// The documents of a common run are counted in every document's number of
+// common units, and written to a side file (varint deltas plus one, ended
+// by a zero), so that, once the merge has found which documents are mostly
+// common text, the rows of those documents can be added to the basket file
+// (automatic cap only: the common runs cost one more sequential read, and
+// nothing when there are none).
+func (sp *spiller) formBaskets(runs []string, path string, excluded []uint64, cfg config, deg []uint32, res *Result, all [][]uint64) ([]CommonUnit, int, int, error) {
+	maxDocs := cfg.maxDocs
 	f, err := os.Create(path)
 	if err != nil {
 		return nil, 0, 0, fmt.Errorf("pairs: %w: %w", errTemp, err)
 	}
 	defer f.Close()
 	w := bufio.NewWriterSize(f, sp.cfg.bufSize)
+	sidePath := path + "-common"
+	var side *bufio.Writer
+	var sideFile *os.File
+	defer func() {
+		if sideFile != nil {
+			sideFile.Close()
+		}
+	}()
 	var (
 		common []CommonUnit
+		freq   []uint32 // common units of each document
 		hits   int
 		nb     int
 		xi     int
@@ -378,7 +395,37 @@ func (sp *spiller) formBaskets(runs []string, path string, excluded []uint64, ma
 		size   int
 		docs   []uint32 // the current run of one fingerprint, up to maxDocs+1
 		vbuf   []byte
+		prevW  uint32 // last document written to the side file
 	)
+	sideWrite := func(d uint32) error {
+		if freq == nil {
+			freq = make([]uint32, len(deg))
+		}
+		freq[d]++
+		vbuf = binary.AppendUvarint(vbuf[:0], uint64(d-prevW)+1)
+		prevW = d
+		sp.written += int64(len(vbuf))
+		_, err := side.Write(vbuf)
+		return err
+	}
+	// openCommon starts the side row of a run that has just grown past
+	// maxDocs, with the documents seen so far.
+	openCommon := func() error {
+		if side == nil {
+			var err error
+			if sideFile, err = os.Create(sidePath); err != nil {
+				return err
+			}
+			side = bufio.NewWriterSize(sideFile, sp.cfg.bufSize)
+		}
+		prevW = 0
+		for _, d := range docs {
+			if err := sideWrite(d); err != nil {
+				return err
+			}
+		}
+		return nil
+	}
 	closeRun := func() error {
 		if size == 0 {
 			return nil
@@ -392,6 +439,8 @@ func (sp *spiller) formBaskets(runs []string, path string, excluded []uint64, ma
 		case size < 2:
 		case size > maxDocs:
 			common = append(common, CommonUnit{Hash: fp, Docs: uint32(size), First: first})
+			sp.written++
+			return side.WriteByte(0)
 		default:
 			nb++
 			vbuf = binary.AppendUvarint(vbuf[:0], uint64(len(docs)))
@@ -408,11 +457,21 @@ func (sp *spiller) formBaskets(runs []string, path string, excluded []uint64, ma
 		}
 		return nil
 	}
+	isExcluded := func(fp uint64) bool {
+		_, ok := slices.BinarySearch(excluded, fp)
+		return ok
+	}
 	err = sp.merge(runs, func(e entry) error {
 		if size > 0 && e.fp == fp {
 			size++
-			if len(docs) <= maxDocs {
+			switch {
+			case size <= maxDocs+1:
 				docs = append(docs, e.doc)
+				if size == maxDocs+1 && !isExcluded(fp) {
+					return openCommon()
+				}
+			case !isExcluded(fp):
+				return sideWrite(e.doc)
 			}
 			return nil
 		}
@@ -425,6 +484,18 @@ func (sp *spiller) formBaskets(runs []string, path string, excluded []uint64, ma
 	if err == nil {
 		err = closeRun()
 	}
+	if err == nil && side != nil {
+		err = side.Flush()
+	}
+	if err == nil {
+		var mostly []bool
+		res.CommonShares, mostly = commonShares(freq, all, cfg.auto)
+		if mostly != nil {
+			var added int
+			added, err = sp.addMostlyCommon(sidePath, w, common, mostly, deg)
+			nb += added
+		}
+	}
 	if err == nil {
 		err = w.Flush()
 	}
@@ -434,8 +505,63 @@ func (sp *spiller) formBaskets(runs []string, path string, excluded []uint64, ma
 	if err != nil {
 		return nil, 0, 0, fmt.Errorf("pairs: %w: %s: %w", errTemp, path, err)
 	}
+	common = slices.DeleteFunc(common, func(c CommonUnit) bool { return c.Kept == c.Docs })
+	if len(common) == 0 {
+		common = nil // as the in-memory path gives it
+	}
 	sortCommon(common)
 	return common, hits, nb, nil
+}
+
+// addMostlyCommon reads the side file of common runs (in the order of
+// common) and writes, for each, the row of its mostly-common documents to
+// w as a basket when there are two or more, setting each unit's Kept. It
+// returns the baskets added.
+func (sp *spiller) addMostlyCommon(sidePath string, w *bufio.Writer, common []CommonUnit, mostly []bool, deg []uint32) (int, error) {
+	sf, err := os.Open(sidePath)
+	if err != nil {
+		return 0, err
+	}
+	defer sf.Close()
+	r := bufio.NewReaderSize(sf, sp.cfg.bufSize)
+	var kept []uint32
+	var vbuf []byte
+	added := 0
+	for k := range common {
+		kept = kept[:0]
+		prev := uint32(0)
+		for {
+			v, err := binary.ReadUvarint(r)
+			if err != nil {
+				return added, fmt.Errorf("side file: %w", err)
+			}
+			if v == 0 {
+				break
+			}
+			d := prev + uint32(v-1)
+			prev = d
+			if mostly[d] {
+				kept = append(kept, d)
+			}
+		}
+		common[k].Kept = uint32(len(kept))
+		if len(kept) < 2 {
+			continue
+		}
+		added++
+		vbuf = binary.AppendUvarint(vbuf[:0], uint64(len(kept)))
+		prev = 0
+		for _, d := range kept {
+			vbuf = binary.AppendUvarint(vbuf, uint64(d-prev))
+			prev = d
+			deg[d]++
+		}
+		sp.written += int64(len(vbuf))
+		if _, err := w.Write(vbuf); err != nil {
+			return added, err
+		}
+	}
+	return added, nil
 }
 
 // basketFile reads the basket file of step 1. With rank set it serves
