@@ -155,8 +155,22 @@ type page struct {
 	Docs       []docRow
 	Quiet      int // documents in no reported pair
 	Noted      []Document
+	Near       []nearView
+	NearLine   string // the summary's line on near-copies
 	Hist       histogram
 	Net        network
+}
+
+// htmlMaxNearCopies is the number of members of one set of near-copies the
+// page lists; the JSON report lists them all.
+const htmlMaxNearCopies = 50
+
+// nearView is one set of near-copies as the page lists it.
+type nearView struct {
+	N     int
+	Set   *NearCopySet
+	Shown []NearCopy
+	More  int
 }
 
 type pairRow struct {
@@ -227,6 +241,14 @@ func buildPage(r *Result, opt HTMLOptions) *page {
 		Noted:    notedDocuments(r),
 	}
 	p.Undetailed = len(r.Pairs) - p.Detailed
+	for k := range r.NearCopies {
+		set := &r.NearCopies[k]
+		shown := set.Documents[:min(len(set.Documents), htmlMaxNearCopies)]
+		p.Near = append(p.Near, nearView{N: k + 1, Set: set, Shown: shown, More: len(set.Documents) - len(shown)})
+	}
+	if r.Summary.NearCopyDocuments > 0 {
+		p.NearLine = nearCopySummary(r.Summary)
+	}
 	p.Title = "reprise: " + plural(r.Summary.Pairs, "pair", "pairs") + " among " + plural(r.Summary.Documents, "document")
 	p.Rows = make([]pairRow, len(r.Pairs))
 	for i := range r.Pairs {
@@ -548,6 +570,9 @@ func HTMLSizeBound(r *Result, opt HTMLOptions) int64 {
 	}
 	for _, c := range r.Clusters {
 		n += int64(len(c.Documents)) * (L + 16)
+	}
+	for _, set := range r.NearCopies {
+		n += boundListItem + 2*L + int64(min(len(set.Documents), htmlMaxNearCopies))*(boundListItem+L)
 	}
 	return n
 }

@@ -53,7 +53,7 @@ func WriteJSON(w io.Writer, r *Result) error {
 
 // WriteNDJSON writes one JSON object per line, each with a "type" field:
 // first a "report" line (format, caution, settings, summary), then every
-// document, skipped input, common unit, pair, group and cluster, in the order
+// set of near-copies ("near_copies"), document, skipped input, common unit, pair, group and cluster, in the order
 // and with the fields of the JSON contract. Each line holds the bytes
 // json.Marshal gives for its record, with "type" first. Nothing is written if
 // a record cannot be encoded.
@@ -77,6 +77,18 @@ func WriteNDJSON(w io.Writer, r *Result) error {
 	e := newJSONEncoder(w, false)
 	e.buf = append(e.buf, head...)
 	e.buf = append(e.buf, '\n')
+	for i := range r.NearCopies {
+		line, err := json.Marshal(struct {
+			Type string `json:"type"`
+			NearCopySet
+		}{"near_copies", r.NearCopies[i]})
+		if err != nil {
+			return fmt.Errorf("report: ndjson: %w", err)
+		}
+		e.buf = append(e.buf, line...)
+		e.buf = append(e.buf, '\n')
+		e.maybeFlush()
+	}
 	for i := range r.Documents {
 		typedLine(e, "document", &r.Documents[i], (*jsonEncoder).documentFields)
 	}
@@ -107,8 +119,11 @@ func WriteNDJSON(w io.Writer, r *Result) error {
 var csvHeader = []string{"record", "rank", "score", "coverage_a", "coverage_b", "jaccard", "shared",
 	"passages", "longest_words", "a", "b", "detail"}
 
-// WriteCSV writes one row per pair (record "pair", ranked), then one per
-// group, common unit and skipped input, and a final "caution" row.
+// WriteCSV writes one row per member of each set of near-copies (record
+// "near_copy": rank is the set's number, jaccard the member's resemblance
+// to the representative, b the representative), then one per pair (record
+// "pair", ranked), then one per group, common unit and skipped input, and a
+// final "caution" row.
 //
 // Cells of text that a spreadsheet would run as a formula (starting with
 // = + - @, tab or CR) get a leading apostrophe: file names and document text
@@ -117,6 +132,13 @@ func WriteCSV(w io.Writer, r *Result) error {
 	cw := csv.NewWriter(w)
 	num := func(f float64) string { return strconv.FormatFloat(f, 'f', -1, 64) }
 	rows := [][]string{csvHeader}
+	for k, set := range r.NearCopies {
+		for _, m := range set.Documents {
+			rows = append(rows, []string{"near_copy", strconv.Itoa(k + 1), "", "", "", num(m.Resemblance), strconv.Itoa(m.Shared),
+				"", "", safeCell(m.Path), safeCell(set.Representative),
+				safeCell(fmt.Sprintf("set %d of %d documents, %d of its %d pairs listed; differs most: %s", k+1, len(set.Documents), set.PairsListed, set.Pairs, set.DiffersMost))})
+		}
+	}
 	for i := range r.Pairs {
 		p := &r.Pairs[i]
 		rows = append(rows, []string{"pair", strconv.Itoa(i + 1), num(p.Score), num(p.CoverageA), num(p.CoverageB),
@@ -171,14 +193,49 @@ func WriteText(w io.Writer, r *Result, opt TextOptions) error {
 			plural(s.Templates, "template document"), s.TemplateUnits, r.Settings.Unit)
 	}
 	if s.CommonUnits > 0 {
-		t.linef("%s set aside (listed below).", plural(s.CommonUnits, "common "+r.Settings.Unit))
+		t.linef("%s set aside (listed below): %s of the words read.", plural(s.CommonUnits, "common "+r.Settings.Unit), percent(s.CommonShare))
+	}
+	if s.NearCopyDocuments > 0 {
+		t.linef("%s", nearCopySummary(s))
 	}
 	t.linef("%s passages; %s of three or more.", plural(s.Pairs, "pair shares", "pairs share"), plural(s.Groups, "group"))
+	if s.PairsNotListed > 0 {
+		t.linef("%s inside large sets of near-copies not listed: each set lists its representative's pairs with the members least like it (--near-copy-pairs).", plural(s.PairsNotListed, "pair"))
+	}
 	if s.GroupsTruncated {
 		t.linef("Group search stopped at its candidate limit: larger groups may exist; see the pairs and clusters.")
 	}
 	t.blank()
 	t.wrapped(r.Caution)
+
+	if len(r.NearCopies) > 0 {
+		t.heading("Near-copies")
+		const members = 12
+		for k, set := range r.NearCopies {
+			t.linef("%d. %d documents, %s listed of their %s; resemblance to the representative (counted %ss in common over those in either):",
+				k+1, len(set.Documents), plural(set.PairsListed, "pair"), plural(set.Pairs, "pair"), r.Settings.Unit)
+			for i, m := range set.Documents {
+				if i == members {
+					t.linef("   … and %d more (--format json lists all).", len(set.Documents)-members)
+					break
+				}
+				role := ""
+				switch {
+				case m.Path == set.Representative:
+					role = "  (representative)"
+				case m.Path == set.DiffersMost:
+					role = "  (differs most)"
+				}
+				t.linef("   %7s  %s%s", percent(m.Resemblance), clean(m.Path), role)
+			}
+			switch {
+			case set.DiffersMost == "":
+				t.linef("   Every member holds the same counted %ss.", r.Settings.Unit)
+			case len(set.Documents) > members:
+				t.linef("   differs most: %s", clean(set.DiffersMost))
+			}
+		}
+	}
 
 	if len(r.Pairs) > 0 {
 		t.heading("Pairs")
@@ -227,7 +284,11 @@ func WriteText(w io.Writer, r *Result, opt TextOptions) error {
 				t.linef("… and %d more (--format json lists all).", len(r.Common)-shown)
 				break
 			}
-			t.linef("%5d documents  “%s”", c.Documents, trim(clean(c.Text), 120))
+			counted := ""
+			if c.CountedIn > 0 {
+				counted = fmt.Sprintf(" (still counted in %d that are mostly common text)", c.CountedIn)
+			}
+			t.linef("%5d documents%s  “%s”", c.Documents, counted, trim(clean(c.Text), 120))
 		}
 	}
 
@@ -251,6 +312,14 @@ func WriteText(w io.Writer, r *Result, opt TextOptions) error {
 		}
 	}
 	return t.flush()
+}
+
+// nearCopySummary is the summary's one line on near-copies.
+func nearCopySummary(s Summary) string {
+	if s.NearCopySets == 1 {
+		return fmt.Sprintf("%d documents are near-copies of each other (listed first).", s.NearCopyDocuments)
+	}
+	return fmt.Sprintf("%d documents are near-copies, in %d sets of documents that are near-copies of each other (listed first).", s.NearCopyDocuments, s.NearCopySets)
 }
 
 // textWriter keeps the first write error and the colour choice.

@@ -60,10 +60,10 @@ type jsonEncoder struct {
 // appended with one copy each: writing them piece by piece was a fifth of
 // the encoder's time.
 type jsonKeys struct {
-	result   struct{ format, caution, settings, summary, documents, skipped, common, pairs, groups, clusters string }
+	result   struct{ format, caution, settings, summary, nearCopies, documents, skipped, common, pairs, groups, clusters string }
 	document struct{ path, format, encoding, words, units, reused, notes string }
 	skipped  struct{ path, reason string }
-	common   struct{ text, documents string }
+	common   struct{ text, documents, countedIn string }
 	pair     struct{ a, b, shared, coverageA, coverageB, jaccard, score, passages string }
 	passage  struct{ aStart, aEnd, bStart, bEnd, aLine, bLine, aWhere, bWhere, units, words, text string }
 	group    struct{ documents, shared string }
@@ -101,6 +101,7 @@ func newJSONEncoder(w io.Writer, indent bool) *jsonEncoder {
 	d := jsonResultDepth
 	k.result.format, k.result.caution = first(d, "format"), next(d, "caution")
 	k.result.settings, k.result.summary = next(d, "settings"), next(d, "summary")
+	k.result.nearCopies = next(d, "near_copies")
 	k.result.documents, k.result.skipped = next(d, "documents"), next(d, "skipped")
 	k.result.common, k.result.pairs = next(d, "common"), next(d, "pairs")
 	k.result.groups, k.result.clusters = next(d, "groups"), next(d, "clusters")
@@ -110,7 +111,7 @@ func newJSONEncoder(w io.Writer, indent bool) *jsonEncoder {
 	k.document.words, k.document.units = next(d, "words"), next(d, "units")
 	k.document.reused, k.document.notes = next(d, "reused"), next(d, "notes")
 	k.skipped.path, k.skipped.reason = first(d, "path"), next(d, "reason")
-	k.common.text, k.common.documents = first(d, "text"), next(d, "documents")
+	k.common.text, k.common.documents, k.common.countedIn = first(d, "text"), next(d, "documents"), next(d, "counted_in")
 	k.pair.a, k.pair.b, k.pair.shared = first(d, "a"), next(d, "b"), next(d, "shared")
 	k.pair.coverageA, k.pair.coverageB = next(d, "coverage_a"), next(d, "coverage_b")
 	k.pair.jaccard, k.pair.score, k.pair.passages = next(d, "jaccard"), next(d, "score"), next(d, "passages")
@@ -144,6 +145,10 @@ func (e *jsonEncoder) writeResultJSON(r *Result) error {
 	if err != nil {
 		return err
 	}
+	nearCopies, err := json.MarshalIndent(r.NearCopies, "  ", "  ")
+	if err != nil {
+		return err
+	}
 	if _, err := checkJSONFloats(r); err != nil {
 		return err
 	}
@@ -159,6 +164,8 @@ func (e *jsonEncoder) writeResultJSON(r *Result) error {
 	e.buf = append(e.buf, settings...)
 	e.put(k.summary)
 	e.buf = append(e.buf, summary...)
+	e.put(k.nearCopies)
+	e.buf = append(e.buf, nearCopies...)
 	e.put(k.documents)
 	jsonObjects(e, d, r.Documents, (*jsonEncoder).documentFields)
 	e.put(k.skipped)
@@ -300,6 +307,8 @@ func (e *jsonEncoder) commonFields(v *Common) {
 	e.str(v.Text)
 	e.put(k.documents)
 	e.int(v.Documents)
+	e.put(k.countedIn)
+	e.int(v.CountedIn)
 }
 
 func (e *jsonEncoder) pairFields(v *Pair) {

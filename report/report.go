@@ -31,7 +31,10 @@ type Result struct {
 	Caution   string     `json:"caution"`
 	Settings  Settings   `json:"settings"`
 	Summary   Summary    `json:"summary"`
-	Documents []Document `json:"documents"`
+	// NearCopies are the sets of documents that are near-copies of each
+	// other, largest first: shown before everything else in every format.
+	NearCopies []NearCopySet `json:"near_copies"`
+	Documents  []Document    `json:"documents"`
 	Skipped   []Skipped  `json:"skipped"`
 	Common    []Common   `json:"common"`
 	Pairs     []Pair     `json:"pairs"`
@@ -102,6 +105,40 @@ type Summary struct {
 	Pairs           int    `json:"pairs"`
 	Groups          int    `json:"groups"`
 	GroupsTruncated bool   `json:"groups_truncated"`
+	// NearCopySets and NearCopyDocuments count the sets of near-copies and
+	// the documents in them; PairsNotListed counts the pairs inside large
+	// sets that the report does not list (see Input.NearCopyPairs).
+	NearCopySets      int `json:"near_copy_sets"`
+	NearCopyDocuments int `json:"near_copy_documents"`
+	PairsNotListed    int `json:"pairs_not_listed"`
+	// CommonWords is the number of words in text set aside as common (a
+	// common unit's words once per document it is set aside in);
+	// CommonShare is that share of Words.
+	CommonWords int     `json:"common_words"`
+	CommonShare float64 `json:"common_share"`
+}
+
+// NearCopySet is a set of documents that are near-copies of each other:
+// joined by pairs in which each document holds at least 90% of the other's
+// counted units (sentences or shingles not set aside).
+type NearCopySet struct {
+	// Documents: the representative first, then by resemblance to it,
+	// highest first, then by path.
+	Documents      []NearCopy `json:"documents"`
+	Representative string     `json:"representative"` // the member sharing the most with the others
+	DiffersMost    string     `json:"differs_most"`   // the member least like the representative ("" when all are alike)
+	Pairs          int        `json:"pairs"`          // pairs of the set
+	PairsListed    int        `json:"pairs_listed"`   // of those, listed in the report's pairs
+}
+
+// NearCopy is one member of a NearCopySet and how alike it is to the
+// representative: Resemblance is the Jaccard index of their counted units
+// (Shared of them in common, Units the member's own).
+type NearCopy struct {
+	Path        string  `json:"path"`
+	Resemblance float64 `json:"resemblance"`
+	Shared      int     `json:"shared"`
+	Units       int     `json:"units"`
 }
 
 // Document describes one document that was read.
@@ -121,10 +158,13 @@ type Skipped struct {
 	Reason string `json:"reason"`
 }
 
-// Common is a unit set aside because too many documents contain it.
+// Common is a unit set aside because too many documents contain it. It
+// still counts in CountedIn of them: documents that are mostly common text
+// (automatic cap only).
 type Common struct {
 	Text      string `json:"text"`
 	Documents int    `json:"documents"`
+	CountedIn int    `json:"counted_in"`
 }
 
 // Pair is two documents that share passages; A sorts before B.
@@ -215,11 +255,21 @@ type Input struct {
 	Settings  Settings
 	Chaining  *Chaining // word units: passages chained across gaps (chain.go); nil for sentences
 	Jobs      int       // pairs aligned at once (0 or 1: one at a time); the result is the same for every value
+	// NearCopyPairs bounds the pairs listed for one set of near-copies
+	// (0 means DefaultNearCopyPairs, -1 means all): a set with more pairs
+	// lists only the representative's pairs with the members least like
+	// it, so that 1,000 copies of one text cost 1,000 resemblances and
+	// NearCopyPairs alignments, not 499,500.
+	NearCopyPairs int
 	// Load, when set, gives the text and units of the documents the
 	// report quotes, which Docs then leave out (UnitCount gives their
 	// number); Result.Texts is then left for the caller to fill.
 	Load Loader
 }
+
+// DefaultNearCopyPairs is the number of pairs listed for one set of
+// near-copies when Input.NearCopyPairs is 0.
+const DefaultNearCopyPairs = 100
 
 // A Loader gives the text and units (in text order, as shingle produced
 // them) of the document with index id. Build calls it from up to
@@ -260,12 +310,36 @@ func Build(in Input) (*Result, error) {
 			return nil, fmt.Errorf("report: engine pair (%d, %d) outside %d documents", ep.A, ep.B, n)
 		}
 	}
+	for _, nc := range eng.NearCopies {
+		for _, d := range nc.Docs {
+			if int(d) >= n {
+				return nil, fmt.Errorf("report: near-copy %d outside %d documents", d, n)
+			}
+		}
+	}
+	// The pairs to align and list: all but those inside a large set of
+	// near-copies beyond the representative's NearCopyPairs.
+	enginePairs, listedPerSet := listedPairs(eng, in.NearCopyPairs)
 	for _, c := range eng.Common {
 		if int(c.First) >= n {
 			return nil, fmt.Errorf("report: common unit in document %d outside %d documents", c.First, n)
 		}
 	}
-	load := func(id uint32) (*quoted, error) { return in.quote(id, aside) }
+	// A document that is mostly common text counts common units (the
+	// engine kept them in it): only templates are set aside there.
+	templatesOnly := newSetAside(nil, in.Excluded)
+	mostly := map[uint32]bool{}
+	for _, sh := range eng.CommonShares {
+		if sh.Mostly {
+			mostly[sh.Doc] = true
+		}
+	}
+	load := func(id uint32) (*quoted, error) {
+		if mostly[id] {
+			return in.quote(id, templatesOnly)
+		}
+		return in.quote(id, aside)
+	}
 
 	// The pairs are aligned a first document at a time (in.Jobs at once):
 	// each first document is loaded once for all its pairs, each partner
@@ -276,17 +350,17 @@ func Build(in Input) (*Result, error) {
 		a, b           uint32
 		aSpans, bSpans []span
 	}
-	rankedPairs := make([]ranked, len(eng.Pairs))
-	groups := runsBy(len(eng.Pairs), func(k int) uint32 { return eng.Pairs[k].A })
+	rankedPairs := make([]ranked, len(enginePairs))
+	groups := runsBy(len(enginePairs), func(k int) uint32 { return enginePairs[k].A })
 	errs := make([]error, len(groups))
 	parallel(len(groups), in.Jobs, func(gi int) {
-		a, err := load(eng.Pairs[groups[gi][0]].A)
+		a, err := load(enginePairs[groups[gi][0]].A)
 		if err != nil {
 			errs[gi] = err
 			return
 		}
 		for _, k := range groups[gi] {
-			ep := eng.Pairs[k]
+			ep := enginePairs[k]
 			b, err := load(ep.B)
 			if err != nil {
 				errs[gi] = err
@@ -378,7 +452,7 @@ func Build(in Input) (*Result, error) {
 		}
 		for _, k := range holders[h] {
 			c := eng.Common[k]
-			res.Common[k] = Common{Text: unitText(q, c.Hash), Documents: int(c.Docs)}
+			res.Common[k] = Common{Text: unitText(q, c.Hash), Documents: int(c.Docs), CountedIn: int(c.Kept)}
 		}
 	})
 	if err := errors.Join(errs...); err != nil {
@@ -387,6 +461,16 @@ func Build(in Input) (*Result, error) {
 	slices.SortStableFunc(res.Common, func(x, y Common) int {
 		return cmp.Or(cmp.Compare(y.Documents, x.Documents), strings.Compare(x.Text, y.Text))
 	})
+	commonWords := 0
+	for _, c := range res.Common {
+		commonWords += shingle.CountWords(c.Text) * (c.Documents - c.CountedIn)
+	}
+	for _, sh := range eng.CommonShares {
+		if 2*sh.Common > sh.Units {
+			notes := &res.Documents[sh.Doc].Notes
+			*notes = append(*notes, commonNote(sh, eng.MaxDocs, in.Settings.Unit))
+		}
+	}
 
 	paths := func(ids []uint32) []string {
 		out := make([]string, len(ids))
@@ -400,6 +484,12 @@ func Build(in Input) (*Result, error) {
 	}
 	for _, c := range eng.Clusters {
 		res.Clusters = append(res.Clusters, Cluster{Documents: paths(c)})
+	}
+	res.NearCopies = make([]NearCopySet, 0, len(eng.NearCopies))
+	nearDocs, notListed := 0, len(eng.Pairs)-len(enginePairs)
+	for k := range eng.NearCopies {
+		res.NearCopies = append(res.NearCopies, nearCopySet(&eng.NearCopies[k], listedPerSet[k], paths))
+		nearDocs += len(eng.NearCopies[k].Docs)
 	}
 
 	res.Summary = Summary{
@@ -415,8 +505,136 @@ func Build(in Input) (*Result, error) {
 		Pairs:           len(res.Pairs),
 		Groups:          len(res.Groups),
 		GroupsTruncated: eng.GroupsTruncated,
+
+		NearCopySets:      len(res.NearCopies),
+		NearCopyDocuments: nearDocs,
+		PairsNotListed:    notListed,
+		CommonWords:       commonWords,
+		CommonShare:       fraction(commonWords, totalWords),
 	}
 	return res, nil
+}
+
+// commonNote says how much of a document is common text, and what became
+// of it.
+func commonNote(sh pairs.CommonShare, maxDocs int, unit string) string {
+	share := fmt.Sprintf("%.0f%% of this document's %ss are each in more than %s", 100*float64(sh.Common)/float64(max(sh.Units, 1)), unit, plural(maxDocs, "document"))
+	if sh.Mostly {
+		return share + ": counted all the same, since they make up most of it (it is a copy of a common text, not a document that quotes one)"
+	}
+	return share + " and were set aside as common text (--max-docs)"
+}
+
+// listedPairs returns the engine pairs the report aligns and lists, in the
+// engine's order, and how many of each set of near-copies are among them:
+// every pair, except that a set with more than limit pairs (0: the
+// default; -1: no limit) keeps only the representative's pairs with the
+// limit members least like it.
+func listedPairs(eng *pairs.Result, limit int) ([]pairs.Pair, []int) {
+	if limit == 0 {
+		limit = DefaultNearCopyPairs
+	}
+	listed := make([]int, len(eng.NearCopies))
+	setOf := map[uint32]int{}
+	keep := map[[2]uint32]bool{}
+	for k := range eng.NearCopies {
+		nc := &eng.NearCopies[k]
+		if limit < 0 || nc.Pairs <= limit {
+			continue
+		}
+		for _, d := range nc.Docs {
+			setOf[d] = k
+		}
+		order := make([]int, 0, len(nc.Docs))
+		for i, d := range nc.Docs {
+			if d != nc.Representative {
+				order = append(order, i)
+			}
+		}
+		r := resemblances(nc)
+		slices.SortStableFunc(order, func(x, y int) int { return cmp.Compare(r[x], r[y]) })
+		for _, i := range order[:min(limit, len(order))] {
+			a, b := min(nc.Representative, nc.Docs[i]), max(nc.Representative, nc.Docs[i])
+			keep[[2]uint32{a, b}] = true
+		}
+	}
+	out := eng.Pairs
+	if len(setOf) > 0 {
+		out = make([]pairs.Pair, 0, len(eng.Pairs))
+		for _, p := range eng.Pairs {
+			ka, inA := setOf[p.A]
+			kb, inB := setOf[p.B]
+			if inA && inB && ka == kb && !keep[[2]uint32{p.A, p.B}] {
+				continue
+			}
+			out = append(out, p)
+		}
+	}
+	near := map[uint32]int{}
+	for k := range eng.NearCopies {
+		for _, d := range eng.NearCopies[k].Docs {
+			near[d] = k
+		}
+	}
+	for _, p := range out {
+		if ka, ok := near[p.A]; ok {
+			if kb, ok := near[p.B]; ok && ka == kb {
+				listed[ka]++
+			}
+		}
+	}
+	return out, listed
+}
+
+// resemblances gives each member's Jaccard index of counted units with the
+// representative, rounded as every fraction is.
+func resemblances(nc *pairs.NearCopies) []float64 {
+	rep := slices.Index(nc.Docs, nc.Representative)
+	r := make([]float64, len(nc.Docs))
+	for i := range nc.Docs {
+		shared := int(nc.Shared[i])
+		r[i] = fraction(shared, int(nc.Units[rep])+int(nc.Units[i])-shared)
+	}
+	return r
+}
+
+// nearCopySet turns the engine's set into the report's: members with paths
+// and resemblances, the representative first.
+func nearCopySet(nc *pairs.NearCopies, listed int, paths func([]uint32) []string) NearCopySet {
+	names := paths(nc.Docs)
+	r := resemblances(nc)
+	set := NearCopySet{Pairs: nc.Pairs, PairsListed: listed}
+	for i, name := range names {
+		set.Documents = append(set.Documents, NearCopy{Path: name, Resemblance: r[i], Shared: int(nc.Shared[i]), Units: int(nc.Units[i])})
+	}
+	rep := names[slices.Index(nc.Docs, nc.Representative)]
+	set.Representative = rep
+	slices.SortStableFunc(set.Documents, func(x, y NearCopy) int {
+		return cmp.Or(
+			cmp.Compare(b2i(y.Path == rep), b2i(x.Path == rep)),
+			cmp.Compare(y.Resemblance, x.Resemblance),
+			strings.Compare(x.Path, y.Path),
+		)
+	})
+	// The member least like the representative: the lowest resemblance,
+	// the first by path among equals.
+	least := set.Documents[1]
+	for _, m := range set.Documents[2:] {
+		if m.Resemblance < least.Resemblance {
+			least = m
+		}
+	}
+	if least.Resemblance < 1 {
+		set.DiffersMost = least.Path // none when all are alike in every counted unit
+	}
+	return set
+}
+
+func b2i(b bool) int {
+	if b {
+		return 1
+	}
+	return 0
 }
 
 // runsBy orders 0..n-1 by key, stably, and cuts the order into runs of

@@ -25,6 +25,7 @@ type scanConfig struct {
 	Jobs      int
 	Progress  func(format string, args ...any) // nil: silent
 	MaxDocsBy string                           // how MaxDocs was chosen, for the report
+	NearPairs int                              // report.Input.NearCopyPairs
 	Memory    int64                            // --memory in bytes, 0: no bound (scale.go)
 	Temp      string                           // --temp: parent of the run's temporary folder
 	Warn      func(format string, args ...any) // nil: silent (scale.go's budget warning)
@@ -161,14 +162,15 @@ func scan(cfg scanConfig) (*report.Result, error) {
 
 	progress("aligning %d pairs", len(eng.Pairs))
 	rin := report.Input{
-		Docs:      make([]report.Doc, len(docs)),
-		Skipped:   make([]report.Skipped, len(skipped)),
-		Engine:    eng,
-		Excluded:  excluded,
-		Templates: templateCount,
-		Chaining:  cfg.Chaining,
-		Jobs:      cfg.Jobs,
-		Load:      store.load,
+		Docs:          make([]report.Doc, len(docs)),
+		Skipped:       make([]report.Skipped, len(skipped)),
+		Engine:        eng,
+		Excluded:      excluded,
+		Templates:     templateCount,
+		Chaining:      cfg.Chaining,
+		Jobs:          cfg.Jobs,
+		Load:          store.load,
+		NearCopyPairs: cfg.NearPairs,
 		Settings: report.Settings{
 			Version:      version,
 			Unit:         "sentence",

@@ -61,6 +61,7 @@ type scanFlags struct {
 	output      string
 	top         int
 	htmlPairs   int
+	nearPairs   int
 	jobs        int
 	scale       scaleFlags // --memory, --temp, --files-from, -0 (scale.go)
 	include     []string
@@ -80,12 +81,13 @@ func newScanFlagSet(f *scanFlags, stderr io.Writer) *pflag.FlagSet {
 	fs.IntVar(&f.minShared, "min-shared", 0, fmt.Sprintf("support threshold: distinct units a pair must share to be reported\n(default: %d with --unit sentence, %d with --unit words)", sentenceMinShared, wordsMinShared))
 	fs.IntVar(&f.minWords, "min-words", 0, fmt.Sprintf("--unit sentence: a sentence with fewer words does not count (default %d)", sentenceMinWords))
 	f.units.register(fs)
-	fs.IntVar(&f.maxDocs, "max-docs", 0, "a sentence in more than N documents is common text, listed and not counted\n(default: half the documents, at least 5 and at most 1000)")
+	fs.IntVar(&f.maxDocs, "max-docs", 0, "a sentence in more than N documents is common text, listed and not counted\n(default: half the documents, at least 5 and at most 1000; by default such sentences\nstill count in documents that are mostly made of them: copies are never hidden)")
 	fs.StringArrayVar(&f.exclude, "exclude", nil, "template `PATH` (prompt, disclaimer) whose sentences never count; repeatable")
 	fs.StringVar(&f.format, "format", "text", "output format: "+strings.Join(report.Formats, ", "))
 	fs.StringVarP(&f.output, "output", "o", "", "write the report to `FILE` (via a temporary file, then renamed) instead of standard output")
 	fs.IntVar(&f.top, "top", 20, "pairs shown in the text table")
 	fs.IntVar(&f.htmlPairs, "html-pairs", report.DefaultHTMLPairs, "html: the top `N` pairs get a side-by-side view; the rest are in the table only")
+	fs.IntVar(&f.nearPairs, "near-copy-pairs", report.DefaultNearCopyPairs, "a set of near-copies lists at most `N` of its pairs: the representative's with the\nmembers least like it (0: all)")
 	fs.IntVar(&f.jobs, "jobs", runtime.NumCPU(), "documents read and split at once, and ranges of pairs counted at once")
 	f.scale.register(fs)
 	fs.StringArrayVar(&f.include, "include", nil, "read only files whose name matches `GLOB` (e.g. '*.txt'); repeatable")
@@ -219,6 +221,9 @@ func (f *scanFlags) config(paths []string) (cfg scanConfig, failOn float64, err 
 	if f.htmlPairs < 0 {
 		return cfg, failOn, fmt.Errorf("--html-pairs must be 0 or more, not %d", f.htmlPairs)
 	}
+	if f.nearPairs < 0 {
+		return cfg, failOn, fmt.Errorf("--near-copy-pairs must be 0 or more, not %d", f.nearPairs)
+	}
 	if f.jobs < 1 {
 		return cfg, failOn, fmt.Errorf("--jobs must be at least 1, not %d", f.jobs)
 	}
@@ -244,7 +249,7 @@ func (f *scanFlags) config(paths []string) (cfg scanConfig, failOn float64, err 
 			return cfg, -1, fmt.Errorf("bad glob %q: %w", g, err)
 		}
 	}
-	rule := "default: half the documents, at least 5, at most 1000"
+	rule := defaultMaxDocsRule
 	if f.maxDocs > 0 {
 		rule = "set by --max-docs"
 	}
@@ -256,12 +261,25 @@ func (f *scanFlags) config(paths []string) (cfg scanConfig, failOn float64, err 
 		Pairs:     pairs.Options{MinShared: f.minShared, MaxDocs: f.maxDocs},
 		Jobs:      f.jobs,
 		MaxDocsBy: rule,
+		NearPairs: nearCopyPairsOption(f.nearPairs),
 	}
 	f.units.apply(&cfg)
 	if err := f.scale.apply(&cfg); err != nil {
 		return cfg, -1, err
 	}
 	return cfg, failOn, nil
+}
+
+// defaultMaxDocsRule says how the automatic common-text cap was chosen.
+const defaultMaxDocsRule = "default: half the documents, at least 5, at most 1000; still counted in documents that are mostly common text"
+
+// nearCopyPairsOption maps --near-copy-pairs to report.Input.NearCopyPairs
+// (0 on the command line means all).
+func nearCopyPairsOption(n int) int {
+	if n == 0 {
+		return -1
+	}
+	return n
 }
 
 // parseSize reads a byte count such as 4096, 512k, 10MB or 32MiB.
