@@ -27,19 +27,19 @@ const Caution = "Shared passages are leads for a human reviewer, not proof of mi
 // Result is a complete report: the JSON contract, and the single source of
 // every number any renderer shows.
 type Result struct {
-	Format    int        `json:"format"`
-	Caution   string     `json:"caution"`
-	Settings  Settings   `json:"settings"`
-	Summary   Summary    `json:"summary"`
+	Format   int      `json:"format"`
+	Caution  string   `json:"caution"`
+	Settings Settings `json:"settings"`
+	Summary  Summary  `json:"summary"`
 	// NearCopies are the sets of documents that are near-copies of each
 	// other, largest first: shown before everything else in every format.
 	NearCopies []NearCopySet `json:"near_copies"`
 	Documents  []Document    `json:"documents"`
-	Skipped   []Skipped  `json:"skipped"`
-	Common    []Common   `json:"common"`
-	Pairs     []Pair     `json:"pairs"`
-	Groups    []Group    `json:"groups"`
-	Clusters  []Cluster  `json:"clusters"`
+	Skipped    []Skipped     `json:"skipped"`
+	Common     []Common      `json:"common"`
+	Pairs      []Pair        `json:"pairs"`
+	Groups     []Group       `json:"groups"`
+	Clusters   []Cluster     `json:"clusters"`
 
 	// Texts holds each document's extracted text, parallel to Documents,
 	// for renderers that show passages in context (HTML). It is not part of
