@@ -55,6 +55,16 @@ func commonShares(freq []uint32, docs [][]uint64, auto bool) (shares []CommonSha
 	return shares, mostly
 }
 
+// NearCopiesOf finds the sets of near-copies among res.Pairs by the rule
+// Count follows (threshold 0 means 0.9), for callers that keep only some of
+// the engine's pairs; in is the Input res was counted from.
+func NearCopiesOf(in Input, res *Result, threshold float64) []NearCopies {
+	if threshold == 0 {
+		threshold = defaultNearCopy
+	}
+	return nearCopies(in, res, threshold)
+}
+
 // nearCopies finds the sets of near-copies among res.Pairs: the connected
 // components of the pairs whose documents each hold at least threshold of
 // the other's counted units. Counted units are found by walking each paired

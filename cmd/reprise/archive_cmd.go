@@ -1,6 +1,7 @@
 package main
 
 import (
+	"cmp"
 	"context"
 	"errors"
 	"fmt"
@@ -450,21 +451,52 @@ func checkAgainst(ar *archive.Archive, docs []corpus.Document, skipped []corpus.
 	}
 	slices.Sort(fps)
 	postings := make(map[uint64][]uint64, len(fps))
-	var common []pairs.CommonUnit
-	var commonFPs []uint64
+	dfs := make(map[uint64]int, len(fps))
 	for _, fp := range fps {
 		ids, err := ar.Postings(fp, nil)
 		if err != nil {
 			return nil, err
 		}
-		df := len(ids) + batchDF[fp]
-		if df > maxDocs {
-			common = append(common, pairs.CommonUnit{Hash: fp, Docs: uint32(df), First: uint32(firstDoc[fp])})
-			commonFPs = append(commonFPs, fp)
-			continue
-		}
+		dfs[fp] = len(ids) + batchDF[fp]
 		if len(ids) > 0 {
 			postings[fp] = ids
+		}
+	}
+	frequent := func(fp uint64) bool { return dfs[fp] > maxDocs }
+	// The automatic cap's rule, as in scan: in a new document more than
+	// half of whose units are common text, common units still count.
+	mostlyNew := make([]bool, len(newSets))
+	if f.maxDocs == 0 {
+		for i, set := range newSets {
+			mostlyNew[i] = mostlyFrequent(set, frequent)
+		}
+	}
+	keptIn := map[uint64]int{} // common unit -> mostly-common new documents holding it
+	for i, set := range newSets {
+		if mostlyNew[i] {
+			for _, fp := range set {
+				if frequent(fp) {
+					keptIn[fp]++
+				}
+			}
+		}
+	}
+	var commonFPs []uint64
+	for _, fp := range fps {
+		if frequent(fp) {
+			commonFPs = append(commonFPs, fp)
+			if keptIn[fp] == 0 {
+				delete(postings, fp) // set aside in every new document
+			}
+		}
+	}
+	// A new document's counted set: common units are left out unless it is
+	// mostly common text.
+	countedSets := make([][]uint64, len(newSets))
+	for i, set := range newSets {
+		countedSets[i] = set
+		if !mostlyNew[i] && len(commonFPs) > 0 {
+			countedSets[i] = slices.DeleteFunc(slices.Clone(set), frequent)
 		}
 	}
 	// A new document archived before under the same path with the same
@@ -483,7 +515,7 @@ func checkAgainst(ar *archive.Archive, docs []corpus.Document, skipped []corpus.
 	// Candidates: archived documents sharing enough counted units with a new one.
 	candidate := map[uint64]bool{}
 	shared := map[uint64]int{}
-	for i, set := range newSets {
+	for i, set := range countedSets {
 		clear(shared)
 		for _, fp := range set {
 			for _, id := range postings[fp] {
@@ -507,11 +539,12 @@ func checkAgainst(ar *archive.Archive, docs []corpus.Document, skipped []corpus.
 	// document that document is A and the passage text is the archived
 	// side's. isRef marks archived ones.
 	type entry struct {
-		doc   report.Doc
-		set   []uint64
-		isRef bool
-		batch int   // index among the new documents, -1 for archived ones
-		id    int64 // archived ID, or the ID of the new document's own archived version, or -1
+		doc    report.Doc
+		set    []uint64
+		isRef  bool
+		mostly bool  // mostly common text: common units count in it
+		batch  int   // index among the new documents, -1 for archived ones
+		id     int64 // archived ID, or the ID of the new document's own archived version, or -1
 	}
 	eff := shingle.New(sopt).Options()
 	all := make([]entry, 0, len(docs)+len(ids))
@@ -520,7 +553,7 @@ func checkAgainst(ar *archive.Archive, docs []corpus.Document, skipped []corpus.
 		if self[i] >= 0 {
 			rd.Notes = append(rd.Notes, fmt.Sprintf("already archived as document %d (same path and content): not compared with itself", self[i]))
 		}
-		all = append(all, entry{doc: rd, set: newSets[i], batch: i, id: self[i]})
+		all = append(all, entry{doc: rd, set: countedSets[i], batch: i, id: self[i], mostly: mostlyNew[i]})
 	}
 	for _, id := range ids {
 		d, err := ar.Load(id)
@@ -529,10 +562,15 @@ func checkAgainst(ar *archive.Archive, docs []corpus.Document, skipped []corpus.
 		}
 		notes := slices.Clone(d.Notes)
 		notes = append(notes, fmt.Sprintf("archived document %d, added %s", d.ID, d.Added.Format("2006-01-02")))
+		set := fingerprintSets([][]shingle.Unit{d.UnitList})[0]
+		mostly := f.maxDocs == 0 && mostlyFrequent(set, frequent)
+		if !mostly && len(commonFPs) > 0 {
+			set = slices.DeleteFunc(set, frequent)
+		}
 		all = append(all, entry{
 			doc: report.Doc{Path: archivedName(d.Path), Format: d.Format, Encoding: d.Encoding, Notes: notes,
 				Text: d.Text, Words: d.Words, Units: d.UnitList, Marks: d.Marks},
-			set: fingerprintSets([][]shingle.Unit{d.UnitList})[0], isRef: true, batch: -1, id: int64(d.ID),
+			set: set, isRef: true, batch: -1, id: int64(d.ID), mostly: mostly,
 		})
 	}
 	slices.SortStableFunc(all, func(x, y entry) int {
@@ -554,12 +592,32 @@ func checkAgainst(ar *archive.Archive, docs []corpus.Document, skipped []corpus.
 			at[e.batch] = k
 		}
 	}
-	for k := range common {
-		common[k].First = uint32(at[common[k].First])
+	// Common units, each set aside in the documents that are not mostly
+	// common text; Kept counts the mostly-common ones of this check that
+	// hold it (new, and archived candidates).
+	var common []pairs.CommonUnit
+	var shares []pairs.CommonShare
+	for k, e := range all {
+		if e.mostly {
+			shares = append(shares, pairs.CommonShare{Doc: uint32(k), Mostly: true})
+			if e.isRef {
+				for _, fp := range e.set {
+					if frequent(fp) {
+						keptIn[fp]++
+					}
+				}
+			}
+		}
 	}
-	in.Excluded = slices.Concat(excluded, commonFPs)
-	slices.Sort(in.Excluded)
-	in.Excluded = slices.Compact(in.Excluded)
+	for _, fp := range commonFPs {
+		if keptIn[fp] < dfs[fp] {
+			common = append(common, pairs.CommonUnit{Hash: fp, Docs: uint32(dfs[fp]), First: uint32(at[firstDoc[fp]]), Kept: uint32(keptIn[fp])})
+		}
+	}
+	slices.SortFunc(common, func(x, y pairs.CommonUnit) int {
+		return cmp.Or(cmp.Compare(y.Docs, x.Docs), cmp.Compare(x.Hash, y.Hash))
+	})
+	in.Excluded = excluded
 	eng, err := pairs.Count(in, pairs.Options{MinShared: f.minShared, MaxDocs: max(2, len(all))})
 	if err != nil {
 		return nil, err
@@ -567,7 +625,9 @@ func checkAgainst(ar *archive.Archive, docs []corpus.Document, skipped []corpus.
 	keepCrossPairs(eng, isRef, f.within, func(a, b uint32) bool {
 		return isRef[a] != isRef[b] && all[a].id >= 0 && all[a].id == all[b].id
 	})
+	eng.NearCopies = pairs.NearCopiesOf(in, eng, 0)
 	eng.Common = common
+	eng.CommonShares = shares
 	eng.MaxDocs = maxDocs
 	eng.Stats.ExcludedHits = countHits(newSets, excluded)
 
@@ -589,6 +649,18 @@ func checkAgainst(ar *archive.Archive, docs []corpus.Document, skipped []corpus.
 		rin.Skipped[i] = report.Skipped{Path: s.Path, Reason: s.Reason}
 	}
 	return report.Build(rin)
+}
+
+// mostlyFrequent reports whether more than half of a document's distinct
+// units are common text (the automatic cap's rule, pairs.CommonShare).
+func mostlyFrequent(set []uint64, frequent func(uint64) bool) bool {
+	n := 0
+	for _, fp := range set {
+		if frequent(fp) {
+			n++
+		}
+	}
+	return n > 0 && 2*n > len(set)
 }
 
 // countHits counts the distinct excluded fingerprints found in the sets.

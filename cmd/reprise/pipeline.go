@@ -137,16 +137,16 @@ func scan(cfg scanConfig) (*report.Result, error) {
 	if err != nil {
 		return nil, err
 	}
+	if cfg.KeepPairs != nil {
+		cfg.KeepPairs(docs, eng)
+		eng.NearCopies = pairs.NearCopiesOf(in, eng, cfg.Pairs.NearCopy)
+	}
 	in = pairs.Input{}
 	for i := range digests {
 		digests[i].set = nil // the engine's view is no longer needed
 	}
 	if eng.Spill.Runs > 0 {
 		progress("counted in %d sorted runs on disk (%d MiB written), %d ranges of pairs", eng.Spill.Runs, eng.Spill.BytesWritten>>20, eng.Spill.Ranges)
-	}
-
-	if cfg.KeepPairs != nil {
-		cfg.KeepPairs(docs, eng)
 	}
 
 	quoted := quotedDocuments(eng, len(docs))
