@@ -89,7 +89,7 @@
 // rule keeps every count exact.
 //
 // Near-copies (Result.NearCopies) are the connected components of the
-// pairs in which each document holds at least Options.NearCopy (0.9) of
+// pairs in which each document holds at least Options.NearCopy (0.8) of
 // the other's counted units, so that a caller can show them as one set
 // and need not align all C(k, 2) of their pairs: each member's shared
 // units with one representative (the member sharing the most with its

@@ -119,7 +119,7 @@ type Summary struct {
 }
 
 // NearCopySet is a set of documents that are near-copies of each other:
-// joined by pairs in which each document holds at least 90% of the other's
+// joined by pairs in which each document holds at least 80% of the other's
 // counted units (sentences or shingles not set aside).
 type NearCopySet struct {
 	// Documents: the representative first, then by resemblance to it,

@@ -3,8 +3,11 @@ package main
 import (
 	"encoding/json"
 	"fmt"
+	"maps"
 	"os"
 	"path/filepath"
+	"slices"
+	"strings"
 	"testing"
 
 	"reprise/report"
@@ -86,4 +89,78 @@ func brief(p *report.Pair) string {
 	}
 	return fmt.Sprintf("%s ~ %s: shared %d, coverage %.4f / %.4f, %d passages",
 		p.A, p.B, p.Shared, p.CoverageA, p.CoverageB, len(p.Passages))
+}
+
+// TestLicenseCopiesAreClustered checks the mostly-common rule on real
+// license texts (SPDX license list, npm package spdx-license-list 6.12.0,
+// field licenseText): a folder of package copyright files, each a few
+// short lines of its own followed by a whole license text, in which the
+// Apache-2.0 files are more than half of the documents. Every file that
+// embeds a license is found in that license's cluster and set of
+// near-copies, although Apache-2.0's sentences are each in more than half
+// of the documents; the licenses that nobody embedded pair with nothing.
+func TestLicenseCopiesAreClustered(t *testing.T) {
+	spdx := dataDir(t, "spdx/licenses")
+	text := func(id string) string {
+		raw, err := os.ReadFile(filepath.Join(spdx, id+".json"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		var lic struct {
+			LicenseText string `json:"licenseText"`
+		}
+		if err := json.Unmarshal(raw, &lic); err != nil {
+			t.Fatalf("%s: %v", id, err)
+		}
+		return lic.LicenseText
+	}
+	dir := t.TempDir()
+	embedded := map[string]int{"Apache-2.0": 24, "MIT": 4, "BSD-3-Clause": 3}
+	alone := []string{"MPL-2.0", "Zlib", "ISC", "BSL-1.0", "Unlicense", "PostgreSQL", "NCSA"}
+	var files []string
+	for id, copies := range embedded {
+		for k := range copies {
+			name := fmt.Sprintf("%s-package-%02d.copyright", id, k)
+			header := fmt.Sprintf("Upstream-Name: tool%02d\nFiles: *\nCopyright: 20%02d Maintainer %d\nLicense: %s\n\n", k, k, k, id)
+			writeFile(t, filepath.Join(dir, name), header+text(id))
+			files = append(files, name)
+		}
+	}
+	for _, id := range slices.Concat(slices.Sorted(maps.Keys(embedded)), alone) {
+		writeFile(t, filepath.Join(dir, id+".txt"), text(id))
+	}
+	res := scanJSON(t, exitOK, dir)
+	if n := len(files) + len(embedded) + len(alone); len(res.Documents) != n || res.Settings.MaxDocs >= embedded["Apache-2.0"] {
+		t.Fatalf("%d documents and cap %d; want %d and a cap below the %d Apache-2.0 files", len(res.Documents), res.Settings.MaxDocs, n, embedded["Apache-2.0"])
+	}
+	clusterOf := map[string]int{}
+	for k, c := range res.Clusters {
+		for _, d := range c.Documents {
+			clusterOf[d] = k + 1
+		}
+	}
+	setOf := map[string]int{}
+	for k, s := range res.NearCopies {
+		for _, m := range s.Documents {
+			setOf[m.Path] = k + 1
+		}
+	}
+	for _, name := range files {
+		id := strings.SplitN(name, "-package-", 2)[0]
+		lic, doc := filepath.Join(dir, id+".txt"), filepath.Join(dir, name)
+		if clusterOf[doc] == 0 || clusterOf[doc] != clusterOf[lic] {
+			t.Errorf("%s: cluster %d, %s's is %d", name, clusterOf[doc], id, clusterOf[lic])
+		}
+		if setOf[doc] == 0 || setOf[doc] != setOf[lic] {
+			t.Errorf("%s: near-copy set %d, %s's is %d", name, setOf[doc], id, setOf[lic])
+		}
+	}
+	for _, id := range alone {
+		if p := filepath.Join(dir, id+".txt"); clusterOf[p] != 0 {
+			t.Errorf("%s, embedded nowhere, is in cluster %d", id, clusterOf[p])
+		}
+	}
+	if len(res.Clusters) != len(embedded) {
+		t.Errorf("%d clusters, want one per embedded license (%d)", len(res.Clusters), len(embedded))
+	}
 }
