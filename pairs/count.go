@@ -17,7 +17,7 @@ var (
 const (
 	defaultMinShared          = 3
 	defaultMaxGroupCandidates = 200000
-	defaultNearCopy           = 0.8
+	defaultNearCopy           = 0.7
 )
 
 // DefaultMaxDocs is the common-text cap used when Options.MaxDocs is 0: a

@@ -89,9 +89,12 @@
 // rule keeps every count exact.
 //
 // Near-copies (Result.NearCopies) are the connected components of the
-// pairs in which each document holds at least Options.NearCopy (0.8) of
+// pairs in which each document holds at least Options.NearCopy (0.7) of
 // the other's counted units, so that a caller can show them as one set
-// and need not align all C(k, 2) of their pairs: each member's shared
+// and need not align all C(k, 2) of their pairs. Why 0.7: two copies of
+// one original, each keeping 85% of it and editing the rest on its own,
+// share 70% of each other; a pairwise 0.9 would split a batch of lightly
+// edited copies of a short policy into many small sets. Each member's shared
 // units with one representative (the member sharing the most with its
 // near-copies) are counted directly by a merge of the two fingerprint
 // lists, linear in their units.

@@ -56,7 +56,7 @@ func commonShares(freq []uint32, docs [][]uint64, auto bool) (shares []CommonSha
 }
 
 // NearCopiesOf finds the sets of near-copies among res.Pairs by the rule
-// Count follows (threshold 0 means 0.8), for callers that keep only some of
+// Count follows (threshold 0 means 0.7), for callers that keep only some of
 // the engine's pairs; in is the Input res was counted from.
 func NearCopiesOf(in Input, res *Result, threshold float64) []NearCopies {
 	if threshold == 0 {

@@ -16,7 +16,7 @@ type Options struct {
 	// explicit MaxDocs applies to every document alike.
 	MaxDocs int
 	// NearCopy is the containment, both ways, above which two documents
-	// of a pair are near-copies (0 means 0.8; at most 1): each holds at
+	// of a pair are near-copies (0 means 0.7; at most 1): each holds at
 	// least this share of the other's counted units.
 	NearCopy float64
 	// MaxGroupCandidates bounds the candidate sets examined while growing

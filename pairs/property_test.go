@@ -282,7 +282,7 @@ func checkAgainstOracle(t *rapid.T) {
 	}
 	want := oracle(docs, excluded, s, maxDocs, opt.MaxDocs == 0)
 	opt.NearCopy = rapid.SampledFrom([]float64{0, 0.5, 1}).Draw(t, "NearCopy")
-	wantNear := oracleNearCopies(want, cmp.Or(opt.NearCopy, 0.8))
+	wantNear := oracleNearCopies(want, cmp.Or(opt.NearCopy, 0.7))
 
 	var first *Result
 	for _, kind := range []CounterKind{CounterAuto, CounterTriangular, CounterSparse} {

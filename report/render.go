@@ -202,6 +202,9 @@ func WriteText(w io.Writer, r *Result, opt TextOptions) error {
 	if s.PairsNotListed > 0 {
 		t.linef("%s inside large sets of near-copies not listed: each set lists its representative's pairs with the members least like it (--near-copy-pairs).", plural(s.PairsNotListed, "pair"))
 	}
+	if s.GroupsNotListed > 0 {
+		t.linef("%s inside sets of near-copies not listed (the set stands for them).", plural(s.GroupsNotListed, "group"))
+	}
 	if s.GroupsTruncated {
 		t.linef("Group search stopped at its candidate limit: larger groups may exist; see the pairs and clusters.")
 	}

@@ -111,6 +111,9 @@ type Summary struct {
 	NearCopySets      int `json:"near_copy_sets"`
 	NearCopyDocuments int `json:"near_copy_documents"`
 	PairsNotListed    int `json:"pairs_not_listed"`
+	// GroupsNotListed counts the groups whose documents all lie in one
+	// set of near-copies: the set stands for them.
+	GroupsNotListed int `json:"groups_not_listed"`
 	// CommonWords is the number of words in text set aside as common (a
 	// common unit's words once per document it is set aside in);
 	// CommonShare is that share of Words.
@@ -119,7 +122,7 @@ type Summary struct {
 }
 
 // NearCopySet is a set of documents that are near-copies of each other:
-// joined by pairs in which each document holds at least 80% of the other's
+// joined by pairs in which each document holds at least 70% of the other's
 // counted units (sentences or shingles not set aside).
 type NearCopySet struct {
 	// Documents: the representative first, then by resemblance to it,
@@ -479,7 +482,21 @@ func Build(in Input) (*Result, error) {
 		}
 		return out
 	}
+	// A group inside one set of near-copies is not listed: the set stands
+	// for it (copies each edited on their own make many overlapping
+	// groups of the same text).
+	inSet := map[uint32]int{}
+	for k, nc := range eng.NearCopies {
+		for _, d := range nc.Docs {
+			inSet[d] = k + 1
+		}
+	}
+	groupsInSets := 0
 	for _, g := range eng.Groups {
+		if k := inSet[g.Docs[0]]; k > 0 && !slices.ContainsFunc(g.Docs, func(d uint32) bool { return inSet[d] != k }) {
+			groupsInSets++
+			continue
+		}
 		res.Groups = append(res.Groups, Group{Documents: paths(g.Docs), Shared: int(g.Shared)})
 	}
 	for _, c := range eng.Clusters {
@@ -509,6 +526,7 @@ func Build(in Input) (*Result, error) {
 		NearCopySets:      len(res.NearCopies),
 		NearCopyDocuments: nearDocs,
 		PairsNotListed:    notListed,
+		GroupsNotListed:   groupsInSets,
 		CommonWords:       commonWords,
 		CommonShare:       fraction(commonWords, totalWords),
 	}

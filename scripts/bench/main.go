@@ -74,6 +74,16 @@ type options struct {
 	memory string
 	seed   uint64
 	extra  []string
+	copies copyPlan
+}
+
+// copyPlan replaces documents of a corpus by copies of one text, each with
+// a few words changed: the near-copy benchmark (-copies).
+type copyPlan struct {
+	count int      // documents replaced (0: none)
+	edits int      // words changed in each copy, in different lines
+	name  string   // the copied text's name, for the corpus folder
+	lines []string // the copied text, by line
 }
 
 func run() error {
@@ -89,7 +99,15 @@ func run() error {
 	engineDocs := flag.Int("engine", 0, "also run the pair engine alone on this many documents' fingerprints (e.g. 1000000; 0: skip)")
 	engineMem := flag.String("engine-memory", "1GiB,0", "budgets for -engine, comma-separated (0: no bound)")
 	generateOnly := flag.Bool("generate-only", false, "write the corpora of -sizes under -work and stop (to time a size by hand)")
+	flag.IntVar(&o.copies.count, "copies", 0, "also measure each size with this many documents replaced by copies of -copy-text, side by side with the corpus without them")
+	copyText := flag.String("copy-text", "", "-copies: the text copied (a text file, or an SPDX license JSON file: its licenseText)")
+	flag.IntVar(&o.copies.edits, "copy-edits", 3, "-copies: words changed in each copy, each in another line")
 	flag.Parse()
+	if o.copies.count > 0 {
+		if err := o.copies.load(*copyText); err != nil {
+			return err
+		}
+	}
 	for _, s := range strings.Split(*sizes, ",") {
 		if s = strings.TrimSpace(s); s == "" {
 			continue
@@ -138,6 +156,9 @@ func run() error {
 	fmt.Printf("machine: %s/%s, %d cores, %s, %s\n", runtime.GOOS, runtime.GOARCH, runtime.NumCPU(), memTotal(mem), runtime.Version())
 	fmt.Printf("corpus: Brown sentences (one word in four replaced), 20-80 per document, %.0f%% of documents with a planted copy of 3-8 sentences, seed %d\n\n", o.reuse*100, o.seed)
 
+	if o.copies.count > 0 {
+		return measureCopies(g, bin, o)
+	}
 	var prev *result
 	for _, n := range o.sizes {
 		r, err := measure(g, bin, n, o)
@@ -359,7 +380,136 @@ const corpusVersion = 2
 
 // corpusDir is where the corpus of n documents is written.
 func corpusDir(o options, n int) string {
-	return filepath.Join(o.work, fmt.Sprintf("corpus-%d-%d-%g-v%d", n, o.seed, o.reuse, corpusVersion))
+	dir := filepath.Join(o.work, fmt.Sprintf("corpus-%d-%d-%g-v%d", n, o.seed, o.reuse, corpusVersion))
+	if o.copies.count > 0 {
+		dir += fmt.Sprintf("-copies-%d-%s-%d", o.copies.count, o.copies.name, o.copies.edits)
+	}
+	return dir
+}
+
+// load reads the text to copy.
+func (c *copyPlan) load(path string) error {
+	if path == "" {
+		return fmt.Errorf("-copies needs -copy-text")
+	}
+	raw, err := os.ReadFile(path)
+	if err != nil {
+		return err
+	}
+	text := string(raw)
+	if strings.HasSuffix(path, ".json") {
+		var lic struct {
+			LicenseText string `json:"licenseText"`
+		}
+		if err := json.Unmarshal(raw, &lic); err != nil || lic.LicenseText == "" {
+			return fmt.Errorf("%s: no licenseText (%v)", path, err)
+		}
+		text = lic.LicenseText
+	}
+	c.name = strings.TrimSuffix(filepath.Base(path), filepath.Ext(path))
+	c.lines = strings.Split(text, "\n")
+	return nil
+}
+
+// copyAt reports whether document i of n is a copy: count of them, evenly
+// spread.
+func (c *copyPlan) copyAt(i, n int) bool {
+	if c.count == 0 {
+		return false
+	}
+	every := max(n/c.count, 1)
+	return i%every == every/2 && i/every < c.count
+}
+
+// copyText is copy i: the text with c.edits words, in as many lines drawn
+// for i, replaced by words of the vocabulary.
+func (c *copyPlan) copyText(g *generator, i int) string {
+	r := rand.New(rand.NewPCG(g.seed^0xc0b1e5, uint64(i)))
+	lines := slices.Clone(c.lines)
+	var withWords []int
+	for k, l := range lines {
+		if len(strings.Fields(l)) >= 4 {
+			withWords = append(withWords, k)
+		}
+	}
+	r.Shuffle(len(withWords), func(a, b int) { withWords[a], withWords[b] = withWords[b], withWords[a] })
+	for _, k := range withWords[:min(c.edits, len(withWords))] {
+		toks := strings.Fields(lines[k])
+		for try := 0; try < len(toks); try++ {
+			if replaceWord(&toks[r.IntN(len(toks))], g.vocab[r.IntN(len(g.vocab))]) {
+				break
+			}
+		}
+		lines[k] = strings.Join(toks, " ")
+	}
+	return strings.Join(lines, "\n")
+}
+
+// measureCopies measures every size twice, side by side: the corpus as
+// generated, and the same corpus with o.copies.count documents replaced by
+// copies of one text; for each it also reports what the run found (pairs,
+// sets of near-copies, pairs not listed, the JSON's size).
+func measureCopies(g *generator, bin string, o options) error {
+	fmt.Printf("copies: %d documents replaced by copies of %s (%d lines), %d words changed in each\n\n", o.copies.count, o.copies.name, len(o.copies.lines), o.copies.edits)
+	for _, n := range o.sizes {
+		plain, with := o, o
+		plain.copies = copyPlan{}
+		for _, v := range []options{plain, with} {
+			gv := *g
+			gv.copies = &v.copies
+			if _, err := measure(&gv, bin, n, v); err != nil {
+				return err
+			}
+			if err := describeRun(&gv, bin, n, v); err != nil {
+				return err
+			}
+			fmt.Println()
+		}
+	}
+	return nil
+}
+
+// describeRun runs the scan once more with the JSON kept, and prints what
+// it found.
+func describeRun(g *generator, bin string, n int, o options) error {
+	out, err := os.CreateTemp("", "reprise-bench-*.json")
+	if err != nil {
+		return err
+	}
+	out.Close()
+	defer os.Remove(out.Name())
+	args := []string{"scan", "--format", "json", "-o", out.Name(), "-q"}
+	if o.memory != "" {
+		args = append(args, "--memory", o.memory)
+	}
+	args = append(append(args, o.extra...), corpusDir(o, n))
+	if _, _, _, err := timed(bin, args...); err != nil {
+		return err
+	}
+	raw, err := os.ReadFile(out.Name())
+	if err != nil {
+		return err
+	}
+	var r struct {
+		Summary struct {
+			Pairs             int     `json:"pairs"`
+			CommonUnits       int     `json:"common_units"`
+			NearCopySets      int     `json:"near_copy_sets"`
+			NearCopyDocuments int     `json:"near_copy_documents"`
+			PairsNotListed    int     `json:"pairs_not_listed"`
+			CommonShare       float64 `json:"common_share"`
+		} `json:"summary"`
+		Settings struct {
+			MaxDocs int `json:"max_docs"`
+		} `json:"settings"`
+	}
+	if err := json.Unmarshal(raw, &r); err != nil {
+		return err
+	}
+	s := r.Summary
+	fmt.Printf("  found: %d pairs listed, %d not listed; %d sets of near-copies holding %d documents; %d common units (%.2f%% of the words; cap %d); JSON %.1f MB\n",
+		s.Pairs, s.PairsNotListed, s.NearCopySets, s.NearCopyDocuments, s.CommonUnits, 100*s.CommonShare, r.Settings.MaxDocs, float64(len(raw))/1e6)
+	return nil
 }
 
 // timed runs a command under /usr/bin/time and returns its wall time in
@@ -422,6 +572,8 @@ type generator struct {
 	words     [][]string // each sentence's tokens
 	seed      uint64
 	reuse     float64
+	copies    *copyPlan // documents replaced by copies of one text (nil: none)
+	n         int       // the corpus size being written, for copies
 }
 
 func newGenerator(samples []brown.Sample, seed uint64, reuse float64) *generator {
@@ -508,6 +660,9 @@ func (g *generator) base(i int) []string {
 // documents, a planted block of 3 to 8 consecutive sentences from an
 // earlier document.
 func (g *generator) doc(i int) string {
+	if g.copies != nil && g.copies.copyAt(i, g.n) {
+		return g.copies.copyText(g, i)
+	}
 	sents := g.base(i)
 	r := rand.New(rand.NewPCG(g.seed^0x5eed, uint64(i)))
 	if i > 0 && r.Float64() < g.reuse {
@@ -548,6 +703,7 @@ func (g *generator) ensure(dir string, n int) (int64, error) {
 	if err := os.RemoveAll(dir); err != nil {
 		return 0, err
 	}
+	g.n = n
 	var size int64
 	for i := range n {
 		p := g.path(dir, i)
