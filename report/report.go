@@ -464,10 +464,7 @@ func Build(in Input) (*Result, error) {
 	slices.SortStableFunc(res.Common, func(x, y Common) int {
 		return cmp.Or(cmp.Compare(y.Documents, x.Documents), strings.Compare(x.Text, y.Text))
 	})
-	commonWords := 0
-	for _, c := range res.Common {
-		commonWords += shingle.CountWords(c.Text) * (c.Documents - c.CountedIn)
-	}
+	commonWords := CommonWords(res.Common)
 	for _, sh := range eng.CommonShares {
 		if 2*sh.Common > sh.Units {
 			notes := &res.Documents[sh.Doc].Notes
@@ -532,6 +529,21 @@ func Build(in Input) (*Result, error) {
 	}
 	return res, nil
 }
+
+// CommonWords is the number of words set aside as common text: each
+// common unit's words once per document it is set aside in (those holding
+// it, less those it still counts in), as Summary.CommonWords gives it.
+func CommonWords(common []Common) int {
+	n := 0
+	for _, c := range common {
+		n += shingle.CountWords(c.Text) * (c.Documents - c.CountedIn)
+	}
+	return n
+}
+
+// CommonShare is CommonWords(common) as a share of words, rounded as
+// every fraction is (Summary.CommonShare).
+func CommonShare(common []Common, words int) float64 { return fraction(CommonWords(common), words) }
 
 // commonNote says how much of a document is common text, and what became
 // of it.

@@ -421,6 +421,8 @@ func assemble(cfg Config, listSkipped []corpus.Skipped, templates []corpus.Docum
 	res.Summary.Units = units
 	res.Summary.TemplateUnits = hits
 	res.Summary.CommonUnits = len(common)
+	res.Summary.CommonWords = report.CommonWords(res.Common)
+	res.Summary.CommonShare = report.CommonShare(res.Common, words)
 	res.Summary.Pruned = pruned
 	res.Summary.Counter = Counter
 	return &res, nil
