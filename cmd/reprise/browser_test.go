@@ -248,7 +248,8 @@ func TestBrowserDemoPageAgreesWithJSON(t *testing.T) {
 	summary := eval[map[string]string](t, ctx, `Object.fromEntries(Array.from(document.querySelectorAll("#summary dd[data-field]")).map(function (d) { return [d.dataset.field, d.textContent]; }))`)
 	s := res.Summary
 	for field, want := range map[string]int{"documents": s.Documents, "skipped": s.Skipped, "words": s.Words, "units": s.Units,
-		"pairs": s.Pairs, "groups": s.Groups, "common_units": s.CommonUnits, "templates": s.Templates, "template_units": s.TemplateUnits, "pruned": s.Pruned} {
+		"pairs": s.Pairs, "groups": s.Groups, "common_units": s.CommonUnits, "templates": s.Templates, "template_units": s.TemplateUnits, "pruned": s.Pruned,
+		"near_copy_documents": s.NearCopyDocuments} {
 		if summary[field] != fmt.Sprint(want) {
 			t.Errorf("summary %s: page %q, JSON %d", field, summary[field], want)
 		}
