@@ -326,7 +326,7 @@ func archiveAdd(ar *archive.Archive, f *archiveFlags, paths []string, sopt shing
 		fmt.Fprintf(stdout, "skipped    -\t%s: %s\n", s.Path, s.Reason)
 	}
 	if len(docs)+unchanged == 0 {
-		return fmt.Errorf("no readable document in %s", strings.Join(paths, " "))
+		return noDocumentError("document", paths, f.include)
 	}
 	if unchanged > 0 {
 		fmt.Fprintf(stdout, "unchanged  %d documents already archived with the same path and content\n", unchanged)
@@ -344,6 +344,9 @@ func archiveCheck(ar *archive.Archive, f *archiveFlags, paths []string, sopt shi
 	}
 	if f.minShared < 1 || f.top < 1 || f.maxDocs < 0 || f.maxDocs == 1 {
 		return exitUsage, errors.New("--min-shared and --top must be at least 1, --max-docs at least 2")
+	}
+	if err := checkOutputDir(f.output); err != nil {
+		return exitUsage, err
 	}
 	failOn := -1.0
 	if f.failOn != "" {
@@ -377,7 +380,7 @@ func archiveCheck(ar *archive.Archive, f *archiveFlags, paths []string, sopt shi
 		excluded = slices.Compact(excluded)
 	}
 	if len(docs) == 0 {
-		return exitUsage, fmt.Errorf("no readable document in %s", strings.Join(paths, " "))
+		return exitUsage, noDocumentError("document", paths, f.include)
 	}
 	res, err := checkAgainst(ar, docs, skipped, units, stats, excluded, f, sopt)
 	if err != nil {

@@ -126,10 +126,16 @@ func runCompare(args []string, stdout, stderr io.Writer) int {
 	if len(masters) > 0 {
 		cfg.KeepText = func(path string) bool { return underAny(path, masters) }
 	}
+	refsRead, newRead := 0, 0
 	cfg.KeepPairs = func(docs []corpus.Document, eng *pairs.Result) {
 		isRef := make([]bool, len(docs))
 		for i, d := range docs {
 			isRef[i] = underAny(d.Path, refs)
+			if isRef[i] {
+				refsRead++
+			} else {
+				newRead++
+			}
 			for k, m := range masters {
 				if underAny(d.Path, []string{m}) {
 					masterDocs[k] = append(masterDocs[k], d)
@@ -146,9 +152,17 @@ func runCompare(args []string, stdout, stderr io.Writer) int {
 	prog.done()
 	if err != nil {
 		if errors.Is(err, errNoDocuments) {
-			return fail(fmt.Errorf("no readable document in %s", strings.Join(cfg.Paths, " ")))
+			return fail(noDocumentError("document", cfg.Paths, cfg.Corpus.Include))
 		}
 		return fail(err)
+	}
+	// A reference set or a batch that gave no document is an error, never
+	// an empty report: "0 pairs" would read as an all-clear.
+	if refsRead == 0 {
+		return fail(fmt.Errorf("reference set: %w", noDocumentError("reference document", refs, cfg.Corpus.Include)))
+	}
+	if newRead == 0 {
+		return fail(fmt.Errorf("new documents: %w", noDocumentError("new document", cfg.Paths[len(refs):], cfg.Corpus.Include)))
 	}
 	var cover []masterCoverage
 	for k, m := range masters {

@@ -68,6 +68,10 @@ func run(args []string, stdout, stderr io.Writer) int {
 		if len(args) > 1 && (args[1] == "compare" || args[1] == "archive") {
 			return run([]string{args[1], "--help"}, stdout, stderr)
 		}
+		if len(args) > 1 {
+			fmt.Fprintf(stderr, "reprise: no help on %q: the commands are scan, compare, archive and report\n", args[1])
+			return exitUsage
+		}
 		fmt.Fprint(stdout, mainUsage)
 		return exitOK
 	case "version", "--version":

@@ -131,3 +131,51 @@ func (p *progress) done() {
 	fmt.Fprintf(p.w, "\r%s\r", strings.Repeat(" ", p.width))
 	p.width = 0
 }
+
+// checkOutputDir fails when the folder of the -o FILE does not exist (or is
+// not a folder), before any work is done, naming the folder the user gave.
+func checkOutputDir(path string) error {
+	if path == "" || path == "-" {
+		return nil
+	}
+	dir := filepath.Dir(path)
+	fi, err := os.Stat(dir)
+	switch {
+	case err != nil:
+		return fmt.Errorf("-o %s: folder %s: %w", path, dir, unwrapPath(err))
+	case !fi.IsDir():
+		return fmt.Errorf("-o %s: %s is not a folder", path, dir)
+	}
+	return nil
+}
+
+// unwrapPath drops the *fs.PathError around err, whose path the message
+// already names.
+func unwrapPath(err error) error {
+	var pe *fs.PathError
+	if errors.As(err, &pe) {
+		return pe.Err
+	}
+	return err
+}
+
+// noDocumentError says why no document was read from paths: the first
+// path that does not exist, or a filter that matched no file, or else that
+// nothing readable was found (the skipped inputs say why in the report).
+func noDocumentError(what string, paths, include []string) error {
+	for _, p := range paths {
+		fi, err := os.Stat(p)
+		if err != nil {
+			return fmt.Errorf("%s: %w", p, unwrapPath(err))
+		}
+		if fi.IsDir() {
+			if entries, err := os.ReadDir(p); err == nil && len(entries) == 0 {
+				return fmt.Errorf("%s: empty folder", p)
+			}
+		}
+	}
+	if len(include) > 0 {
+		return fmt.Errorf("no file in %s matches --include %s", strings.Join(paths, " "), strings.Join(include, " "))
+	}
+	return fmt.Errorf("no readable %s in %s", what, strings.Join(paths, " "))
+}

@@ -82,6 +82,9 @@ func runReport(args []string, stdout, stderr io.Writer) int {
 	if fs.NArg() != 1 {
 		return fail("want one RESULT.json, got %d arguments\nRun 'reprise report --help' for usage.", fs.NArg())
 	}
+	if err := checkOutputDir(f.output); err != nil {
+		return fail("%v", err)
+	}
 	if !slices.Contains(report.Formats, f.format) {
 		return fail("--format %q: want one of %s", f.format, strings.Join(report.Formats, ", "))
 	}

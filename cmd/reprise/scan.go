@@ -147,7 +147,7 @@ func runScan(args []string, stdout, stderr io.Writer) int {
 	prog.done()
 	if err != nil {
 		if errors.Is(err, errNoDocuments) {
-			fmt.Fprintf(stderr, "reprise scan: no readable document in %s\n", strings.Join(cfg.Paths, " "))
+			fmt.Fprintf(stderr, "reprise scan: %v\n", noDocumentError("document", cfg.Paths, cfg.Corpus.Include))
 			return exitUsage
 		}
 		fmt.Fprintf(stderr, "reprise scan: %v\n", err)
@@ -194,6 +194,9 @@ func printScanHelp(w io.Writer, fs *pflag.FlagSet) {
 // when --fail-on is not set.
 func (f *scanFlags) config(paths []string) (cfg scanConfig, failOn float64, err error) {
 	failOn = -1
+	if err := checkOutputDir(f.output); err != nil {
+		return cfg, failOn, err
+	}
 	if paths, err = f.scale.paths(paths, os.Stdin); err != nil {
 		return cfg, failOn, err
 	}
