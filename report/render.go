@@ -143,7 +143,7 @@ func WriteCSV(w io.Writer, r *Result) error {
 		p := &r.Pairs[i]
 		rows = append(rows, []string{"pair", strconv.Itoa(i + 1), num(p.Score), num(p.CoverageA), num(p.CoverageB),
 			num(p.Jaccard), strconv.Itoa(p.Shared), strconv.Itoa(len(p.Passages)), strconv.Itoa(p.LongestWords()),
-			safeCell(p.A), safeCell(p.B), ""})
+			safeCell(p.A), safeCell(p.B), identicalCell(p.Identical)})
 	}
 	for _, g := range r.Groups {
 		rows = append(rows, []string{"group", "", "", "", "", "", strconv.Itoa(g.Shared), "", "", "", "",
@@ -161,6 +161,13 @@ func WriteCSV(w io.Writer, r *Result) error {
 		return fmt.Errorf("report: csv: %w", err)
 	}
 	return nil
+}
+
+func identicalCell(identical bool) string {
+	if identical {
+		return "identical text"
+	}
+	return ""
 }
 
 func safeCell(s string) string {
@@ -257,7 +264,11 @@ func WriteText(w io.Writer, r *Result, opt TextOptions) error {
 		t.heading("Passages of the top pairs")
 		for i := 0; i < min(opt.Passages, len(r.Pairs)); i++ {
 			p := &r.Pairs[i]
-			t.linef("%d. %s  ~  %s", i+1, clean(p.A), clean(p.B))
+			same := ""
+			if p.Identical {
+				same = "  (identical text)"
+			}
+			t.linef("%d. %s  ~  %s%s", i+1, clean(p.A), clean(p.B), same)
 			for k, g := range p.Passages {
 				if k == 2 {
 					t.linef("   … and %s more.", plural(len(p.Passages)-k, "passage"))

@@ -64,7 +64,7 @@ type jsonKeys struct {
 	document struct{ path, format, encoding, words, units, reused, notes string }
 	skipped  struct{ path, reason string }
 	common   struct{ text, documents, countedIn string }
-	pair     struct{ a, b, shared, coverageA, coverageB, jaccard, score, passages string }
+	pair     struct{ a, b, shared, coverageA, coverageB, jaccard, score, identical, passages string }
 	passage  struct{ aStart, aEnd, bStart, bEnd, aLine, bLine, aWhere, bWhere, units, words, text string }
 	group    struct{ documents, shared string }
 	cluster  struct{ documents string }
@@ -114,7 +114,8 @@ func newJSONEncoder(w io.Writer, indent bool) *jsonEncoder {
 	k.common.text, k.common.documents, k.common.countedIn = first(d, "text"), next(d, "documents"), next(d, "counted_in")
 	k.pair.a, k.pair.b, k.pair.shared = first(d, "a"), next(d, "b"), next(d, "shared")
 	k.pair.coverageA, k.pair.coverageB = next(d, "coverage_a"), next(d, "coverage_b")
-	k.pair.jaccard, k.pair.score, k.pair.passages = next(d, "jaccard"), next(d, "score"), next(d, "passages")
+	k.pair.jaccard, k.pair.score, k.pair.identical = next(d, "jaccard"), next(d, "score"), next(d, "identical")
+	k.pair.passages = next(d, "passages")
 	k.group.documents, k.group.shared = first(d, "documents"), next(d, "shared")
 	k.cluster.documents = first(d, "documents")
 
@@ -327,6 +328,8 @@ func (e *jsonEncoder) pairFields(v *Pair) {
 	e.float(v.Jaccard)
 	e.put(k.score)
 	e.float(v.Score)
+	e.put(k.identical)
+	e.bool(v.Identical)
 	e.put(k.passages)
 	jsonObjects(e, jsonRecordDepth, v.Passages, (*jsonEncoder).passageFields)
 }
@@ -395,6 +398,8 @@ func (e *jsonEncoder) int(n int) { e.buf = strconv.AppendInt(e.buf, int64(n), 10
 func (e *jsonEncoder) float(f float64) { e.buf = jsonFloat(e.buf, f) }
 
 func (e *jsonEncoder) str(s string) { e.buf = jsonString(e.buf, s) }
+
+func (e *jsonEncoder) bool(b bool) { e.buf = strconv.AppendBool(e.buf, b) }
 
 func (e *jsonEncoder) maybeFlush() {
 	if len(e.buf) >= jsonChunk {

@@ -179,6 +179,7 @@ type Pair struct {
 	CoverageB float64   `json:"coverage_b"`
 	Jaccard   float64   `json:"jaccard"`
 	Score     float64   `json:"score"`
+	Identical bool      `json:"identical"` // the two extracted texts are the same: every score is 1
 	Passages  []Passage `json:"passages"`
 }
 
@@ -235,6 +236,11 @@ type Doc struct {
 	Units     []shingle.Unit
 	UnitCount int           // units, when Units is not given; ignored when it is
 	Marks     []corpus.Mark // pages, chapters, paragraphs; none for line-based formats
+	// Digest is a 64-bit hash of the extracted text (0: not known): two
+	// documents with the same nonzero Digest and Size hold the same text,
+	// which the report says (a note, and Pair.Identical with scores of 1).
+	Digest uint64
+	Size   int // bytes of extracted text, with Digest
 }
 
 // unitCount is the number of units the document was split into.
@@ -374,6 +380,13 @@ func Build(in Input) (*Result, error) {
 			if errs[gi] = alignPair(&r.pair, &r.aSpans, &r.bSpans, in.Chaining, a, b, int(ep.Shared)); errs[gi] != nil {
 				return
 			}
+			if sameText(&in.Docs[ep.A], &in.Docs[ep.B]) {
+				// The same text is the same text, whatever units some
+				// of it gave (a sentence cut at the byte limit, a
+				// unit set aside): both coverages are whole.
+				p := &r.pair
+				p.Identical, p.CoverageA, p.CoverageB, p.Jaccard, p.Score = true, 1, 1, 1, 1
+			}
 		}
 	})
 	if err := errors.Join(errs...); err != nil {
@@ -420,6 +433,7 @@ func Build(in Input) (*Result, error) {
 		return nil, err
 	}
 
+	twins := identicalTexts(in.Docs)
 	totalUnits, totalWords := 0, 0
 	for i := range in.Docs {
 		d := &in.Docs[i]
@@ -434,6 +448,9 @@ func Build(in Input) (*Result, error) {
 		}
 		if in.Load == nil {
 			res.Texts[i] = SourceText{Text: d.Text}
+		}
+		if same := twins[i]; len(same) > 0 {
+			res.Documents[i].Notes = append(res.Documents[i].Notes, identicalNote(same, in.Docs))
 		}
 		totalUnits += d.unitCount()
 		totalWords += d.Words
@@ -544,6 +561,55 @@ func CommonWords(common []Common) int {
 // CommonShare is CommonWords(common) as a share of words, rounded as
 // every fraction is (Summary.CommonShare).
 func CommonShare(common []Common, words int) float64 { return fraction(CommonWords(common), words) }
+
+// sameText reports whether two documents are known to hold the same text.
+func sameText(a, b *Doc) bool {
+	return a.Digest != 0 && a.Digest == b.Digest && a.Size == b.Size
+}
+
+// identicalTexts maps each document whose text another one also holds to
+// those others, in document order.
+func identicalTexts(docs []Doc) map[int][]int {
+	type key struct {
+		digest uint64
+		size   int
+	}
+	byText := map[key][]int{}
+	for i := range docs {
+		if docs[i].Digest != 0 {
+			k := key{docs[i].Digest, docs[i].Size}
+			byText[k] = append(byText[k], i)
+		}
+	}
+	twins := map[int][]int{}
+	for _, ids := range byText {
+		if len(ids) < 2 {
+			continue
+		}
+		for _, i := range ids {
+			for _, j := range ids {
+				if j != i {
+					twins[i] = append(twins[i], j)
+				}
+			}
+		}
+	}
+	return twins
+}
+
+// identicalNote names up to three of the documents holding the same text.
+func identicalNote(same []int, docs []Doc) string {
+	const named = 3
+	names := make([]string, 0, named)
+	for _, j := range same[:min(len(same), named)] {
+		names = append(names, docs[j].Path)
+	}
+	note := "identical text to " + strings.Join(names, ", ")
+	if len(same) > named {
+		note += fmt.Sprintf(" and %d more", len(same)-named)
+	}
+	return note
+}
 
 // commonNote says how much of a document is common text, and what became
 // of it.

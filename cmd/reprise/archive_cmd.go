@@ -5,6 +5,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"github.com/cespare/xxhash/v2"
 	"io"
 	"os"
 	"runtime"
@@ -572,7 +573,8 @@ func checkAgainst(ar *archive.Archive, docs []corpus.Document, skipped []corpus.
 		}
 		all = append(all, entry{
 			doc: report.Doc{Path: archivedName(d.Path), Format: d.Format, Encoding: d.Encoding, Notes: notes,
-				Text: d.Text, Words: d.Words, Units: d.UnitList, Marks: d.Marks},
+				Text: d.Text, Words: d.Words, Units: d.UnitList, Marks: d.Marks,
+				Digest: xxhash.Sum64String(d.Text), Size: len(d.Text)},
 			set: set, isRef: true, batch: -1, id: int64(d.ID), mostly: mostly,
 		})
 	}

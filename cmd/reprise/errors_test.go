@@ -2,8 +2,10 @@ package main
 
 import (
 	"bytes"
+	"fmt"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 )
@@ -44,5 +46,36 @@ func TestErrorsNotSilence(t *testing.T) {
 	}
 	if _, err := os.Stat(missing); err == nil {
 		t.Fatalf("%s was created", missing)
+	}
+}
+
+// TestIdenticalTextsScoreWhole: two files with the same text are marked
+// identical and score exactly 1 both ways, although some of their text
+// gives no unit (short lines, and a run-on line longer than the sentence
+// byte limit); each notes the other.
+func TestIdenticalTextsScoreWhole(t *testing.T) {
+	dir := t.TempDir()
+	var b strings.Builder
+	b.WriteString("Title\n\nThe committee met on a wet Tuesday to settle the budget for the spring term. ")
+	b.WriteString("Every member brought figures from their own department and a list of requests. ")
+	b.WriteString("Short one.\n")
+	for i := range 400 {
+		fmt.Fprintf(&b, "item %d and ", i) // one sentence far over the byte limit
+	}
+	b.WriteString("the end.\n")
+	writeFile(t, filepath.Join(dir, "a.txt"), b.String())
+	writeFile(t, filepath.Join(dir, "b.txt"), b.String())
+	res := scanJSON(t, exitOK, dir)
+	if len(res.Pairs) != 1 {
+		t.Fatalf("%d pairs, want 1", len(res.Pairs))
+	}
+	p := res.Pairs[0]
+	if !p.Identical || p.CoverageA != 1 || p.CoverageB != 1 || p.Score != 1 || p.Jaccard != 1 {
+		t.Fatalf("pair %+v: want identical with every score 1", p)
+	}
+	for _, d := range res.Documents {
+		if !slices.ContainsFunc(d.Notes, func(n string) bool { return strings.HasPrefix(n, "identical text to ") }) {
+			t.Errorf("%s: notes %q", d.Path, d.Notes)
+		}
 	}
 }

@@ -192,6 +192,7 @@ func scan(cfg scanConfig) (*report.Result, error) {
 		rin.Docs[i] = report.Doc{
 			Path: d.Path, Format: d.Format, Encoding: d.Encoding, Notes: g.notes,
 			Words: int(g.words), UnitCount: int(g.units), Marks: d.Marks,
+			Digest: g.sum, Size: g.size,
 		}
 	}
 	for i, s := range skipped {
@@ -446,6 +447,7 @@ func reportDoc(d corpus.Document, units []shingle.Unit, st shingle.Stats, effect
 	return report.Doc{
 		Path: d.Path, Format: d.Format, Encoding: d.Encoding, Notes: splitNotes(d.Notes, st, d.Text, effective),
 		Text: d.Text, Words: st.Words, Units: units, Marks: d.Marks,
+		Digest: xxhash.Sum64String(d.Text), Size: len(d.Text),
 	}
 }
 
