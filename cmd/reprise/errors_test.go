@@ -79,3 +79,40 @@ func TestIdenticalTextsScoreWhole(t *testing.T) {
 		}
 	}
 }
+
+// TestEarlierReportsAreNotDocuments: reports written with -o into the
+// scanned folder, in every format, are skipped with their reason by the
+// next scan, which then finds what the first one found.
+func TestEarlierReportsAreNotDocuments(t *testing.T) {
+	dir := t.TempDir()
+	entries, err := os.ReadDir("../../testdata/demo")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, e := range entries {
+		raw, err := os.ReadFile(filepath.Join("../../testdata/demo", e.Name()))
+		if err != nil {
+			t.Fatal(err)
+		}
+		writeFile(t, filepath.Join(dir, e.Name()), string(raw))
+	}
+	first := scanJSON(t, exitOK, dir)
+	for _, f := range []string{"json", "ndjson", "csv", "text", "html"} {
+		var out, errs bytes.Buffer
+		if code := run([]string{"scan", "-q", "--format", f, "-o", filepath.Join(dir, "report."+f), dir}, &out, &errs); code != exitOK {
+			t.Fatalf("%s: exit %d: %s", f, code, errs.String())
+		}
+	}
+	again := scanJSON(t, exitOK, dir)
+	if len(again.Documents) != len(first.Documents) || len(again.Pairs) != len(first.Pairs) {
+		t.Fatalf("%d documents and %d pairs, want %d and %d", len(again.Documents), len(again.Pairs), len(first.Documents), len(first.Pairs))
+	}
+	if len(again.Skipped) != 5 {
+		t.Fatalf("skipped %v, want the 5 reports", again.Skipped)
+	}
+	for _, s := range again.Skipped {
+		if !strings.HasPrefix(filepath.Base(s.Path), "report.") || !strings.Contains(s.Reason, "report written by reprise") {
+			t.Errorf("skipped %+v", s)
+		}
+	}
+}

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"path/filepath"
 	"slices"
+	"strings"
 	"sync"
 
 	"github.com/cespare/xxhash/v2"
@@ -79,6 +80,7 @@ func scan(cfg scanConfig) (*report.Result, error) {
 	if err := spool.done(); err != nil {
 		return nil, err
 	}
+	docs, digests, skipped = setReportsAside(docs, digests, skipped)
 
 	var templates []corpus.Document
 	if len(cfg.Exclude) > 0 {
@@ -250,6 +252,9 @@ type docDigest struct {
 	units int32 // units in text order
 	spool int64 // where the units are in the run's unitSpool
 	notes []string
+	// report: the text holds the caution every reprise report carries:
+	// an earlier report, not a document (setReportsAside).
+	report bool
 }
 
 // splitterPool lends each reading worker a Splitter and a unit buffer.
@@ -291,7 +296,8 @@ func (p *splitterPool) digest(d *corpus.Document, effective shingle.Options, kee
 	slices.Sort(set)
 	set = slices.Clip(slices.Compact(set))
 	g := docDigest{
-		set: set, sum: xxhash.Sum64String(d.Text), size: len(d.Text),
+		report: isReprisReport(d.Text),
+		set:    set, sum: xxhash.Sum64String(d.Text), size: len(d.Text),
 		words: int32(st.Words), units: int32(len(units)), spool: at,
 		notes: splitNotes(d.Notes, st, d.Text, effective),
 	}
@@ -468,6 +474,47 @@ func splitNotes(readNotes []string, st shingle.Stats, text string, effective shi
 // setTemplatesAside removes from docs every file that is also a template,
 // listing it as skipped, so a prompt kept beside the essays is not compared
 // with them. kept lists the original index of each document kept.
+// isReprisReport reports whether text holds the caution that every report
+// of reprise carries, in any format, with any line wrapping (the text
+// report folds it): near the start of JSON, NDJSON, text reports and of
+// the review page's text, at the end of the CSV. Only the first 64 KiB and
+// the last 4 KiB are searched, and only for the caution's first words
+// unless they are there, so that the check costs nothing next to splitting.
+func isReprisReport(text string) bool {
+	const head, tail = 64 << 10, 4 << 10
+	if len(text) > head+tail {
+		return isReprisReport(text[:head]) || isReprisReport(text[len(text)-tail:])
+	}
+	start := report.Caution[:strings.Index(report.Caution, " for ")]
+	at := strings.Index(text, start)
+	if at < 0 {
+		return false
+	}
+	folded := strings.Join(strings.Fields(text[at:min(len(text), at+2*len(report.Caution))]), " ")
+	return strings.HasPrefix(folded, report.Caution)
+}
+
+// setReportsAside moves the documents that are reports of reprise (an
+// earlier run's -o file inside the scanned folder) to the skipped inputs,
+// with the reason, and renumbers the others.
+func setReportsAside(docs []corpus.Document, digests []docDigest, skipped []corpus.Skipped) ([]corpus.Document, []docDigest, []corpus.Skipped) {
+	if !slices.ContainsFunc(digests, func(g docDigest) bool { return g.report }) {
+		return docs, digests, skipped
+	}
+	k := 0
+	for i := range docs {
+		if digests[i].report {
+			skipped = append(skipped, corpus.Skipped{Path: docs[i].Path, Reason: "a report written by reprise (it holds the report's caution): not read as a document"})
+			continue
+		}
+		docs[k], digests[k] = docs[i], digests[i]
+		docs[k].ID = k
+		k++
+	}
+	slices.SortStableFunc(skipped, func(a, b corpus.Skipped) int { return strings.Compare(a.Path, b.Path) })
+	return docs[:k], digests[:k], skipped
+}
+
 func setTemplatesAside(docs []corpus.Document, skipped []corpus.Skipped, templates []corpus.Document) (_ []corpus.Document, _ []corpus.Skipped, kept []int) {
 	isTemplate := make(map[string]bool, len(templates))
 	for _, t := range templates {
