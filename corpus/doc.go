@@ -29,7 +29,9 @@
 // into its own slot, numbered in walk order. Once the walk and the reads
 // are over, the files are sorted by Path and the same file reached twice
 // (same cleaned absolute path, or same device and inode) is kept once,
-// under the Path that sorts first; the slots are then taken in that order,
+// under the Path that sorts first (another name of the same device and
+// inode, a link, is listed in Skipped as "same file as …", never dropped
+// silently); the slots are then taken in that order,
 // so the result does not depend on the number of workers or their timing.
 // The price of not waiting for the walk: a file reached twice is read
 // twice, and its second reading thrown away. os.ReadDir lists a whole

@@ -36,7 +36,8 @@ type wantDoc struct{ path, file, text string }
 //     sorts first ("./" < "t"), with the ZIP archive, the JSON Lines file,
 //     the hidden file and the binary file in it;
 //   - a hard link "tree/a/hard.txt" to "tree/a-b/orig.txt", walked first,
-//     kept under the other name (where hard links can be made);
+//     kept under the other name and listed as skipped, "same file as …"
+//     (where hard links can be made);
 //   - skipped inputs met by the walk (a hidden folder, hidden files, a
 //     broken symbolic link, a named pipe) and by the reads (an empty file,
 //     a binary file, a hidden ZIP member, a bad JSON line).
@@ -106,7 +107,11 @@ func overlapTree(t *testing.T) (args []string, docs []wantDoc, skipped []Skipped
 
 	if err := os.Link(filepath.FromSlash("tree/a-b/orig.txt"), filepath.FromSlash("tree/a/hard.txt")); err != nil {
 		t.Logf("no hard link here (%v): that case is left out", err)
-	} // kept as ./tree/a-b/orig.txt, already expected
+	} else {
+		// Kept as ./tree/a-b/orig.txt, already expected; the other name
+		// is listed.
+		skipped = append(skipped, Skipped{"tree/a/hard.txt", "same file as ./tree/a-b/orig.txt (read under that name)"})
+	}
 	if err := os.Symlink("nowhere.txt", filepath.FromSlash("tree/broken.txt")); err != nil {
 		t.Logf("no symbolic link here (%v): that case is left out", err)
 	} else {

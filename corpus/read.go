@@ -136,6 +136,11 @@ func ReadEach[T any](paths []string, opt Options, digest func(d *Document) T) ([
 			if e.reason == "" {
 				*results.at(e.seq) = read{}
 			}
+			if e.aliasOf != "" {
+				// Another name of a file read under the name kept (a
+				// symbolic or hard link): listed, never dropped silently.
+				skipped = append(skipped, Skipped{Path: e.display, Reason: "same file as " + e.aliasOf + " (read under that name)"})
+			}
 		case e.reason != "":
 			skipped = append(skipped, Skipped{Path: e.display, Reason: e.reason})
 		default:

@@ -262,12 +262,17 @@ func TestSameFileReachedTwiceIsReadOnce(t *testing.T) {
 		t.Skipf("no hard links here: %v", err)
 	}
 	tests := []struct {
-		name string
-		args []string
-		want []string
+		name    string
+		args    []string
+		want    []string
+		aliases []Skipped
 	}{
-		{"a symbolic link and a hard link to one file give one document", []string{"b", "a"}, []string{"a/essay.txt", "b/other.txt"}},
-		{"the kept path is the first in sort order, not the first argument", []string{"b"}, []string{"b/hard.txt", "b/other.txt"}},
+		{"a symbolic link and a hard link to one file give one document, the other names listed", []string{"b", "a"},
+			[]string{"a/essay.txt", "b/other.txt"},
+			[]Skipped{{"b/hard.txt", "same file as a/essay.txt (read under that name)"}, {"b/link.txt", "same file as a/essay.txt (read under that name)"}}},
+		{"the kept path is the first in sort order, not the first argument", []string{"b"},
+			[]string{"b/hard.txt", "b/other.txt"},
+			[]Skipped{{"b/link.txt", "same file as b/hard.txt (read under that name)"}}},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -275,8 +280,8 @@ func TestSameFileReachedTwiceIsReadOnce(t *testing.T) {
 			if got := docPaths(docs); !slices.Equal(got, tc.want) {
 				t.Errorf("paths = %q, want %q", got, tc.want)
 			}
-			if len(skipped) != 0 {
-				t.Errorf("skipped = %v, want none", skipped)
+			if !slices.Equal(skipped, tc.aliases) {
+				t.Errorf("skipped = %v, want %v", skipped, tc.aliases)
 			}
 		})
 	}

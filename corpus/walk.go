@@ -34,7 +34,8 @@ type entry struct {
 	reason  string
 	seq     int  // for a candidate: how many candidates the walk found before it
 	hasID   bool // dev and ino are known
-	dup     bool // the same file under a display path that sorts earlier
+	dup     bool   // the same file under a display path that sorts earlier
+	aliasOf string // for a dup reached under another absolute path (a link): the display path kept
 }
 
 // A walker collects entries from the arguments, in walk order. When found
@@ -237,11 +238,13 @@ func (w *walker) sortAndDedupe() {
 		}
 		return compareUint(es[a].ino, es[b].ino)
 	})
-	for k := 1; k < len(idx); k++ {
-		p, c := &es[idx[k-1]], &es[idx[k]]
+	for k, first := 1, 0; k < len(idx); k++ {
+		p, c := &es[idx[first]], &es[idx[k]]
 		if p.dev == c.dev && p.ino == c.ino {
-			c.dup = true
+			c.dup, c.aliasOf = true, p.display
+			continue
 		}
+		first = k
 	}
 }
 
