@@ -32,8 +32,8 @@ type entry struct {
 	dev     uint64
 	ino     uint64
 	reason  string
-	seq     int  // for a candidate: how many candidates the walk found before it
-	hasID   bool // dev and ino are known
+	seq     int    // for a candidate: how many candidates the walk found before it
+	hasID   bool   // dev and ino are known
 	dup     bool   // the same file under a display path that sorts earlier
 	aliasOf string // for a dup reached under another absolute path (a link): the display path kept
 }
