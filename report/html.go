@@ -79,8 +79,12 @@ const (
 
 // HTMLOptions shape the HTML page.
 type HTMLOptions struct {
-	Pairs int // top pairs with a detail view (0 means DefaultHTMLPairs; negative means none)
+	Pairs  int // top pairs with a detail view (0 means DefaultHTMLPairs; negative means none)
+	Groups int // groups listed (0 means DefaultHTMLGroups); the JSON lists all
 }
+
+// DefaultHTMLGroups is the number of groups the page lists by default.
+const DefaultHTMLGroups = 200
 
 func (o HTMLOptions) detailed(total int) int {
 	n := o.Pairs
@@ -155,6 +159,8 @@ type page struct {
 	Docs       []docRow
 	Quiet      int // documents in no reported pair
 	Noted      []Document
+	Groups     []Group // the groups listed (HTMLOptions.Groups)
+	MoreGroups int
 	Near       []nearView
 	NearLine   string // the summary's line on near-copies
 	Hist       histogram
@@ -241,6 +247,12 @@ func buildPage(r *Result, opt HTMLOptions) *page {
 		Noted:    notedDocuments(r),
 	}
 	p.Undetailed = len(r.Pairs) - p.Detailed
+	groups := opt.Groups
+	if groups <= 0 {
+		groups = DefaultHTMLGroups
+	}
+	p.Groups = r.Groups[:min(groups, len(r.Groups))]
+	p.MoreGroups = len(r.Groups) - len(p.Groups)
 	for k := range r.NearCopies {
 		set := &r.NearCopies[k]
 		shown := set.Documents[:min(len(set.Documents), htmlMaxNearCopies)]

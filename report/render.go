@@ -36,7 +36,7 @@ func Write(w io.Writer, r *Result, format string, opt TextOptions) error {
 	case "csv":
 		return WriteCSV(w, r)
 	case "html":
-		return WriteHTML(w, r, HTMLOptions{Pairs: opt.HTMLPairs})
+		return WriteHTML(w, r, HTMLOptions{Pairs: opt.HTMLPairs, Groups: opt.Top})
 	}
 	return fmt.Errorf("report: unknown format %q (want one of %s)", format, strings.Join(Formats, ", "))
 }
@@ -282,7 +282,11 @@ func WriteText(w io.Writer, r *Result, opt TextOptions) error {
 
 	if len(r.Groups) > 0 {
 		t.heading("Groups")
-		for _, g := range r.Groups {
+		for k, g := range r.Groups {
+			if k == opt.Top {
+				t.linef("… and %d more groups (--top N shows more; --format json lists all).", len(r.Groups)-k)
+				break
+			}
 			t.linef("%d documents share %s:", len(g.Documents), plural(g.Shared, r.Settings.Unit))
 			for _, d := range g.Documents {
 				t.linef("   %s", clean(d))
