@@ -170,7 +170,8 @@ type Common struct {
 	CountedIn int    `json:"counted_in"`
 }
 
-// Pair is two documents that share passages; A sorts before B.
+// Pair is two documents that share passages; A sorts before B, unless
+// Input.SideA puts a reference or archived document on side A.
 type Pair struct {
 	A         string    `json:"a"`
 	B         string    `json:"b"`
@@ -264,6 +265,11 @@ type Input struct {
 	Settings  Settings
 	Chaining  *Chaining // word units: passages chained across gaps (chain.go); nil for sentences
 	Jobs      int       // pairs aligned at once (0 or 1: one at a time); the result is the same for every value
+	// SideA, when set, names the documents that are side A of every pair
+	// with a document it does not name (compare's references, the
+	// archived documents), whatever their order; in other pairs A is the
+	// document with the lower index.
+	SideA func(id int) bool
 	// NearCopyPairs bounds the pairs listed for one set of near-copies
 	// (0 means DefaultNearCopyPairs, -1 means all): a set with more pairs
 	// lists only the representative's pairs with the members least like
@@ -377,7 +383,11 @@ func Build(in Input) (*Result, error) {
 			}
 			r := &rankedPairs[k]
 			r.a, r.b = ep.A, ep.B
-			if errs[gi] = alignPair(&r.pair, &r.aSpans, &r.bSpans, in.Chaining, a, b, int(ep.Shared)); errs[gi] != nil {
+			first, second := a, b
+			if in.SideA != nil && in.SideA(int(ep.B)) && !in.SideA(int(ep.A)) {
+				r.a, r.b, first, second = ep.B, ep.A, b, a
+			}
+			if errs[gi] = alignPair(&r.pair, &r.aSpans, &r.bSpans, in.Chaining, first, second, int(ep.Shared)); errs[gi] != nil {
 				return
 			}
 			if sameText(&in.Docs[ep.A], &in.Docs[ep.B]) {

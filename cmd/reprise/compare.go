@@ -126,6 +126,9 @@ func runCompare(args []string, stdout, stderr io.Writer) int {
 	if len(masters) > 0 {
 		cfg.KeepText = func(path string) bool { return underAny(path, masters) }
 	}
+	// The reference is side A of its pairs, as the archived document is in
+	// archive check: the same pair reads the same way in both.
+	cfg.SideA = func(path string) bool { return underAny(path, refs) }
 	refsRead, newRead := 0, 0
 	cfg.KeepPairs = func(docs []corpus.Document, eng *pairs.Result) {
 		isRef := make([]bool, len(docs))

@@ -558,3 +558,51 @@ func TestCompareFilesFromListsNewDocuments(t *testing.T) {
 		})
 	}
 }
+
+// TestCompareAndArchiveAgree: the same pairs read the same way in compare
+// and in archive check: the reference (archived) side is A, and every
+// figure of the pair, longest passage included, is the same.
+func TestCompareAndArchiveAgree(t *testing.T) {
+	// The references in a folder whose path sorts after the new
+	// documents' ("/tmp/…" after "../…"), so that path order alone would
+	// put them on side B.
+	demo := "../../testdata/demo"
+	sources := t.TempDir()
+	entries, err := os.ReadDir("../../testdata/demo-sources")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, e := range entries {
+		raw, err := os.ReadFile(filepath.Join("../../testdata/demo-sources", e.Name()))
+		if err != nil {
+			t.Fatal(err)
+		}
+		writeFile(t, filepath.Join(sources, e.Name()), string(raw))
+	}
+	cmp := compareNDJSON(t, "--against", sources, demo)
+	arch := filepath.Join(t.TempDir(), "archive")
+	if code, _, e := runCLI(t, "archive", "--archive", arch, "add", "-q", sources); code != exitOK {
+		t.Fatalf("add: %s", e)
+	}
+	code, out, e := runCLI(t, "archive", "--archive", arch, "check", "-q", "--format", "json", demo)
+	if code != exitOK {
+		t.Fatalf("check: %s", e)
+	}
+	var res report.Result
+	if err := json.Unmarshal([]byte(out), &res); err != nil {
+		t.Fatal(err)
+	}
+	if len(cmp.pairs) == 0 || len(cmp.pairs) != len(res.Pairs) {
+		t.Fatalf("compare %d pairs, archive check %d", len(cmp.pairs), len(res.Pairs))
+	}
+	for i, p := range cmp.pairs {
+		q := res.Pairs[i]
+		if !strings.HasPrefix(p.A, sources) || q.A != "archive:"+p.A || q.B != p.B {
+			t.Errorf("pair %d: compare %s ~ %s, archive check %s ~ %s", i, p.A, p.B, q.A, q.B)
+		}
+		if p.Score != q.Score || p.CoverageA != q.CoverageA || p.CoverageB != q.CoverageB || p.Shared != q.Shared || p.LongestWords() != q.LongestWords() {
+			t.Errorf("pair %d figures: compare %v/%v/%v/%d/%d, archive %v/%v/%v/%d/%d", i,
+				p.Score, p.CoverageA, p.CoverageB, p.Shared, p.LongestWords(), q.Score, q.CoverageA, q.CoverageB, q.Shared, q.LongestWords())
+		}
+	}
+}

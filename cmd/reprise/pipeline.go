@@ -35,6 +35,9 @@ type scanConfig struct {
 	// corpus.Document handed to KeepPairs (compare's masters); the others'
 	// texts are dropped once split.
 	KeepText func(path string) bool
+	// SideA, when set, names the documents that are side A of their pairs
+	// with documents it does not name (compare's references).
+	SideA func(path string) bool
 	// TextPairs: the texts of the documents of the first TextPairs ranked
 	// pairs are given in the Result (the HTML page's side-by-side views).
 	TextPairs int
@@ -173,6 +176,7 @@ func scan(cfg scanConfig) (*report.Result, error) {
 		Jobs:          cfg.Jobs,
 		Load:          store.load,
 		NearCopyPairs: cfg.NearPairs,
+		SideA:         sideA(cfg.SideA, docs),
 		Settings: report.Settings{
 			Version:      version,
 			Unit:         "sentence",
@@ -445,6 +449,14 @@ func fingerprintSets(units [][]shingle.Unit) [][]uint64 {
 		sets[i] = slices.Compact(set)
 	}
 	return sets
+}
+
+// sideA turns a test on paths into report.Input.SideA (nil for nil).
+func sideA(byPath func(string) bool, docs []corpus.Document) func(int) bool {
+	if byPath == nil {
+		return nil
+	}
+	return func(id int) bool { return byPath(docs[id].Path) }
 }
 
 // reportDoc is a document as the report needs it, with the notes on how it
