@@ -265,6 +265,9 @@ type Input struct {
 	Settings  Settings
 	Chaining  *Chaining // word units: passages chained across gaps (chain.go); nil for sentences
 	Jobs      int       // pairs aligned at once (0 or 1: one at a time); the result is the same for every value
+	// Progress, when set, is told after each pair aligned how many of how
+	// many are (from up to Jobs goroutines at once).
+	Progress func(done, total int)
 	// SideA, when set, names the documents that are side A of every pair
 	// with a document it does not name (compare's references, the
 	// archived documents), whatever their order; in other pairs A is the
@@ -366,6 +369,7 @@ func Build(in Input) (*Result, error) {
 		aSpans, bSpans []span
 	}
 	rankedPairs := make([]ranked, len(enginePairs))
+	var alignedPairs atomic.Int64
 	groups := runsBy(len(enginePairs), func(k int) uint32 { return enginePairs[k].A })
 	errs := make([]error, len(groups))
 	parallel(len(groups), in.Jobs, func(gi int) {
@@ -389,6 +393,9 @@ func Build(in Input) (*Result, error) {
 			}
 			if errs[gi] = alignPair(&r.pair, &r.aSpans, &r.bSpans, in.Chaining, first, second, int(ep.Shared)); errs[gi] != nil {
 				return
+			}
+			if in.Progress != nil {
+				in.Progress(int(alignedPairs.Add(1)), len(enginePairs))
 			}
 			if sameText(&in.Docs[ep.A], &in.Docs[ep.B]) {
 				// The same text is the same text, whatever units some

@@ -11,6 +11,9 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"sync"
+	"sync/atomic"
+	"time"
 )
 
 // writeOutput runs render into standard output, or into a temporary file
@@ -110,14 +113,18 @@ func isTerminal(w io.Writer) bool {
 	return err == nil && fi.Mode()&os.ModeCharDevice != 0
 }
 
-// progress shows one rewritable status line on a terminal.
+// progress shows one rewritable status line on a terminal. show may be
+// called from several goroutines.
 type progress struct {
+	mu    sync.Mutex
 	w     io.Writer
 	width int
 }
 
 func (p *progress) show(format string, args ...any) {
 	line := fmt.Sprintf(format, args...) + "…"
+	p.mu.Lock()
+	defer p.mu.Unlock()
 	pad := max(0, p.width-len(line))
 	fmt.Fprintf(p.w, "\r%s%s", line, strings.Repeat(" ", pad))
 	p.width = len(line)
@@ -125,11 +132,70 @@ func (p *progress) show(format string, args ...any) {
 
 // done clears the status line; it is safe on a nil progress.
 func (p *progress) done() {
-	if p == nil || p.width == 0 {
+	if p == nil {
+		return
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	if p.width == 0 {
 		return
 	}
 	fmt.Fprintf(p.w, "\r%s\r", strings.Repeat(" ", p.width))
 	p.width = 0
+}
+
+// counter reports the progress of one stage through show: done of total
+// (total 0: not known) with, once a second has passed, an estimate of the
+// time left. It shows at most ten lines a second, whatever the rate of
+// calls, and is safe from several goroutines.
+type counter struct {
+	show  func(format string, args ...any)
+	label string
+	total atomic.Int64 // 0: not known
+	start time.Time
+	done  atomic.Int64
+	last  atomic.Int64 // unix nanoseconds of the last line shown
+}
+
+func newCounter(show func(string, ...any), label string, total int) *counter {
+	c := &counter{show: show, label: label, start: time.Now()}
+	c.total.Store(int64(total))
+	show("%s", c.line(0, 0))
+	return c
+}
+
+// add counts n more done.
+func (c *counter) add(n int) { c.report(c.done.Add(int64(n))) }
+
+// at says that done of total are done.
+func (c *counter) at(done, total int) {
+	c.total.Store(int64(total))
+	c.report(int64(done))
+}
+
+func (c *counter) report(done int64) {
+	now := time.Now()
+	last := c.last.Load()
+	if now.UnixNano()-last < int64(100*time.Millisecond) && done != c.total.Load() {
+		return
+	}
+	if !c.last.CompareAndSwap(last, now.UnixNano()) {
+		return
+	}
+	c.show("%s", c.line(done, now.Sub(c.start)))
+}
+
+func (c *counter) line(done int64, elapsed time.Duration) string {
+	total := c.total.Load()
+	if total <= 0 {
+		return fmt.Sprintf("%s: %d", c.label, done)
+	}
+	line := fmt.Sprintf("%s: %d of %d (%d%%)", c.label, done, total, 100*done/total)
+	if elapsed >= time.Second && done > 0 && done < total {
+		left := time.Duration(float64(elapsed) * float64(total-done) / float64(done))
+		line += ", about " + left.Round(time.Second).String() + " left"
+	}
+	return line
 }
 
 // checkOutputDir fails when the folder of the -o FILE does not exist (or is

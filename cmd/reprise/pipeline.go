@@ -67,7 +67,7 @@ func scan(cfg scanConfig) (*report.Result, error) {
 	splitOpt := cfg.Shingle
 	effective := shingle.New(splitOpt).Options()
 
-	progress("reading and splitting %d inputs", len(cfg.Paths))
+	read := newCounter(progress, "reading and splitting: documents read", 0)
 	splitters := newSplitterPool(splitOpt)
 	spool, err := newUnitSpool(cfg.Pairs.TempDir)
 	if err != nil {
@@ -75,7 +75,9 @@ func scan(cfg scanConfig) (*report.Result, error) {
 	}
 	defer spool.close()
 	docs, digests, skipped, err := corpus.ReadEach(cfg.Paths, cfg.Corpus, func(d *corpus.Document) docDigest {
-		return splitters.digest(d, effective, cfg.KeepText, spool)
+		g := splitters.digest(d, effective, cfg.KeepText, spool)
+		read.add(1)
+		return g
 	})
 	if err != nil {
 		return nil, err
@@ -165,7 +167,7 @@ func scan(cfg scanConfig) (*report.Result, error) {
 		return nil, err
 	}
 
-	progress("aligning %d pairs", len(eng.Pairs))
+	aligned := newCounter(progress, "aligning pairs", 0)
 	rin := report.Input{
 		Docs:          make([]report.Doc, len(docs)),
 		Skipped:       make([]report.Skipped, len(skipped)),
@@ -176,6 +178,7 @@ func scan(cfg scanConfig) (*report.Result, error) {
 		Jobs:          cfg.Jobs,
 		Load:          store.load,
 		NearCopyPairs: cfg.NearPairs,
+		Progress:      aligned.at,
 		SideA:         sideA(cfg.SideA, docs),
 		Settings: report.Settings{
 			Version:      version,
