@@ -638,6 +638,14 @@ func commonNote(sh pairs.CommonShare, maxDocs int, unit string) string {
 	return share + " and were set aside as common text (--max-docs)"
 }
 
+// ListedPairs returns the engine pairs Build aligns and lists for the
+// given Input.NearCopyPairs, in the engine's order: the documents a caller
+// must be able to load are theirs (and the first holders of common units).
+func ListedPairs(eng *pairs.Result, nearCopyPairs int) []pairs.Pair {
+	ps, _ := listedPairs(eng, nearCopyPairs)
+	return ps
+}
+
 // listedPairs returns the engine pairs the report aligns and lists, in the
 // engine's order, and how many of each set of near-copies are among them:
 // every pair, except that a set with more than limit pairs (0: the

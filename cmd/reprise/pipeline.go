@@ -156,8 +156,8 @@ func scan(cfg scanConfig) (*report.Result, error) {
 		progress("counted in %d sorted runs on disk (%d MiB written), %d ranges of pairs", eng.Spill.Runs, eng.Spill.BytesWritten>>20, eng.Spill.Ranges)
 	}
 
-	quoted := quotedDocuments(eng, len(docs))
-	progress("reading again the %d documents of %d pairs", len(quoted), len(eng.Pairs))
+	quoted := quotedDocuments(eng, len(docs), cfg.NearPairs)
+	progress("reading again the %d documents the report quotes", len(quoted))
 	store, err := newQuotedStore(cfg.Pairs.TempDir, quotedFit(cfg.Memory, held, digests, quoted))
 	if err != nil {
 		return nil, err
@@ -317,10 +317,11 @@ func (p *splitterPool) digest(d *corpus.Document, effective shingle.Options, kee
 }
 
 // quotedDocuments lists, sorted, the documents whose text the report
-// quotes: both of every pair, and the first holder of each common unit.
-func quotedDocuments(eng *pairs.Result, n int) []int {
+// quotes: both of every pair it lists (report.ListedPairs), and the first
+// holder of each common unit.
+func quotedDocuments(eng *pairs.Result, n, nearCopyPairs int) []int {
 	want := make([]bool, n)
-	for _, p := range eng.Pairs {
+	for _, p := range report.ListedPairs(eng, nearCopyPairs) {
 		want[p.A], want[p.B] = true, true
 	}
 	for _, c := range eng.Common {
