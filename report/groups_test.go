@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"strings"
 	"testing"
+
+	"reprise/pairs"
 )
 
 // TestGroupsLimitedByTop: the text and the page list at most --top groups
@@ -33,6 +35,35 @@ func TestGroupsLimitedByTop(t *testing.T) {
 		}
 		if listed != want || !strings.Contains(out, more) {
 			t.Errorf("%s: %d groups listed, want %d, and %q", format, listed, want, more)
+		}
+	}
+}
+
+// TestPassageTextCut: a passage longer than PassageText quotes its first
+// bytes, cut at a word, and keeps the whole passage's offsets and words;
+// -1 quotes it whole.
+func TestPassageTextCut(t *testing.T) {
+	var sentences []string
+	for k := range 40 {
+		sentences = append(sentences, fmt.Sprintf("s%d:Sentence number %d of the long shared passage here.", k, k))
+	}
+	a, b := doc("a.txt", sentences...), doc("b.txt", sentences...)
+	eng := &pairs.Result{Pairs: []pairs.Pair{{A: 0, B: 1, Shared: 40}}}
+	for _, limit := range []int{100, -1} {
+		res, err := Build(Input{Docs: []Doc{a, b}, Engine: eng, PassageText: limit})
+		if err != nil {
+			t.Fatal(err)
+		}
+		g := res.Pairs[0].Passages[0]
+		whole := a.Text[g.AStart:g.AEnd]
+		if g.AEnd-g.AStart != len(a.Text) || g.Words != a.Words {
+			t.Fatalf("limit %d: offsets %d-%d, %d words; want the whole text", limit, g.AStart, g.AEnd, g.Words)
+		}
+		switch {
+		case limit > 0 && (!g.TextCut || len(g.Text) > limit || !strings.HasPrefix(whole, g.Text) || strings.HasSuffix(g.Text, " ")):
+			t.Fatalf("limit %d: text %q (cut %v)", limit, g.Text, g.TextCut)
+		case limit < 0 && (g.TextCut || g.Text != whole):
+			t.Fatalf("limit -1: text cut %v, %d bytes of %d", g.TextCut, len(g.Text), len(whole))
 		}
 	}
 }

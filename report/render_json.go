@@ -65,7 +65,7 @@ type jsonKeys struct {
 	skipped  struct{ path, reason string }
 	common   struct{ text, documents, countedIn string }
 	pair     struct{ a, b, shared, coverageA, coverageB, jaccard, score, identical, passages string }
-	passage  struct{ aStart, aEnd, bStart, bEnd, aLine, bLine, aWhere, bWhere, units, words, text string }
+	passage  struct{ aStart, aEnd, bStart, bEnd, aLine, bLine, aWhere, bWhere, units, words, text, textCut string }
 	group    struct{ documents, shared string }
 	cluster  struct{ documents string }
 }
@@ -125,6 +125,7 @@ func newJSONEncoder(w io.Writer, indent bool) *jsonEncoder {
 	k.passage.aLine, k.passage.bLine = next(d, "a_line"), next(d, "b_line")
 	k.passage.aWhere, k.passage.bWhere = next(d, "a_where"), next(d, "b_where")
 	k.passage.units, k.passage.words, k.passage.text = next(d, "units"), next(d, "words"), next(d, "text")
+	k.passage.textCut = next(d, "text_cut")
 	return e
 }
 
@@ -358,6 +359,8 @@ func (e *jsonEncoder) passageFields(v *Passage) {
 	e.int(v.Words)
 	e.put(k.text)
 	e.str(v.Text)
+	e.put(k.textCut)
+	e.bool(v.TextCut)
 }
 
 func (e *jsonEncoder) groupFields(v *Group) {

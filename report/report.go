@@ -10,6 +10,7 @@ import (
 	"strings"
 	"sync"
 	"sync/atomic"
+	"unicode/utf8"
 
 	"reprise/corpus"
 	"reprise/pairs"
@@ -199,6 +200,10 @@ type Passage struct {
 	Units  int    `json:"units"`
 	Words  int    `json:"words"`
 	Text   string `json:"text"`
+	// TextCut: Text is the passage's first Input.PassageText bytes (cut
+	// at a word), not all of it; the offsets and Words are the whole
+	// passage's.
+	TextCut bool `json:"text_cut"`
 }
 
 // Group is a maximal set of three or more documents that all share Shared units.
@@ -268,6 +273,10 @@ type Input struct {
 	// Progress, when set, is told after each pair aligned how many of how
 	// many are (from up to Jobs goroutines at once).
 	Progress func(done, total int)
+	// PassageText bounds the bytes of a passage's Text (0 means
+	// DefaultPassageText, -1 no bound): a passage of a megabyte (two
+	// copies of a generated file) would make a report nobody can open.
+	PassageText int
 	// SideA, when set, names the documents that are side A of every pair
 	// with a document it does not name (compare's references, the
 	// archived documents), whatever their order; in other pairs A is the
@@ -283,6 +292,27 @@ type Input struct {
 	// report quotes, which Docs then leave out (UnitCount gives their
 	// number); Result.Texts is then left for the caller to fill.
 	Load Loader
+}
+
+// DefaultPassageText is the bytes of a passage's text a report quotes when
+// Input.PassageText is 0.
+const DefaultPassageText = 4096
+
+// cutText returns s, or when it is longer than limit bytes (limit > 0) its
+// start up to the last space within limit (or a rune boundary when there
+// is none), and whether it was cut.
+func cutText(s string, limit int) (string, bool) {
+	if limit < 0 || len(s) <= limit {
+		return s, false
+	}
+	end := limit
+	for end > 0 && !utf8.RuneStart(s[end]) {
+		end--
+	}
+	if sp := strings.LastIndexAny(s[:end], " \n\t"); sp > limit/2 {
+		end = sp
+	}
+	return s[:end], true
 }
 
 // DefaultNearCopyPairs is the number of pairs listed for one set of
@@ -368,6 +398,10 @@ func Build(in Input) (*Result, error) {
 		a, b           uint32
 		aSpans, bSpans []span
 	}
+	textLimit := in.PassageText
+	if textLimit == 0 {
+		textLimit = DefaultPassageText
+	}
 	rankedPairs := make([]ranked, len(enginePairs))
 	var alignedPairs atomic.Int64
 	groups := runsBy(len(enginePairs), func(k int) uint32 { return enginePairs[k].A })
@@ -391,7 +425,7 @@ func Build(in Input) (*Result, error) {
 			if in.SideA != nil && in.SideA(int(ep.B)) && !in.SideA(int(ep.A)) {
 				r.a, r.b, first, second = ep.B, ep.A, b, a
 			}
-			if errs[gi] = alignPair(&r.pair, &r.aSpans, &r.bSpans, in.Chaining, first, second, int(ep.Shared)); errs[gi] != nil {
+			if errs[gi] = alignPair(&r.pair, &r.aSpans, &r.bSpans, in.Chaining, first, second, int(ep.Shared), textLimit); errs[gi] != nil {
 				return
 			}
 			if in.Progress != nil {
@@ -830,7 +864,7 @@ func (in *Input) text(id uint32) (*quoted, error) {
 // alignPair finds the passages of a and b, which share shared units, and
 // fills p with them and its scores; aSpans and bSpans get the passages'
 // byte spans in each document.
-func alignPair(p *Pair, aSpans, bSpans *[]span, ch *Chaining, a, b *quoted, shared int) error {
+func alignPair(p *Pair, aSpans, bSpans *[]span, ch *Chaining, a, b *quoted, shared, textLimit int) error {
 	da, db := a.doc, b.doc
 	da2, db2 := *da, *db
 	da2.Text, da2.Units = a.text, a.units
@@ -848,8 +882,10 @@ func alignPair(p *Pair, aSpans, bSpans *[]span, ch *Chaining, a, b *quoted, shar
 			BStart: int(ub.Start), BEnd: int(lb.End),
 			Units: l.n,
 		}
-		g.Text = strings.Clone(a.text[g.AStart:g.AEnd])
-		g.Words = shingle.CountWords(g.Text)
+		whole := a.text[g.AStart:g.AEnd]
+		g.Words = shingle.CountWords(whole)
+		g.Text, g.TextCut = cutText(whole, textLimit)
+		g.Text = strings.Clone(g.Text)
 		g.ALine = a.lines.line(a.text, g.AStart)
 		g.BLine = b.lines.line(b.text, g.BStart)
 		g.AWhere = where(da.Marks, g.AStart, g.ALine)

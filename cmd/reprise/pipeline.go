@@ -18,19 +18,20 @@ import (
 
 // scanConfig is everything one scan needs, after flag parsing.
 type scanConfig struct {
-	Paths     []string
-	Exclude   []string // template documents: their units never count
-	Corpus    corpus.Options
-	Shingle   shingle.Options
-	Pairs     pairs.Options
-	Jobs      int
-	Progress  func(format string, args ...any) // nil: silent
-	MaxDocsBy string                           // how MaxDocs was chosen, for the report
-	NearPairs int                              // report.Input.NearCopyPairs
-	Memory    int64                            // --memory in bytes, 0: no bound (scale.go)
-	Temp      string                           // --temp: parent of the run's temporary folder
-	Warn      func(format string, args ...any) // nil: silent (scale.go's budget warning)
-	Chaining  *report.Chaining                 // word units: passage chaining (units.go); nil for sentences
+	Paths       []string
+	Exclude     []string // template documents: their units never count
+	Corpus      corpus.Options
+	Shingle     shingle.Options
+	Pairs       pairs.Options
+	Jobs        int
+	Progress    func(format string, args ...any) // nil: silent
+	MaxDocsBy   string                           // how MaxDocs was chosen, for the report
+	NearPairs   int                              // report.Input.NearCopyPairs
+	PassageText int                              // report.Input.PassageText
+	Memory      int64                            // --memory in bytes, 0: no bound (scale.go)
+	Temp        string                           // --temp: parent of the run's temporary folder
+	Warn        func(format string, args ...any) // nil: silent (scale.go's budget warning)
+	Chaining    *report.Chaining                 // word units: passage chaining (units.go); nil for sentences
 	// KeepText, when set, names the documents whose text stays in the
 	// corpus.Document handed to KeepPairs (compare's masters); the others'
 	// texts are dropped once split.
@@ -179,6 +180,7 @@ func scan(cfg scanConfig) (*report.Result, error) {
 		Load:          store.load,
 		NearCopyPairs: cfg.NearPairs,
 		Progress:      aligned.at,
+		PassageText:   cfg.PassageText,
 		SideA:         sideA(cfg.SideA, docs),
 		Settings: report.Settings{
 			Version:      version,

@@ -62,6 +62,7 @@ type scanFlags struct {
 	top         int
 	htmlPairs   int
 	nearPairs   int
+	passageText int
 	jobs        int
 	scale       scaleFlags // --memory, --temp, --files-from, -0 (scale.go)
 	include     []string
@@ -88,6 +89,7 @@ func newScanFlagSet(f *scanFlags, stderr io.Writer) *pflag.FlagSet {
 	fs.IntVar(&f.top, "top", 20, "pairs shown in the text table")
 	fs.IntVar(&f.htmlPairs, "html-pairs", report.DefaultHTMLPairs, "html: the top `N` pairs get a side-by-side view; the rest are in the table only")
 	fs.IntVar(&f.nearPairs, "near-copy-pairs", report.DefaultNearCopyPairs, "a set of near-copies lists at most `N` of its pairs: the representative's with the\nmembers least like it (0: all)")
+	fs.IntVar(&f.passageText, "passage-text", report.DefaultPassageText, "a passage's text in the report is its first `N` bytes (cut at a word; its offsets and\nword count stay the whole passage's; 0: all of it)")
 	fs.IntVar(&f.jobs, "jobs", runtime.NumCPU(), "documents read and split at once, and ranges of pairs counted at once")
 	f.scale.register(fs)
 	fs.StringArrayVar(&f.include, "include", nil, "read only files whose name matches `GLOB` (e.g. '*.txt'); repeatable")
@@ -224,6 +226,9 @@ func (f *scanFlags) config(paths []string) (cfg scanConfig, failOn float64, err 
 	if f.htmlPairs < 0 {
 		return cfg, failOn, fmt.Errorf("--html-pairs must be 0 or more, not %d", f.htmlPairs)
 	}
+	if f.passageText < 0 {
+		return cfg, failOn, fmt.Errorf("--passage-text must be 0 or more, not %d", f.passageText)
+	}
 	if f.nearPairs < 0 {
 		return cfg, failOn, fmt.Errorf("--near-copy-pairs must be 0 or more, not %d", f.nearPairs)
 	}
@@ -257,14 +262,15 @@ func (f *scanFlags) config(paths []string) (cfg scanConfig, failOn float64, err 
 		rule = "set by --max-docs"
 	}
 	cfg = scanConfig{
-		Paths:     paths,
-		Exclude:   f.exclude,
-		Corpus:    formats,
-		Shingle:   shingle.Options{MinWords: f.minWords},
-		Pairs:     pairs.Options{MinShared: f.minShared, MaxDocs: f.maxDocs},
-		Jobs:      f.jobs,
-		MaxDocsBy: rule,
-		NearPairs: nearCopyPairsOption(f.nearPairs),
+		Paths:       paths,
+		Exclude:     f.exclude,
+		Corpus:      formats,
+		Shingle:     shingle.Options{MinWords: f.minWords},
+		Pairs:       pairs.Options{MinShared: f.minShared, MaxDocs: f.maxDocs},
+		Jobs:        f.jobs,
+		MaxDocsBy:   rule,
+		NearPairs:   nearCopyPairsOption(f.nearPairs),
+		PassageText: nearCopyPairsOption(f.passageText),
 	}
 	f.units.apply(&cfg)
 	if err := f.scale.apply(&cfg); err != nil {
@@ -276,8 +282,9 @@ func (f *scanFlags) config(paths []string) (cfg scanConfig, failOn float64, err 
 // defaultMaxDocsRule says how the automatic common-text cap was chosen.
 const defaultMaxDocsRule = "default: half the documents, at least 5, at most 1000; still counted in documents that are mostly common text"
 
-// nearCopyPairsOption maps --near-copy-pairs to report.Input.NearCopyPairs
-// (0 on the command line means all).
+// nearCopyPairsOption maps a count flag whose 0 means no bound
+// (--near-copy-pairs, --passage-text) to the report.Input field, whose 0
+// means the default and -1 no bound.
 func nearCopyPairsOption(n int) int {
 	if n == 0 {
 		return -1
