@@ -29,8 +29,8 @@ import (
 //
 // Text is the subject, a blank line, then the body, with line ends
 // normalised to "\n"; locations are line numbers in that text. Quoted
-// replies (lines starting with ">", after optional spaces) are kept and
-// counted in a Note; with Options.SkipQuotedReplies they are left out and
+// replies (lines starting with ">", after optional spaces) are kept, their
+// ">" marks read as spaces (blankQuoteMarks), and counted in a Note; with Options.SkipQuotedReplies they are left out and
 // the Note says how many lines were. Quoting inside an HTML body
 // (<blockquote>) is not recognised.
 type emailText struct{}
@@ -180,7 +180,8 @@ func (emailText) extract(in *input) (extraction, error) {
 	case quoted > 0 && in.opt.SkipQuotedReplies:
 		notes = append(notes, fmt.Sprintf("%d quoted reply lines (starting with >) left out (--skip-quoted-replies)", quoted))
 	case quoted > 0:
-		notes = append(notes, fmt.Sprintf("%d quoted reply lines (starting with >) kept; --skip-quoted-replies leaves them out", quoted))
+		body, _ = blankQuoteMarks(body)
+		notes = append(notes, fmt.Sprintf("%d quoted reply lines (starting with >) kept, their > marks read as spaces so that they match the text they quote; --skip-quoted-replies leaves them out", quoted))
 	}
 	text := strings.TrimSpace(subject)
 	if strings.TrimSpace(body) != "" {

@@ -156,8 +156,8 @@ func TestEmail(t *testing.T) {
 	}{
 		{"text part preferred; quoted-printable and ISO-8859-1 decoded (RFC 2045 6.7)",
 			message(t, plain, "<p>HTML version</p>"), false,
-			"Loan book \u2013 new rules\n\nThe caf\u00e9 on the pontoon opens at nine.\n\n> Will the store open early on Saturday?\n> It did last year.\nYes, from eight.\n",
-			"2 quoted reply lines (starting with >) kept; --skip-quoted-replies leaves them out"},
+			"Loan book \u2013 new rules\n\nThe caf\u00e9 on the pontoon opens at nine.\n\n  Will the store open early on Saturday?\n  It did last year.\nYes, from eight.\n",
+			"2 quoted reply lines (starting with >) kept, their > marks read as spaces so that they match the text they quote; --skip-quoted-replies leaves them out"},
 		{"quoted replies left out on request",
 			message(t, plain, ""), true,
 			"Loan book \u2013 new rules\n\nThe caf\u00e9 on the pontoon opens at nine.\n\nYes, from eight.\n",

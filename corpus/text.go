@@ -1,6 +1,9 @@
 package corpus
 
-import "unsafe"
+import (
+	"fmt"
+	"unsafe"
+)
 
 // plainText reads any file whose content is text: it is decoded (see
 // decode) and kept as it is, so for UTF-8 files offsets into Text are
@@ -29,5 +32,15 @@ func (plainText) extract(in *input) (extraction, error) {
 	} else {
 		text = string(d.text)
 	}
-	return extraction{Text: text, Encoding: d.encoding, Notes: d.notes()}, nil
+	notes := d.notes()
+	if blanked, n := blankQuoteMarks(text); n >= minQuotedLines {
+		text = blanked
+		notes = append(notes, fmt.Sprintf("%d quoted reply lines (starting with >): their > marks read as spaces so that they match the text they quote", n))
+	}
+	return extraction{Text: text, Encoding: d.encoding, Notes: notes}, nil
 }
+
+// minQuotedLines is the number of lines starting with ">" from which a
+// plain text's quote marks are read as spaces: a quoted reply, not a lone
+// line that happens to start with ">".
+const minQuotedLines = 2

@@ -116,3 +116,29 @@ func TestEarlierReportsAreNotDocuments(t *testing.T) {
 		}
 	}
 }
+
+// TestHardWrappedQuotesMatchTheirOriginal: a reply that quotes a text with
+// "> " on every line, wrapped at other places, shares its sentences with
+// the original in sentence mode, as an e-mail and as a plain text.
+func TestHardWrappedQuotesMatchTheirOriginal(t *testing.T) {
+	dir := t.TempDir()
+	original := "The committee met on a wet Tuesday to settle the budget for the spring term. " +
+		"Every member brought figures from their own department and a long list of requests. " +
+		"The chair asked that each request be justified in writing before the next meeting. " +
+		"Nobody expected the roof repairs to take half of the money.\n"
+	quote := "> The committee met on a wet Tuesday to settle the budget for the\n" +
+		"> spring term. Every member brought figures from their own department\n" +
+		"> and a long list of requests. The chair asked that each request be\n" +
+		"> justified in writing before the next meeting. Nobody expected the roof\n" +
+		"> repairs to take half of the money.\n"
+	writeFile(t, filepath.Join(dir, "original.txt"), original)
+	writeFile(t, filepath.Join(dir, "reply.eml"), "From: a@example.org\nSubject: Re: budget\n\nThanks, see below.\n\n"+quote+"\nRegards, and see you then.\n")
+	writeFile(t, filepath.Join(dir, "notes.txt"), "My notes on the meeting, written afterwards at home.\n\n"+quote)
+	res := scanJSON(t, exitOK, dir)
+	for _, other := range []string{"reply.eml", "notes.txt"} {
+		p := findPair(res, filepath.Join(dir, "original.txt"), filepath.Join(dir, other))
+		if p == nil || p.Shared != 4 || coverageOf(p, filepath.Join(dir, "original.txt")) != 1 {
+			t.Errorf("original ~ %s: %s, want all 4 sentences shared", other, brief(p))
+		}
+	}
+}
