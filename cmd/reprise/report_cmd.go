@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"path/filepath"
 	"slices"
 	"strconv"
 	"strings"
@@ -45,6 +46,7 @@ type reportFlags struct {
 	output    string
 	top       int
 	htmlPairs int
+	root      string
 	help      bool
 }
 
@@ -58,6 +60,7 @@ func runReport(args []string, stdout, stderr io.Writer) int {
 	fs.StringVarP(&f.output, "output", "o", "", "write the report to `FILE` (via a temporary file, then renamed) instead of standard output")
 	fs.IntVar(&f.top, "top", 20, "pairs shown in the text table")
 	fs.IntVar(&f.htmlPairs, "html-pairs", report.DefaultHTMLPairs, "html: the top `N` pairs get a side-by-side view; the rest are in the table only")
+	fs.StringVar(&f.root, "root", "", "html: read the documents again from `DIR`: relative paths in the result are taken\nas relative to it (the folder the scan ran in; default: this folder)")
 	fs.BoolVarP(&f.help, "help", "h", false, "show this help")
 	usage := func() {
 		fmt.Fprint(stdout, reportUsage)
@@ -99,7 +102,12 @@ func runReport(args []string, stdout, stderr io.Writer) int {
 		return fail("%v", err)
 	}
 	if f.format == "html" {
-		res.Texts = reloadTexts(res, htmlPairsOption(f.htmlPairs))
+		var unread, wanted int
+		res.Texts, unread, wanted = reloadTexts(res, htmlPairsOption(f.htmlPairs), f.root)
+		if unread > 0 {
+			fmt.Fprintf(stderr, "reprise report: %d of the %d documents shown side by side could not be read again; "+
+				"their paths are relative to the folder the scan ran in: run there, or give --root DIR\n", unread, wanted)
+		}
 	}
 	color := f.output == "" && isTerminal(stdout) && os.Getenv("NO_COLOR") == ""
 	opt := report.TextOptions{Top: f.top, Color: color, HTMLPairs: htmlPairsOption(f.htmlPairs)}
@@ -159,7 +167,11 @@ func readResult(name string) (*report.Result, error) {
 // pairs the page details, and keeps a text only when it still matches the
 // result: the same word count and, for every passage, the recorded text at
 // the recorded offsets (A side) and offsets inside the text (B side).
-func reloadTexts(res *report.Result, htmlPairs int) []report.SourceText {
+//
+// root, when set, is the folder relative paths are taken from. It also
+// returns how many of the wanted documents could not be read again (no
+// such file), of how many.
+func reloadTexts(res *report.Result, htmlPairs int, root string) (_ []report.SourceText, unread, wanted int) {
 	texts := make([]report.SourceText, len(res.Documents))
 	for i := range texts {
 		texts[i].Missing = "not needed for the pairs shown side by side"
@@ -186,20 +198,38 @@ func reloadTexts(res *report.Result, htmlPairs int) []report.SourceText {
 		paths = append(paths, p)
 	}
 	slices.Sort(paths)
+	// Each wanted document under the name it is read by now: the recorded
+	// path, or that path inside root when it is relative.
+	rooted := func(p string) string {
+		if root == "" || filepath.IsAbs(p) {
+			return p
+		}
+		return filepath.Join(root, p)
+	}
+	byRead := make(map[string]string, len(paths)) // name read now -> recorded path
 	for _, p := range paths {
 		if _, ok := index[p]; !ok {
 			continue
 		}
 		texts[index[p]].Missing = "the file could not be read again"
+		byRead[rooted(p)] = p
 	}
+	defer func() {
+		for _, p := range paths {
+			if i, ok := index[p]; ok && strings.HasPrefix(texts[i].Missing, "the file could not be read again") {
+				unread++
+			}
+		}
+		wanted = len(byRead)
+	}()
 	if len(paths) == 0 {
-		return texts
+		return texts, 0, 0
 	}
 	// A ZIP member or a JSON Lines line is read again from its file, with
 	// the options the scan read it with.
 	var outer []string
-	for _, p := range paths {
-		outer = append(outer, outerFile(p))
+	for read := range byRead {
+		outer = append(outer, outerFile(read))
 	}
 	slices.Sort(outer)
 	outer = slices.Compact(outer)
@@ -210,42 +240,40 @@ func reloadTexts(res *report.Result, htmlPairs int) []report.SourceText {
 				texts[i].Missing = "the file could not be read again: " + err.Error()
 			}
 		}
-		return texts
+		return texts, 0, 0
 	}
 	reasons := make(map[string]string, len(skipped))
 	for _, s := range skipped {
 		reasons[s.Path] = s.Reason
 	}
-	for _, p := range paths {
-		i, ok := index[p]
-		if !ok {
-			continue
-		}
-		if r, ok := reasons[p]; ok {
+	for read, p := range byRead {
+		i := index[p]
+		if r, ok := reasons[read]; ok {
 			texts[i].Missing = "the file could not be read again (" + r + ")"
-		} else if r, ok := reasons[outerFile(p)]; ok {
+		} else if r, ok := reasons[outerFile(read)]; ok {
 			texts[i].Missing = "the file could not be read again (" + r + ")"
 		}
 	}
 	sp := shingle.New(shingle.Options{MinWords: res.Settings.MinWords, MaxUnitBytes: res.Settings.MaxUnitBytes})
 	for _, d := range docs {
-		i, ok := index[d.Path]
+		p, ok := byRead[d.Path]
 		if !ok {
 			continue
 		}
+		i := index[p]
 		_, st := sp.Sentences(d.Text, nil)
 		if st.Words != res.Documents[i].Words {
 			texts[i].Missing = "the file has changed since the scan (" + strconv.Itoa(st.Words) + " words now, " +
 				strconv.Itoa(res.Documents[i].Words) + " recorded)"
 			continue
 		}
-		if why := passagesMismatch(res, d.Path, d.Text); why != "" {
+		if why := passagesMismatch(res, p, d.Text); why != "" {
 			texts[i].Missing = why
 			continue
 		}
 		texts[i] = report.SourceText{Text: d.Text}
 	}
-	return texts
+	return texts, 0, 0
 }
 
 // outerFile is the file on disk a recorded document path was read from:
@@ -284,13 +312,22 @@ func recordedReadOptions(s report.Settings) corpus.Options {
 	return o
 }
 
+// passageAt reports whether a passage's recorded text is the text found at
+// its offsets: all of it, or its start when the report cut it (text_cut).
+func passageAt(found string, g report.Passage) bool {
+	if g.TextCut {
+		return strings.HasPrefix(found, g.Text)
+	}
+	return found == g.Text
+}
+
 // passagesMismatch says why text is not the one the result's passages
 // point into, or "" when every passage fits.
 func passagesMismatch(res *report.Result, path, text string) string {
 	for _, p := range res.Pairs {
 		for _, g := range p.Passages {
 			if p.A == path {
-				if g.AStart < 0 || g.AEnd > len(text) || g.AStart > g.AEnd || text[g.AStart:g.AEnd] != g.Text {
+				if g.AStart < 0 || g.AEnd > len(text) || g.AStart > g.AEnd || !passageAt(text[g.AStart:g.AEnd], g) {
 					return "the file has changed since the scan (a passage is no longer at its recorded offsets)"
 				}
 			}

@@ -91,7 +91,7 @@ func TestReportReadsDocumentsAgainAsTheScanDid(t *testing.T) {
 			if len(res.Pairs) != 1 {
 				t.Fatalf("scan found %d pairs, want 1: %+v", len(res.Pairs), res.Documents)
 			}
-			texts := reloadTexts(res, 0)
+			texts, _, _ := reloadTexts(res, 0, "")
 			for i, d := range res.Documents {
 				if texts[i].Missing != "" {
 					t.Errorf("%s not shown: %s", d.Path, texts[i].Missing)
@@ -156,5 +156,51 @@ func TestReportOuterFile(t *testing.T) {
 				t.Errorf("outerFile(%q) = %q, want %q", tc.path, got, tc.want)
 			}
 		})
+	}
+}
+
+// TestReportRootFindsTheDocuments: a JSON result redrawn as HTML from
+// another folder warns that its documents could not be read again, and
+// with --root naming the folder the scan ran in shows them side by side.
+func TestReportRootFindsTheDocuments(t *testing.T) {
+	result := filepath.Join(t.TempDir(), "result.json")
+	if code, _, e := runCLI(t, "scan", "-q", "--format", "json", "-o", result, "../../testdata/demo"); code != exitOK {
+		t.Fatalf("scan: %s", e)
+	}
+	root, err := filepath.Abs(".")
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Chdir(t.TempDir()) // the recorded paths no longer lead anywhere
+	code, page, e := runCLI(t, "report", "--format", "html", result)
+	if code != exitOK || !strings.Contains(e, "could not be read again") || !strings.Contains(e, "--root") {
+		t.Fatalf("from another folder: exit %d, stderr %q; want a warning naming --root", code, e)
+	}
+	if !strings.Contains(page, "could not be read again") {
+		t.Fatalf("the page does not say why the texts are missing")
+	}
+	code, page, e = runCLI(t, "report", "--root", root, "--format", "html", result)
+	if code != exitOK || e != "" {
+		t.Fatalf("--root: exit %d, stderr %q", code, e)
+	}
+	if strings.Contains(page, "could not be read again") {
+		t.Fatalf("--root %s: some documents still not read again", root)
+	}
+}
+
+// TestReportRereadsCutPassages: passages whose text the result cut
+// (--passage-text) still match the documents read again.
+func TestReportRereadsCutPassages(t *testing.T) {
+	result := filepath.Join(t.TempDir(), "result.json")
+	if code, _, e := runCLI(t, "scan", "-q", "--passage-text", "40", "--format", "json", "-o", result, "../../testdata/demo"); code != exitOK {
+		t.Fatalf("scan: %s", e)
+	}
+	raw, err := os.ReadFile(result)
+	if err != nil || !strings.Contains(string(raw), `"text_cut": true`) {
+		t.Fatalf("no passage cut at 40 bytes (%v)", err)
+	}
+	code, page, e := runCLI(t, "report", "--format", "html", result)
+	if code != exitOK || e != "" || strings.Contains(page, "has changed since the scan") {
+		t.Fatalf("exit %d, stderr %q, or a cut passage read as a changed file", code, e)
 	}
 }
