@@ -211,14 +211,18 @@ func (m *mdBlanker) blank(b []byte) error {
 		}
 		switch m.lines[i].kind {
 		case lineSolo:
-			m.inline(b, m.lines[i].start, m.lines[i].end)
+			if !m.inline(b, m.lines[i].start, m.lines[i].end) {
+				return m.dl.err()
+			}
 			i++
 		case lineText:
 			j := i
 			for j+1 < len(m.lines) && m.lines[j+1].kind == lineText {
 				j++
 			}
-			m.inline(b, m.lines[i].start, m.lines[j].end)
+			if !m.inline(b, m.lines[i].start, m.lines[j].end) {
+				return m.dl.err()
+			}
 			i = j + 1
 		default:
 			i++
@@ -609,9 +613,14 @@ func isReferenceDefinition(b []byte, q, e int) bool {
 	return end-t >= 2 && b[end-1] == closer
 }
 
+// inlineAsk is how many bytes of a paragraph inline goes through between
+// two questions to the deadline.
+const inlineAsk = 1 << 10
+
 // inline removes inline markup from b[s:e], one paragraph (which may span
-// several lines) or one heading or table row.
-func (m *mdBlanker) inline(b []byte, s, e int) {
+// several lines) or one heading or table row. It returns false when the
+// deadline passed before the end.
+func (m *mdBlanker) inline(b []byte, s, e int) bool {
 	m.delims = m.delims[:0]
 	m.brackets = m.brackets[:0]
 	m.linkFloor = 0
@@ -620,7 +629,14 @@ func (m *mdBlanker) inline(b []byte, s, e int) {
 	}
 	clear(m.ticks)
 	m.ticksAll = false
+	ask := s + inlineAsk
 	for i := s; i < e; {
+		if i >= ask {
+			if m.dl.passed() {
+				return false
+			}
+			ask = i + inlineAsk
+		}
 		switch c := b[i]; c {
 		case '\\':
 			if i+1 < e && isASCIIPunct(b[i+1]) {
@@ -672,6 +688,7 @@ func (m *mdBlanker) inline(b []byte, s, e int) {
 		}
 	}
 	m.emphasis(b)
+	return true
 }
 
 // closeBracket handles the ']' at b[i]: with an inline destination

@@ -1,0 +1,129 @@
+package corpus
+
+import (
+	"bytes"
+	"fmt"
+	"strings"
+	"testing"
+	"time"
+
+	"reprise/internal/hostile"
+)
+
+// The growth check: every extractor on every shape of internal/hostile at
+// n, 2n and 4n repetitions. It is a benchmark, not a timed test (the
+// machine's load says nothing about the code): go run ./scripts/hostile
+// -table runs it several times and prints, from the medians, how time and
+// allocated bytes grow per doubling of the input (BENCHMARKS.md, "Hostile
+// inputs"); linear code shows 2x, and 2.5x is the bound the table checks.
+//
+//	go test -run '^$' -bench BenchmarkHostileGrowth -benchtime 10x -count 5 ./corpus
+
+// extractShape reads one hostile file as Read does (a .jsonl file
+// streamed line by line), under the deadline dl.
+func extractShape(tb testing.TB, s hostile.Shape, raw []byte, opt *Options, dl *deadline) []part {
+	tb.Helper()
+	if s.Format == "jsonl" {
+		parts, _, err := scanJSONL(bytes.NewReader(raw), opt)
+		if err != nil {
+			tb.Fatal(err)
+		}
+		return parts
+	}
+	budget := opt.MaxContainerBytes
+	return extractFile("hostile"+s.Ext, &input{raw: raw, opt: opt, budget: &budget, dl: dl})
+}
+
+func makeShape(tb testing.TB, s hostile.Shape, n int) []byte {
+	tb.Helper()
+	raw, err := s.Make(n)
+	if err != nil {
+		tb.Fatalf("%s: %v", s.Name, err)
+	}
+	return raw
+}
+
+func BenchmarkHostileGrowth(b *testing.B) {
+	opt := testOptions(b)
+	for _, s := range hostile.Shapes() {
+		for _, mult := range []int{1, 2, 4} {
+			n := s.Base * mult
+			raw := makeShape(b, s, n)
+			b.Run(fmt.Sprintf("%s/n=%d", s.Name, n), func(b *testing.B) {
+				b.SetBytes(int64(len(raw)))
+				b.ReportAllocs()
+				for b.Loop() {
+					extractShape(b, s, raw, opt, newDeadline(opt.FileTimeout))
+				}
+			})
+		}
+	}
+}
+
+// wantFormat is the format of the documents a shape gives: a ZIP archive's
+// members are text files.
+func wantFormat(s hostile.Shape) string {
+	if s.Format == "zip" {
+		return "text"
+	}
+	return s.Format
+}
+
+// TestHostileShapes: each shape at its base size is read as its format
+// (documents of that format, no skipped part) or, when it must be refused,
+// skipped with a reason naming the limit; and each extractor asks the
+// deadline as it goes: under one that has already passed it stops at the
+// first question and the file is skipped saying so, where a live one is
+// asked at every step.
+func TestHostileShapes(t *testing.T) {
+	opt := testOptions(t)
+	for _, s := range hostile.Shapes() {
+		t.Run(s.Name, func(t *testing.T) {
+			raw := makeShape(t, s, s.Base)
+			if n2 := len(makeShape(t, s, 2*s.Base)); n2 < 2*len(raw)*8/10 || n2 > 2*len(raw)*12/10 {
+				t.Errorf("size at 2n is %d bytes, at n %d: the shape does not grow linearly", n2, len(raw))
+			}
+			live := newDeadline(time.Hour)
+			parts := extractShape(t, s, raw, opt, live)
+			docs := 0
+			for _, p := range parts {
+				switch {
+				case s.Refused && p.reason == "":
+					t.Fatalf("%s gave a document, want it refused", p.sub)
+				case s.Refused && !strings.Contains(p.reason, "(--max-depth)"):
+					t.Fatalf("refused for %q, want the depth limit", p.reason)
+				case !s.Refused && p.reason != "":
+					t.Fatalf("%s skipped: %s", p.sub, p.reason)
+				case p.reason == "":
+					docs++
+					if p.format != wantFormat(s) {
+						t.Fatalf("%s read as %s, want %s", p.sub, p.format, wantFormat(s))
+					}
+				}
+			}
+			if !s.Refused && docs == 0 {
+				t.Fatal("no document")
+			}
+			if s.Format == "jsonl" {
+				return // per-line deadlines: TestFileTimeoutSkips
+			}
+			past := &deadline{at: time.Now().Add(-time.Second), timeout: time.Nanosecond}
+			for _, p := range extractShape(t, s, raw, opt, past) {
+				if p.reason != timedOutReason(time.Nanosecond) {
+					t.Fatalf("%s under a passed deadline: reason %q", p.sub, p.reason)
+				}
+			}
+			if past.calls > 1 {
+				t.Errorf("the extractor asked a passed deadline %d times, want it to stop at the first", past.calls)
+			}
+			// Every extractor asks at each step of its own (a line, a
+			// token, a group, a member), at least once per 128 KiB, but
+			// two: plain text is one pass of the runtime's byte loops,
+			// asked once done (extractFile), and an e-mail's header is one
+			// call of net/mail, asked per MIME part.
+			if s.Format != "text" && s.Format != "email" && !s.Refused && int(live.calls) < max(2, len(raw)>>17) {
+				t.Errorf("the extractor asked a live deadline %d times for %d bytes, want it asked as it goes", live.calls, len(raw))
+			}
+		})
+	}
+}
