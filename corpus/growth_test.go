@@ -3,6 +3,8 @@ package corpus
 import (
 	"bytes"
 	"fmt"
+	"runtime"
+	"slices"
 	"strings"
 	"testing"
 	"time"
@@ -12,12 +14,18 @@ import (
 
 // The growth check: every extractor on every shape of internal/hostile at
 // n, 2n and 4n repetitions. It is a benchmark, not a timed test (the
-// machine's load says nothing about the code): go run ./scripts/hostile
-// -table runs it several times and prints, from the medians, how time and
-// allocated bytes grow per doubling of the input (BENCHMARKS.md, "Hostile
-// inputs"); linear code shows 2x, and 2.5x is the bound the table checks.
+// machine's load says nothing about the code). BenchmarkHostileGrowth has
+// one sub-benchmark per shape and size, for ns/op and B/op as usual;
+// BenchmarkHostileRatios measures the three sizes of a shape in
+// alternation, round after round, and reports the growth per doubling
+// (medians over the rounds) as metrics, which is what go run
+// ./scripts/hostile -table runs several times and prints (BENCHMARKS.md,
+// "Hostile inputs"): linear code shows 2x, and 2.5x is the bound the table
+// checks. Measuring the sizes one after the other instead made the ratios
+// follow the load of the shared machine more than the code.
 //
 //	go test -run '^$' -bench BenchmarkHostileGrowth -benchtime 10x -count 5 ./corpus
+//	go test -run '^$' -bench BenchmarkHostileRatios -benchtime 1s -count 5 ./corpus
 
 // extractShape reads one hostile file as Read does (a .jsonl file
 // streamed line by line), under the deadline dl.
@@ -57,6 +65,52 @@ func BenchmarkHostileGrowth(b *testing.B) {
 				}
 			})
 		}
+	}
+}
+
+// BenchmarkHostileRatios reports, per shape, t2n/n and t4n/2n (time of
+// one read at 2n over n, 4n over 2n: medians over the rounds, each read
+// after a collection so that none pays for another's garbage) and a2n/n,
+// a4n/2n (bytes allocated by one read, counted by the runtime).
+func BenchmarkHostileRatios(b *testing.B) {
+	opt := testOptions(b)
+	for _, s := range hostile.Shapes() {
+		var raws [3][]byte
+		for k := range raws {
+			raws[k] = makeShape(b, s, s.Base<<k)
+		}
+		b.Run(s.Name, func(b *testing.B) {
+			var alloc [3]float64
+			for k, raw := range raws {
+				var m0, m1 runtime.MemStats
+				runtime.GC()
+				runtime.ReadMemStats(&m0)
+				extractShape(b, s, raw, opt, newDeadline(opt.FileTimeout))
+				runtime.ReadMemStats(&m1)
+				alloc[k] = float64(m1.TotalAlloc - m0.TotalAlloc)
+			}
+			var times [3][]float64
+			for b.Loop() {
+				for k, raw := range raws {
+					runtime.GC()
+					start := time.Now()
+					extractShape(b, s, raw, opt, newDeadline(opt.FileTimeout))
+					times[k] = append(times[k], float64(time.Since(start)))
+				}
+			}
+			var med [3]float64
+			for k := range times {
+				slices.Sort(times[k])
+				med[k] = times[k][len(times[k])/2]
+			}
+			b.ReportMetric(med[0]/1e6, "ms-at-n")
+			b.ReportMetric(med[1]/med[0], "t2n/n")
+			b.ReportMetric(med[2]/med[1], "t4n/2n")
+			b.ReportMetric(alloc[0], "alloc-at-n")
+			b.ReportMetric(alloc[1]/alloc[0], "a2n/n")
+			b.ReportMetric(alloc[2]/alloc[1], "a4n/2n")
+			b.ReportMetric(float64(len(raws[0])), "bytes-at-n")
+		})
 	}
 }
 

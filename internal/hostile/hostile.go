@@ -115,6 +115,11 @@ func Shapes() []Shape {
 		{Name: "html-attributes", Format: "html", Ext: ".html", Base: 16384,
 			About: "one tag with n attributes",
 			Make:  plain(func(n int) []byte { return cat("<!doctype html><body><p ", rep(`a="b" `, n), ">text</p>") })},
+		{Name: "html-body-tags", Format: "html", Ext: ".html", Base: 16384,
+			About: `200 open "<div>" then n "<body>x</body>" (each start looks for an open <head>)`,
+			Make: plain(func(n int) []byte {
+				return cat("<!doctype html><head><title>t</title>", rep("<div>", 200), rep("<body>x</body>", n))
+			})},
 		{Name: "html-long-text", Format: "html", Ext: ".html", Base: 16384,
 			About: "one paragraph of n words and character references",
 			Make:  plain(func(n int) []byte { return cat("<!doctype html><body><p>", rep("word &amp; caf&eacute; ", n), "</p>") })},
@@ -129,6 +134,11 @@ func Shapes() []Shape {
 		{Name: "rtf-escapes", Format: "rtf", Ext: ".rtf", Base: 16384,
 			About: `n "\'e9" and "\u233?" escapes`,
 			Make:  plain(func(n int) []byte { return cat(`{\rtf1\ansi `, rep(`caf\'e9 \u233?`, n), "}") })},
+		{Name: "rtf-control-words", Format: "rtf", Ext: ".rtf", Base: 16384,
+			About: "n unknown control words of 40 letters with parameters",
+			Make: plain(func(n int) []byte {
+				return cat(`{\rtf1\ansi `, rep(`\abcdefghijklmnopqrstuvwxyzabcdefghijklmn-12345678901 x`, n), "}")
+			})},
 		{Name: "rtf-paragraphs", Format: "rtf", Ext: ".rtf", Base: 16384,
 			About: `n "\par" paragraphs`,
 			Make:  plain(func(n int) []byte { return cat(`{\rtf1\ansi `, rep(`word\par `, n), "}") })},
@@ -145,6 +155,17 @@ func Shapes() []Shape {
 		{Name: "email-folded-subject", Format: "email", Ext: ".eml", Base: 8192,
 			About: "a subject folded over n lines",
 			Make:  plain(func(n int) []byte { return cat(emailHead, "Subject: start", rep("\r\n word", n), "\r\n\r\nBody.\r\n") })},
+		{Name: "email-content-params", Format: "email", Ext: ".eml", Base: 8192,
+			About: "a Content-Type with n parameters",
+			Make: plain(func(n int) []byte {
+				var b strings.Builder
+				b.WriteString(emailHead + "Content-Type: text/plain; charset=utf-8")
+				for k := range n {
+					fmt.Fprintf(&b, ";\r\n p%d=v", k)
+				}
+				b.WriteString("\r\n\r\nBody.\r\n")
+				return []byte(b.String())
+			})},
 		{Name: "email-parts", Format: "email", Ext: ".eml", Base: 1024,
 			About: "a multipart message of n parts",
 			Make: plain(func(n int) []byte {
@@ -187,6 +208,17 @@ func Shapes() []Shape {
 				b.WriteString("<w:p><w:r ")
 				for k := range n {
 					fmt.Fprintf(&b, `w:a%d="v" `, k)
+				}
+				b.WriteString("><w:t>text</w:t></w:r></w:p>")
+				return docx(b.String())
+			}},
+		{Name: "docx-namespaces", Format: "docx", Ext: ".docx", Base: 8192,
+			About: "one element declaring n namespaces",
+			Make: func(n int) ([]byte, error) {
+				var b strings.Builder
+				b.WriteString("<w:p><w:r ")
+				for k := range n {
+					fmt.Fprintf(&b, `xmlns:n%d="urn:x:%d" `, k, k)
 				}
 				b.WriteString("><w:t>text</w:t></w:r></w:p>")
 				return docx(b.String())

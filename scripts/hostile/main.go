@@ -6,12 +6,13 @@
 // writes each shape at M times its base repetition count into DIR, named
 // after the shape, for a look by hand or a run of reprise over them.
 //
-//	go run ./scripts/hostile -table [-count 5] [-benchtime 200ms] [-max 2.5]
+//	go run ./scripts/hostile -table [-count 5] [-benchtime 15x] [-max 2.5]
 //
-// runs BenchmarkHostileGrowth (package corpus: every shape at n, 2n and 4n,
-// through the extractor as Read runs it) -count times, and prints, from the
-// medians, a Markdown table of the time and allocated bytes at n and their
-// growth per doubling; it exits with status 1 when a ratio is above -max.
+// runs BenchmarkHostileRatios (package corpus: every shape at n, 2n and 4n,
+// through the extractor as Read runs it, the three sizes in alternation,
+// -benchtime rounds) -count times, and prints, from the medians, a Markdown
+// table of the time and allocated bytes at n and their growth per
+// doubling; it exits with status 1 when a ratio is above -max.
 // Linear code gives 2x; the margin above it is for the noise of a shared
 // machine and the caches (a file of 1 MiB no longer fits where 256 KiB
 // did), which is why the table takes medians and ratios, never a time.
@@ -49,7 +50,7 @@ func main() {
 	shapes := flag.String("shapes", "", "comma-separated shape names (default: all; with -big: the Markdown ones)")
 	table := flag.Bool("table", false, "run the growth benchmark and print the table")
 	count := flag.Int("count", 5, "with -table: runs of the benchmark (medians are taken)")
-	benchtime := flag.String("benchtime", "200ms", "with -table: go test -benchtime")
+	benchtime := flag.String("benchtime", "15x", "with -table: go test -benchtime (rounds of n, 2n and 4n per run)")
 	maxRatio := flag.Float64("max", 2.5, "with -table: the largest growth per doubling that passes")
 	big := flag.String("big", "", "time corpus.Read on the shapes at this size (1MiB, 300KB)")
 	runs := flag.Int("runs", 5, "with -big: reads per shape (the median is printed)")
@@ -117,15 +118,13 @@ func write(dir string, ss []hostile.Shape, mult int) error {
 	return nil
 }
 
-// A measure is what one benchmark line reports.
-type measure struct{ ns, bytes, alloc float64 }
-
-// growthTable runs the benchmark and prints the table; ok is false when a
-// ratio is above maxRatio.
+// growthTable runs BenchmarkHostileRatios count times and prints the
+// medians of its metrics per shape; ok is false when a ratio is above
+// maxRatio.
 func growthTable(w io.Writer, count int, benchtime string, maxRatio float64, only string) (bool, error) {
-	pattern := "BenchmarkHostileGrowth"
+	pattern := "BenchmarkHostileRatios"
 	if only != "" {
-		pattern += "/(" + strings.ReplaceAll(only, ",", "|") + ")/"
+		pattern += "/^(" + strings.ReplaceAll(only, ",", "|") + ")$"
 	}
 	args := []string{"test", "-run", "^$", "-bench", pattern, "-benchtime", benchtime, "-count", strconv.Itoa(count), "./corpus"}
 	fmt.Fprintf(w, "go %s\n\n", strings.Join(args, " "))
@@ -135,46 +134,35 @@ func growthTable(w io.Writer, count int, benchtime string, maxRatio float64, onl
 	if err != nil {
 		return false, fmt.Errorf("go test: %w\n%s", err, outp)
 	}
-	runs := map[string][]measure{} // "shape/n=N" -> one per run
+	runs := map[string]map[string][]float64{} // shape -> metric -> one value per run
 	var order []string
 	sc := bufio.NewScanner(bytes.NewReader(outp))
 	for sc.Scan() {
 		f := strings.Fields(sc.Text())
-		if len(f) < 4 || !strings.HasPrefix(f[0], "BenchmarkHostileGrowth/") {
+		if len(f) < 4 || !strings.HasPrefix(f[0], "BenchmarkHostileRatios/") {
 			continue
 		}
-		name := strings.TrimPrefix(f[0], "BenchmarkHostileGrowth/")
+		name := strings.TrimPrefix(f[0], "BenchmarkHostileRatios/")
 		if i := strings.LastIndexByte(name, '-'); i > 0 {
 			name = name[:i] // the GOMAXPROCS suffix
 		}
-		var m measure
-		for k := 2; k+1 < len(f); k += 2 {
-			v, err := strconv.ParseFloat(f[k], 64)
-			if err != nil {
-				continue
-			}
-			switch f[k+1] {
-			case "ns/op":
-				m.ns = v
-			case "MB/s":
-				m.bytes = v // replaced below by the size, from ns and MB/s
-			case "B/op":
-				m.alloc = v
-			}
-		}
-		m.bytes = m.bytes * 1e6 * m.ns / 1e9 // MB/s × s/op = bytes per op
-		if _, seen := runs[name]; !seen {
+		if runs[name] == nil {
+			runs[name] = map[string][]float64{}
 			order = append(order, name)
 		}
-		runs[name] = append(runs[name], m)
+		for k := 2; k+1 < len(f); k += 2 {
+			if v, err := strconv.ParseFloat(f[k], 64); err == nil {
+				runs[name][f[k+1]] = append(runs[name][f[k+1]], v)
+			}
+		}
 	}
 	if len(order) == 0 {
 		return false, fmt.Errorf("no benchmark lines in the output of go test")
 	}
-	med := func(name string, get func(measure) float64) float64 {
-		var v []float64
-		for _, m := range runs[name] {
-			v = append(v, get(m))
+	med := func(shape, metric string) float64 {
+		v := slices.Clone(runs[shape][metric])
+		if len(v) == 0 {
+			return 0
 		}
 		slices.Sort(v)
 		return v[len(v)/2]
@@ -183,26 +171,19 @@ func growthTable(w io.Writer, count int, benchtime string, maxRatio float64, onl
 	fmt.Fprintf(w, "|---|---:|---:|---:|---:|---:|---:|---:|\n")
 	ok := true
 	worstT, worstA := 0.0, 0.0
-	for i := 0; i+2 < len(order); i += 3 {
-		shape := order[i][:strings.LastIndex(order[i], "/n=")]
-		var t, a [3]float64
-		for k := range 3 {
-			t[k] = med(order[i+k], func(m measure) float64 { return m.ns })
-			a[k] = med(order[i+k], func(m measure) float64 { return m.alloc })
+	mark := func(r float64) string {
+		if r > maxRatio {
+			ok = false
+			return fmt.Sprintf("**%.2f**", r)
 		}
-		size := med(order[i], func(m measure) float64 { return m.bytes })
-		rt := [2]float64{t[1] / t[0], t[2] / t[1]}
-		ra := [2]float64{a[1] / a[0], a[2] / a[1]}
-		mark := func(r float64) string {
-			if r > maxRatio {
-				ok = false
-				return fmt.Sprintf("**%.2f**", r)
-			}
-			return fmt.Sprintf("%.2f", r)
-		}
-		worstT, worstA = max(worstT, rt[0], rt[1]), max(worstA, ra[0], ra[1])
-		fmt.Fprintf(w, "| %s | %s | %.2f ms | %s | %s | %s | %s | %s |\n", shape, human(size), t[0]/1e6,
-			mark(rt[0]), mark(rt[1]), human(a[0]), mark(ra[0]), mark(ra[1]))
+		return fmt.Sprintf("%.2f", r)
+	}
+	for _, shape := range order {
+		t1, t2 := med(shape, "t2n/n"), med(shape, "t4n/2n")
+		a1, a2 := med(shape, "a2n/n"), med(shape, "a4n/2n")
+		worstT, worstA = max(worstT, t1, t2), max(worstA, a1, a2)
+		fmt.Fprintf(w, "| %s | %s | %.2f ms | %s | %s | %s | %s | %s |\n", shape, human(med(shape, "bytes-at-n")), med(shape, "ms-at-n"),
+			mark(t1), mark(t2), human(med(shape, "alloc-at-n")), mark(a1), mark(a2))
 	}
 	fmt.Fprintf(w, "\nlargest growth per doubling: time %.2f, allocated bytes %.2f (bound %.2f); medians of %d runs\n", worstT, worstA, maxRatio, count)
 	return ok, nil
