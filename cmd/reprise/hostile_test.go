@@ -29,9 +29,9 @@ func TestHostileFolderFinishes(t *testing.T) {
 
 	shapes := hostile.Shapes()
 	for _, s := range shapes {
-		n := s.Base
+		n := s.Base // a shape that must be refused nests past the depth limit
 		if !s.Refused {
-			n = max(1, s.Base/16) // smaller, for the race detector; the growth check has the large ones
+			n = max(1, s.Base/64) // smaller, for the race detector; the growth check has the large ones
 		}
 		raw, err := s.Make(n)
 		if err != nil {

@@ -35,9 +35,13 @@ type Shape struct {
 	Ext    string // the file name extension that makes reprise read it as Format
 	About  string // what the file holds, in a few words
 	// Base is the n of the smallest file of the growth check (n, 2n,
-	// 4n): large enough that one read takes measurable time, small
-	// enough that the largest stays well under the default limits
-	// (members, MIME parts, sizes) unless the shape is about a limit.
+	// 4n): large enough that even the smallest file is past the
+	// processor's caches (about 0.5 to 2 MiB of input; below that a
+	// doubling also moves the work from cache to memory, and the time
+	// grows by up to 3.5x for that reason alone), small enough that the
+	// largest stays under the default limits (members, MIME parts, file
+	// size) unless the shape is about a limit. Tests read the shapes at
+	// Base/64.
 	Base int
 	// Refused: the file is refused (skipped with a reason) at the default
 	// limits, for every n from Base on; the growth check then measures
@@ -52,48 +56,48 @@ type Shape struct {
 func Shapes() []Shape {
 	return []Shape{
 		// Markdown.
-		{Name: "markdown-quote-list", Format: "markdown", Ext: ".md", Base: 16384,
+		{Name: "markdown-quote-list", Format: "markdown", Ext: ".md", Base: 262144,
 			About: `n ">" then n "- " and one sentence, on one line`,
 			Make:  plain(func(n int) []byte { return cat(rep(">", n), rep("- ", n), "One sentence ends the line.\n") })},
-		{Name: "markdown-link-openers", Format: "markdown", Ext: ".md", Base: 16384,
+		{Name: "markdown-link-openers", Format: "markdown", Ext: ".md", Base: 131072,
 			About: `n "[a](" then n ")"`,
 			Make:  plain(func(n int) []byte { return cat("Text ", rep("[a](", n), rep(")", n), " ends.\n") })},
-		{Name: "markdown-link-titles", Format: "markdown", Ext: ".md", Base: 16384,
+		{Name: "markdown-link-titles", Format: "markdown", Ext: ".md", Base: 131072,
 			About: `n "[a](b (" (a title never closed) and one ")" at the end`,
 			Make:  plain(func(n int) []byte { return cat("Text ", rep("[a](b (", n), ")\n") })},
-		{Name: "markdown-link-quotes", Format: "markdown", Ext: ".md", Base: 16384,
+		{Name: "markdown-link-quotes", Format: "markdown", Ext: ".md", Base: 131072,
 			About: `n "[a](b '" and one "'" at the end`,
 			Make:  plain(func(n int) []byte { return cat("Text ", rep("[a](b '", n), "'\n") })},
-		{Name: "markdown-image-openers", Format: "markdown", Ext: ".md", Base: 16384,
+		{Name: "markdown-image-openers", Format: "markdown", Ext: ".md", Base: 131072,
 			About: `n "![" then n "[a](b)" links`,
 			Make:  plain(func(n int) []byte { return cat(rep("![", n), rep("[a](b)", n), "\n") })},
-		{Name: "markdown-backtick-runs", Format: "markdown", Ext: ".md", Base: 16384,
+		{Name: "markdown-backtick-runs", Format: "markdown", Ext: ".md", Base: 262144,
 			About: "backtick runs of length 1, 2, 3, ... (none closes), about 4n bytes",
 			Make:  plain(backtickRuns)},
-		{Name: "markdown-emphasis-nest", Format: "markdown", Ext: ".md", Base: 16384,
+		{Name: "markdown-emphasis-nest", Format: "markdown", Ext: ".md", Base: 131072,
 			About: `n "*a " then n "a* " (nested emphasis)`,
 			Make:  plain(func(n int) []byte { return cat(rep("*a ", n), rep("a* ", n), "\n") })},
-		{Name: "markdown-emphasis-open", Format: "markdown", Ext: ".md", Base: 16384,
+		{Name: "markdown-emphasis-open", Format: "markdown", Ext: ".md", Base: 131072,
 			About: `n "*a _b " that never close, then one "c*"`,
 			Make:  plain(func(n int) []byte { return cat(rep("*a _b ", n), "c*\n") })},
-		{Name: "markdown-html-open", Format: "markdown", Ext: ".md", Base: 16384,
+		{Name: "markdown-html-open", Format: "markdown", Ext: ".md", Base: 65536,
 			About: `n "<a x=\"" and n "<!--" never closed`,
 			Make:  plain(func(n int) []byte { return cat(rep(`<a x="`, n), rep("<!--", n), "\n") })},
-		{Name: "markdown-headers", Format: "markdown", Ext: ".md", Base: 16384,
+		{Name: "markdown-headers", Format: "markdown", Ext: ".md", Base: 32768,
 			About: `n lines "## Heading k ##"`,
 			Make: plain(func(n int) []byte {
 				return lines(n, func(k int) string { return "## Heading " + strconv.Itoa(k) + " ##" })
 			})},
-		{Name: "markdown-long-line", Format: "markdown", Ext: ".md", Base: 16384,
+		{Name: "markdown-long-line", Format: "markdown", Ext: ".md", Base: 65536,
 			About: "one line of n words with markup characters",
 			Make:  plain(func(n int) []byte { return cat(rep("word *x_ `y [z] ", n), "\n") })},
-		{Name: "markdown-table", Format: "markdown", Ext: ".md", Base: 16384,
+		{Name: "markdown-table", Format: "markdown", Ext: ".md", Base: 32768,
 			About: "a table of n rows",
 			Make:  plain(func(n int) []byte { return cat("| a | b |\n|---|---|\n", rep("| x \\| y | *z* |\n", n)) })},
-		{Name: "markdown-nested-lists", Format: "markdown", Ext: ".md", Base: 4096,
-			About: `n lines, line k holding k mod 200 nested "> 1. " markers`,
+		{Name: "markdown-nested-lists", Format: "markdown", Ext: ".md", Base: 16384,
+			About: `n lines, line k holding k mod 32 nested "> 1. " markers`,
 			Make: plain(func(n int) []byte {
-				return lines(n, func(k int) string { return strings.Repeat("> 1. ", k%200) + "item" })
+				return lines(n, func(k int) string { return strings.Repeat("> 1. ", k%32) + "item" })
 			})},
 
 		// HTML.
@@ -103,24 +107,24 @@ func Shapes() []Shape {
 		{Name: "html-unclosed-inline", Format: "html", Ext: ".html", Base: 16384, Refused: true,
 			About: `n "<b>x" never closed`,
 			Make:  plain(func(n int) []byte { return cat("<!doctype html><body>", rep("<b>x", n)) })},
-		{Name: "html-stray-end-tags", Format: "html", Ext: ".html", Base: 16384,
+		{Name: "html-stray-end-tags", Format: "html", Ext: ".html", Base: 131072,
 			About: `200 open "<div>" then n "</span>" that close nothing`,
 			Make:  plain(func(n int) []byte { return cat("<!doctype html><body>", rep("<div>", 200), "text ", rep("</span>", n)) })},
-		{Name: "html-tiny-elements", Format: "html", Ext: ".html", Base: 16384,
+		{Name: "html-tiny-elements", Format: "html", Ext: ".html", Base: 65536,
 			About: `n "<span>a</span> "`,
 			Make:  plain(func(n int) []byte { return cat("<!doctype html><body><p>", rep("<span>a</span> ", n), "</p>") })},
-		{Name: "html-implied-ends", Format: "html", Ext: ".html", Base: 16384,
+		{Name: "html-implied-ends", Format: "html", Ext: ".html", Base: 65536,
 			About: `n "<p>x" then n "<li>y", end tags omitted`,
 			Make:  plain(func(n int) []byte { return cat("<!doctype html><body>", rep("<p>x", n), "<ul>", rep("<li>y", n)) })},
-		{Name: "html-attributes", Format: "html", Ext: ".html", Base: 16384,
+		{Name: "html-attributes", Format: "html", Ext: ".html", Base: 131072,
 			About: "one tag with n attributes",
 			Make:  plain(func(n int) []byte { return cat("<!doctype html><body><p ", rep(`a="b" `, n), ">text</p>") })},
-		{Name: "html-body-tags", Format: "html", Ext: ".html", Base: 16384,
+		{Name: "html-body-tags", Format: "html", Ext: ".html", Base: 65536,
 			About: `200 open "<div>" then n "<body>x</body>" (each start looks for an open <head>)`,
 			Make: plain(func(n int) []byte {
 				return cat("<!doctype html><head><title>t</title>", rep("<div>", 200), rep("<body>x</body>", n))
 			})},
-		{Name: "html-long-text", Format: "html", Ext: ".html", Base: 16384,
+		{Name: "html-long-text", Format: "html", Ext: ".html", Base: 32768,
 			About: "one paragraph of n words and character references",
 			Make:  plain(func(n int) []byte { return cat("<!doctype html><body><p>", rep("word &amp; caf&eacute; ", n), "</p>") })},
 
@@ -128,10 +132,10 @@ func Shapes() []Shape {
 		{Name: "rtf-deep", Format: "rtf", Ext: ".rtf", Base: 16384, Refused: true,
 			About: `n nested "{"`,
 			Make:  plain(func(n int) []byte { return cat(`{\rtf1 `, rep("{", n), "x") })},
-		{Name: "rtf-groups", Format: "rtf", Ext: ".rtf", Base: 16384,
+		{Name: "rtf-groups", Format: "rtf", Ext: ".rtf", Base: 131072,
 			About: `n groups "{\b x}"`,
 			Make:  plain(func(n int) []byte { return cat(`{\rtf1\ansi `, rep(`{\b x} `, n), "}") })},
-		{Name: "rtf-escapes", Format: "rtf", Ext: ".rtf", Base: 16384,
+		{Name: "rtf-escapes", Format: "rtf", Ext: ".rtf", Base: 65536,
 			About: `n "\'e9" and "\u233?" escapes`,
 			Make:  plain(func(n int) []byte { return cat(`{\rtf1\ansi `, rep(`caf\'e9 \u233?`, n), "}") })},
 		{Name: "rtf-control-words", Format: "rtf", Ext: ".rtf", Base: 16384,
@@ -139,23 +143,23 @@ func Shapes() []Shape {
 			Make: plain(func(n int) []byte {
 				return cat(`{\rtf1\ansi `, rep(`\abcdefghijklmnopqrstuvwxyzabcdefghijklmn-12345678901 x`, n), "}")
 			})},
-		{Name: "rtf-paragraphs", Format: "rtf", Ext: ".rtf", Base: 16384,
+		{Name: "rtf-paragraphs", Format: "rtf", Ext: ".rtf", Base: 65536,
 			About: `n "\par" paragraphs`,
 			Make:  plain(func(n int) []byte { return cat(`{\rtf1\ansi `, rep(`word\par `, n), "}") })},
-		{Name: "rtf-skipped-groups", Format: "rtf", Ext: ".rtf", Base: 16384,
+		{Name: "rtf-skipped-groups", Format: "rtf", Ext: ".rtf", Base: 65536,
 			About: `n ignorable destinations "{\*\x y}"`,
 			Make:  plain(func(n int) []byte { return cat(`{\rtf1\ansi `, rep(`{\*\x y}z `, n), "}") })},
 
 		// E-mail.
-		{Name: "email-headers", Format: "email", Ext: ".eml", Base: 8192,
+		{Name: "email-headers", Format: "email", Ext: ".eml", Base: 32768,
 			About: "n header fields",
 			Make: plain(func(n int) []byte {
 				return cat(emailHead, string(lines(n, func(k int) string { return "X-Field-" + strconv.Itoa(k) + ": value" })), "\nThe body of the message.\n")
 			})},
-		{Name: "email-folded-subject", Format: "email", Ext: ".eml", Base: 8192,
+		{Name: "email-folded-subject", Format: "email", Ext: ".eml", Base: 131072,
 			About: "a subject folded over n lines",
 			Make:  plain(func(n int) []byte { return cat(emailHead, "Subject: start", rep("\r\n word", n), "\r\n\r\nBody.\r\n") })},
-		{Name: "email-content-params", Format: "email", Ext: ".eml", Base: 8192,
+		{Name: "email-content-params", Format: "email", Ext: ".eml", Base: 65536,
 			About: "a Content-Type with n parameters",
 			Make: plain(func(n int) []byte {
 				var b strings.Builder
@@ -166,7 +170,7 @@ func Shapes() []Shape {
 				b.WriteString("\r\n\r\nBody.\r\n")
 				return []byte(b.String())
 			})},
-		{Name: "email-parts", Format: "email", Ext: ".eml", Base: 1024,
+		{Name: "email-parts", Format: "email", Ext: ".eml", Base: 2048,
 			About: "a multipart message of n parts",
 			Make: plain(func(n int) []byte {
 				return cat(emailHead, "Content-Type: multipart/mixed; boundary=b\r\n\r\n",
@@ -183,7 +187,7 @@ func Shapes() []Shape {
 				b.WriteString("Content-Type: text/plain\r\n\r\ndeep\r\n")
 				return []byte(b.String())
 			})},
-		{Name: "email-quoted", Format: "email", Ext: ".eml", Base: 16384,
+		{Name: "email-quoted", Format: "email", Ext: ".eml", Base: 32768,
 			About: `n quoted lines "> text"`,
 			Make:  plain(func(n int) []byte { return cat(emailHead, "\r\n", rep("> quoted text of the reply\r\n", n)) })},
 
@@ -201,7 +205,7 @@ func Shapes() []Shape {
 		{Name: "docx-paragraphs", Format: "docx", Ext: ".docx", Base: 16384,
 			About: "n paragraphs",
 			Make:  func(n int) ([]byte, error) { return docx(rep("<w:p><w:r><w:t>A word.</w:t></w:r></w:p>", n)) }},
-		{Name: "docx-attributes", Format: "docx", Ext: ".docx", Base: 8192,
+		{Name: "docx-attributes", Format: "docx", Ext: ".docx", Base: 65536,
 			About: "one element with n attributes",
 			Make: func(n int) ([]byte, error) {
 				var b strings.Builder
@@ -212,7 +216,7 @@ func Shapes() []Shape {
 				b.WriteString("><w:t>text</w:t></w:r></w:p>")
 				return docx(b.String())
 			}},
-		{Name: "docx-namespaces", Format: "docx", Ext: ".docx", Base: 8192,
+		{Name: "docx-namespaces", Format: "docx", Ext: ".docx", Base: 32768,
 			About: "one element declaring n namespaces",
 			Make: func(n int) ([]byte, error) {
 				var b strings.Builder
@@ -228,15 +232,15 @@ func Shapes() []Shape {
 			Make: func(n int) ([]byte, error) {
 				return odt(join("<text:p>", rep(`<text:span>a</text:span><text:s text:c="3"/>`, n), "</text:p>"))
 			}},
-		{Name: "epub-chapters", Format: "epub", Ext: ".epub", Base: 1024,
+		{Name: "epub-chapters", Format: "epub", Ext: ".epub", Base: 2048,
 			About: "n chapters, each a member and a spine item",
 			Make:  epubChapters},
-		{Name: "epub-spine-repeats", Format: "epub", Ext: ".epub", Base: 4096,
+		{Name: "epub-spine-repeats", Format: "epub", Ext: ".epub", Base: 32768,
 			About: "one chapter named n times in the spine",
 			Make:  epubRepeats},
 
 		// ZIP archives.
-		{Name: "zip-members", Format: "zip", Ext: ".zip", Base: 1024,
+		{Name: "zip-members", Format: "zip", Ext: ".zip", Base: 2048,
 			About: "n small text members",
 			Make: func(n int) ([]byte, error) {
 				ms := make([]member, n)
@@ -245,7 +249,7 @@ func Shapes() []Shape {
 				}
 				return zipOf(ms...)
 			}},
-		{Name: "zip-nested", Format: "zip", Ext: ".zip", Base: 512,
+		{Name: "zip-nested", Format: "zip", Ext: ".zip", Base: 2048,
 			About: "n members that are ZIPs of one text",
 			Make: func(n int) ([]byte, error) {
 				ms := make([]member, n)
@@ -265,10 +269,10 @@ func Shapes() []Shape {
 			Make: plain(func(n int) []byte {
 				return lines(n, func(k int) string { return `{"id":` + strconv.Itoa(k) + `,"text":"Line text \u00e9 here."}` })
 			})},
-		{Name: "jsonl-long-line", Format: "jsonl", Ext: ".jsonl", Base: 16384,
+		{Name: "jsonl-long-line", Format: "jsonl", Ext: ".jsonl", Base: 32768,
 			About: "one line of n words with escapes",
 			Make:  plain(func(n int) []byte { return cat(`{"id":"x","text":"`, rep(`word \"q\" \u00e9 `, n), `"}`, "\n") })},
-		{Name: "jsonl-nested", Format: "jsonl", Ext: ".jsonl", Base: 16384,
+		{Name: "jsonl-nested", Format: "jsonl", Ext: ".jsonl", Base: 262144,
 			About: "lines with arrays nested 100 deep, n/100 lines",
 			Make: plain(func(n int) []byte {
 				return lines(max(1, n/100), func(k int) string {
@@ -277,19 +281,19 @@ func Shapes() []Shape {
 			})},
 
 		// Plain text: sniffing and decoding.
-		{Name: "text-long-line", Format: "text", Ext: ".txt", Base: 16384,
+		{Name: "text-long-line", Format: "text", Ext: ".txt", Base: 524288,
 			About: "one line of n words",
 			Make:  plain(func(n int) []byte { return cat(rep("word ", n), "\n") })},
-		{Name: "text-short-lines", Format: "text", Ext: ".txt", Base: 16384,
+		{Name: "text-short-lines", Format: "text", Ext: ".txt", Base: 1048576,
 			About: "n lines of one character (control-heavy for the binary test)",
 			Make:  plain(func(n int) []byte { return []byte(rep("a\n", n)) })},
-		{Name: "text-windows-1252", Format: "text", Ext: ".txt", Base: 16384,
+		{Name: "text-windows-1252", Format: "text", Ext: ".txt", Base: 262144,
 			About: "n words in Windows-1252 (not UTF-8)",
 			Make:  plain(func(n int) []byte { return []byte(rep("caf\xe9 na\xefve ", n)) })},
-		{Name: "text-utf16", Format: "text", Ext: ".txt", Base: 16384,
+		{Name: "text-utf16", Format: "text", Ext: ".txt", Base: 131072,
 			About: "n words in UTF-16LE with its byte-order mark",
 			Make:  plain(utf16Words)},
-		{Name: "text-email-like", Format: "text", Ext: ".txt", Base: 16384,
+		{Name: "text-email-like", Format: "text", Ext: ".txt", Base: 131072,
 			About: "a header-like first line then n lines that are not headers (the e-mail sniffer)",
 			Make:  plain(func(n int) []byte { return cat("From: someone\n", rep("x-not-a-header\n", n)) })},
 	}
