@@ -11,11 +11,12 @@
 // runs BenchmarkHostileRatios (package corpus: every shape at n, 2n and 4n,
 // through the extractor as Read runs it, the three sizes in alternation,
 // -benchtime rounds) -count times, and prints, from the medians, a Markdown
-// table of the time and allocated bytes at n and their growth per
-// doubling; it exits with status 1 when a ratio is above -max.
-// Linear code gives 2x; the margin above it is for the noise of a shared
-// machine and the caches (a file of 1 MiB no longer fits where 256 KiB
-// did), which is why the table takes medians and ratios, never a time.
+// table of the time (processor time of the reading thread, on Linux) and
+// allocated bytes at n and their growth per doubling; it exits with status
+// 1 when a ratio is above -max. Linear code gives 2x; the margin above it
+// is for the noise of a shared machine and of memory (fresh pages, the
+// collector), which is why the table takes medians and ratios, never a
+// time.
 //
 //	go run ./scripts/hostile -big 1MiB [-runs 5] [-shapes a,b]
 //
