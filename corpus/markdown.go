@@ -2,6 +2,7 @@ package corpus
 
 import (
 	"bytes"
+	"slices"
 	"unicode"
 	"unicode/utf8"
 )
@@ -621,8 +622,13 @@ const inlineAsk = 1 << 10
 // several lines) or one heading or table row. It returns false when the
 // deadline passed before the end.
 func (m *mdBlanker) inline(b []byte, s, e int) bool {
-	m.delims = m.delims[:0]
-	m.brackets = m.brackets[:0]
+	// The delimiter runs and brackets are at most the paragraph's '*',
+	// '_', '~' and '[' bytes: room for that many at once costs one
+	// allocation of the final size, where growing by append allocated
+	// about five times it (a paragraph of 10^5 runs: 50 MiB for 1 MiB).
+	p := b[s:e]
+	m.delims = slices.Grow(m.delims[:0], bytes.Count(p, []byte("*"))+bytes.Count(p, []byte("_"))+bytes.Count(p, []byte("~")))
+	m.brackets = slices.Grow(m.brackets[:0], bytes.Count(p, []byte("[")))
 	m.linkFloor = 0
 	for k := range m.noClose {
 		m.noClose[k], m.found[k] = -1, -1
@@ -1000,7 +1006,7 @@ func (m *mdBlanker) addDelim(b []byte, s, e, i, n int) {
 // ("*a *a ... a* a*") cost linear time too, not n².
 func (m *mdBlanker) emphasis(b []byte) {
 	d := m.delims
-	m.jump = m.jump[:0]
+	m.jump = slices.Grow(m.jump[:0], len(d))
 	for k := range d {
 		m.jump = append(m.jump, k)
 	}
