@@ -72,7 +72,8 @@ func BenchmarkHostileGrowth(b *testing.B) {
 
 // BenchmarkHostileRatios reports, per shape, t2n/n and t4n/2n (time of
 // one read at 2n over n, 4n over 2n: medians over the rounds, each read
-// after a collection so that none pays for another's garbage) and a2n/n,
+// after a collection so that none pays for another's garbage, with the
+// collector off during the read) and a2n/n,
 // a4n/2n (bytes allocated by one read, counted by the runtime). The time
 // is the processor time of the reading thread (threadTime; the wall clock
 // where there is none): on a shared machine the wall clock also counts the
