@@ -87,6 +87,11 @@ type Options struct {
 	// PDFTimeout: how long pdftotext may run on one PDF; 0 means
 	// DefaultPDFTimeout.
 	PDFTimeout time.Duration
+	// FileTimeout: how long the extraction of one file may take (a ZIP
+	// archive's members together, a PDF's pdftotext run included; for a
+	// JSON Lines file, one line); a file that runs past it is skipped
+	// with the reason. 0 means DefaultFileTimeout.
+	FileTimeout time.Duration
 	// SkipQuotedReplies: leave out the lines of an e-mail body that start
 	// with ">" (quoted replies), with a Note saying how many. By default
 	// they are kept and the Note says how many there are.

@@ -116,6 +116,7 @@ func FuzzDecode(f *testing.F) {
 	f.Add([]byte("\xFE\xFF\x00a\xD8\x00"))
 	f.Add([]byte("caf\xe9 \x93q\x94"))
 	f.Add([]byte("\x00\x01"))
+	seedHostile(f, "text")
 	f.Fuzz(func(t *testing.T, raw []byte) {
 		d, err := decode(raw)
 		if err != nil {

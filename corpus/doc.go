@@ -113,7 +113,33 @@
 // members per archive (10,000), compression ratio of a member over 1 MiB
 // (100; checked from the central directory, so a ZIP bomb is refused
 // before a byte is inflated), nesting depth of HTML and XML elements, RTF
-// groups and MIME parts (256), and pdftotext's run time (30 s) and output.
+// groups and MIME parts (256), pdftotext's run time (30 s) and output,
+// and the time one file may take to extract (Options.FileTimeout, 60 s).
+//
+// Every extractor is linear in its input, and each is checked for it on
+// generated hostile inputs (internal/hostile: deep nesting, long runs of
+// openers that never close or close once far away, many tiny elements,
+// long lines, many header fields, many ZIP members) by the growth
+// benchmark: time and allocated bytes at n, 2n and 4n, at most 2.5 times
+// per doubling (growth_test.go; BENCHMARKS.md, "Hostile inputs"). Where a
+// format nests, the depth is capped by MaxDepth and a deeper file refused.
+// An EPUB spine of n items used to look each up among the members one by
+// one and to read a content document again each time it was named:
+// members are now looked up by name, and each is read once (a Note counts
+// the repeats). The per-file deadline is a
+// backstop behind that, not the defence: it is asked cooperatively
+// (deadline.go) by every extractor's loop, at each line, token, group,
+// MIME part or member, reading the clock once every 256 questions; when
+// it has passed the extraction returns at once, its memory is dropped,
+// and the file is skipped with the reason ("--file-timeout"). A ZIP
+// archive's members share their archive's deadline (those not reached are
+// listed one by one), a PDF's pdftotext run is bounded by what is left of
+// it, and a JSON Lines file, a corpus that may take hours, has one per
+// line, asked once the line is decoded (encoding/json cannot be
+// stopped; the line's size bounds it). Rejected: running each extraction
+// in a goroutine abandoned at the deadline, which would leave it running,
+// holding a core and its memory, until it ended by itself.
+//
 // XML is streamed with encoding/xml, which expands no entity a document
 // declares; a document that declares some is refused by name. pdftotext
 // runs with no shell, its arguments passed directly. A malformed file is
@@ -174,8 +200,20 @@
 // one sentence.
 //
 // The blanker is a line pass for blocks and a paragraph pass for inline
-// markup, linear in the input except for link and HTML scans, which stop
-// at the paragraph's end. It is not a CommonMark parser, which was
+// markup, linear in the input: every search ahead is remembered for the
+// rest of its line or paragraph, so that no prefix is scanned again. The
+// thematic-break test of a line of many list markers ("- - - ... x") stops
+// where it failed before; a closer searched for (a title's ")" or quote,
+// "-->", "?>") is found once and is the answer for every later start
+// before it, and its absence is remembered too; backtick runs seen ahead
+// are recorded by length, so an opener whose length has no run left fails
+// at once; a link that closes leaves the brackets below it to be dropped
+// as they surface rather than filtering the stack; and emphasis pairing
+// jumps over the delimiter runs a match used up (with path compression),
+// as CommonMark removes them from its list. The changes keep the output
+// byte for byte: TestMarkdownMatchesReference and
+// FuzzMarkdownMatchesReference compare it with the blanker as it was
+// before them (markdown_ref_test.go). It is not a CommonMark parser, which was
 // rejected for the size of the code and because a parser produces a tree,
 // not a length-preserving text: containers are recognised on the line
 // where they start (lazy continuation lines are plain text), indented code

@@ -72,7 +72,7 @@ func docxPart(f *zip.File, in *input, w *paraWriter) error {
 	}
 	inText := false
 	skip := 0 // depth of the element whose subtree is skipped, 0 for none
-	return xmlWalk(data, f.Name, in.opt.MaxDepth, func(tok xml.Token, depth int) error {
+	return xmlWalk(data, f.Name, in.opt.MaxDepth, in.dl, func(tok xml.Token, depth int) error {
 		switch t := tok.(type) {
 		case xml.StartElement:
 			if skip > 0 {

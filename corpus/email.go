@@ -165,7 +165,7 @@ func (emailText) extract(in *input) (extraction, error) {
 		body, encName = strings.ReplaceAll(string(b.plain), "\r\n", "\n"), b.plainCS
 	case b.hasHTML:
 		w := &paraWriter{limit: int(in.opt.MaxMemberBytes)}
-		cs, err := htmlInto(w, b.html, b.htmlCT, in.opt.MaxDepth)
+		cs, err := htmlInto(w, b.html, b.htmlCT, in.opt.MaxDepth, in.dl)
 		if err != nil {
 			return extraction{}, err
 		}
@@ -200,6 +200,9 @@ func (emailText) extract(in *input) (extraction, error) {
 // walk visits one MIME entity and, for a multipart, its parts.
 func (b *emailBody) walk(in *input, ct, cte, disp string, r io.Reader, depth int) error {
 	b.parts++
+	if in.dl.passed() {
+		return in.dl.err()
+	}
 	if depth > in.opt.MaxDepth {
 		return refuse(fmt.Sprintf("e-mail nests MIME parts more than %d deep (--max-depth)", in.opt.MaxDepth))
 	}

@@ -1,6 +1,7 @@
 package corpus
 
 import (
+	"archive/zip"
 	"encoding/xml"
 	"fmt"
 	"net/url"
@@ -37,7 +38,7 @@ func (epubText) extract(in *input) (extraction, error) {
 		return extraction{}, err
 	}
 	opfPath := ""
-	err = xmlWalk(data, "META-INF/container.xml", in.opt.MaxDepth, func(tok xml.Token, _ int) error {
+	err = xmlWalk(data, "META-INF/container.xml", in.opt.MaxDepth, in.dl, func(tok xml.Token, _ int) error {
 		if t, ok := tok.(xml.StartElement); ok && t.Name.Local == "rootfile" && opfPath == "" {
 			opfPath = attr(t, "full-path")
 		}
@@ -56,7 +57,7 @@ func (epubText) extract(in *input) (extraction, error) {
 	type item struct{ href, media string }
 	manifest := map[string]item{}
 	var spine []string
-	err = xmlWalk(opf, opfPath, in.opt.MaxDepth, func(tok xml.Token, _ int) error {
+	err = xmlWalk(opf, opfPath, in.opt.MaxDepth, in.dl, func(tok xml.Token, _ int) error {
 		t, ok := tok.(xml.StartElement)
 		if !ok {
 			return nil
@@ -77,7 +78,18 @@ func (epubText) extract(in *input) (extraction, error) {
 	}
 	w := &paraWriter{limit: int(in.opt.MaxMemberBytes)}
 	dir := path.Dir(opfPath)
+	// The members by name (the first of a name, as findMember), looked up
+	// once per spine item: asking findMember each time cost members ×
+	// spine items.
+	members := make(map[string]*zip.File, len(zr.File))
+	for _, f := range zr.File {
+		if _, ok := members[f.Name]; !ok {
+			members[f.Name] = f
+		}
+	}
 	var missing []string
+	read := map[string]bool{}
+	repeats := 0
 	chapter := 0
 	for _, id := range spine {
 		it, ok := manifest[id]
@@ -93,18 +105,26 @@ func (epubText) extract(in *input) (extraction, error) {
 			href = it.href
 		}
 		name := path.Join(dir, href)
-		f := findMember(zr, name)
+		f := members[name]
 		if f == nil {
 			missing = append(missing, name)
 			continue
 		}
+		// A content document named again in the spine is not read again:
+		// a spine of n items naming one large chapter would otherwise
+		// cost n times the chapter from a file of n small items.
+		if read[name] {
+			repeats++
+			continue
+		}
+		read[name] = true
 		raw, err := readMember(f, in)
 		if err != nil {
 			return extraction{}, fmt.Errorf("%s: %w", name, err)
 		}
 		mark := len(w.marks)
 		w.newChapter(chapter + 1)
-		if _, err := htmlInto(w, raw, "", in.opt.MaxDepth); err != nil {
+		if _, err := htmlInto(w, raw, "", in.opt.MaxDepth, in.dl); err != nil {
 			return extraction{}, fmt.Errorf("%s: %w", name, err)
 		}
 		if len(w.marks) > mark {
@@ -112,6 +132,9 @@ func (epubText) extract(in *input) (extraction, error) {
 		}
 	}
 	var notes []string
+	if repeats > 0 {
+		notes = append(notes, fmt.Sprintf("%d spine items name a content document already read: not read again", repeats))
+	}
 	if len(missing) > 0 {
 		notes = append(notes, fmt.Sprintf("%d spine items not found in the package and not read: %s", len(missing), strings.Join(missing, ", ")))
 	}

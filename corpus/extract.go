@@ -47,6 +47,9 @@ type input struct {
 	// owned: raw is the buffer readFile allocated for this one file, and
 	// nothing writes to it once read, so a text may alias it (text.go).
 	owned bool
+	// dl is the file's deadline (deadline.go), shared by the members of
+	// a ZIP archive; nil for none.
+	dl *deadline
 }
 
 // An extraction is what an extractor hands back.
@@ -244,6 +247,9 @@ func extractFile(name string, in *input) []part {
 		return []part{{reason: reasonEmpty}}
 	}
 	e, err := x.extract(in)
+	if err == nil && in.dl.check() { // finished, but late: skipped all the same
+		err = in.dl.err()
+	}
 	if err != nil {
 		return []part{{reason: reasonOf(err)}}
 	}

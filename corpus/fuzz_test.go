@@ -4,11 +4,14 @@ import (
 	"strings"
 	"testing"
 	"unicode/utf8"
+
+	"reprise/internal/hostile"
 )
 
 // Fuzz targets, one per extractor of untrusted input. Each is seeded with
 // the committed fixtures (valid), a truncated and a bit-flipped copy of
-// them (broken) and the hostile cases of TestHostileFiles, and checks what
+// them (broken), the hostile cases of TestHostileFiles and the shapes of
+// internal/hostile for its format (seedHostile), and checks what
 // must hold for every input: no panic, no hang (bounded by the limits
 // below), valid UTF-8 text, marks in order inside the text. Run one with
 // e.g. go test -run '^$' -fuzz FuzzExtractDOCX -fuzztime 10s ./corpus;
@@ -21,6 +24,26 @@ func fuzzOptions(t testing.TB) *Options {
 	o.MaxContainerBytes = 4 << 20
 	o.MaxMembers = 200
 	return o
+}
+
+// seedHostile adds the shapes of internal/hostile for a format: small (16
+// repetitions), and those that must be refused just past the default
+// depth limit.
+func seedHostile(f *testing.F, format string) {
+	for _, s := range hostile.Shapes() {
+		if s.Format != format {
+			continue
+		}
+		n := 16
+		if s.Refused {
+			n = DefaultMaxDepth + 44
+		}
+		raw, err := s.Make(n)
+		if err != nil {
+			f.Fatal(err)
+		}
+		f.Add(raw)
+	}
 }
 
 func seed(f *testing.F, files ...string) {
@@ -64,16 +87,19 @@ func FuzzExtractDOCX(f *testing.F) {
 	seed(f, "essay/essay.docx", "policy/policy.docx")
 	f.Add(nestedDocx(f, 300))
 	f.Add(zipOf(f, zipMember{name: "word/document.xml", data: []byte(billionLaughs)}))
+	seedHostile(f, "docx")
 	fuzzExtractor(f, docxText{})
 }
 
 func FuzzExtractODT(f *testing.F) {
 	seed(f, "essay/essay.odt", "policy/policy.odt")
+	seedHostile(f, "odt")
 	fuzzExtractor(f, odtText{})
 }
 
 func FuzzExtractEPUB(f *testing.F) {
 	seed(f, "essay/essay.epub", "policy/policy.epub")
+	seedHostile(f, "epub")
 	fuzzExtractor(f, epubText{})
 }
 
@@ -81,12 +107,14 @@ func FuzzExtractHTML(f *testing.F) {
 	seed(f, "essay/essay.html", "policy/policy.html")
 	f.Add([]byte("<!doctype html>" + strings.Repeat("<div>", 300)))
 	f.Add([]byte("<meta charset=shift_jis><p>\x82\xa0</p>"))
+	seedHostile(f, "html")
 	fuzzExtractor(f, htmlText{})
 }
 
 func FuzzExtractRTF(f *testing.F) {
 	seed(f, "essay/essay.rtf", "policy/policy.rtf")
 	f.Add([]byte(`{\rtf1\ansi\ansicpg932\uc2 \u-3913\'82\'a0x\bin99999 {{{`))
+	seedHostile(f, "rtf")
 	fuzzExtractor(f, rtfText{})
 }
 
@@ -94,6 +122,7 @@ func FuzzExtractEmail(f *testing.F) {
 	f.Add([]byte("From: a@example.org\r\nDate: Mon, 4 Mar 2024 09:30:00 +0000\r\nSubject: =?utf-8?q?caf=C3=A9?=\r\n\r\nBody\r\n> quoted\r\n"))
 	f.Add([]byte("From: a@example.org\r\nContent-Type: multipart/mixed; boundary=b\r\n\r\n--b\r\nContent-Type: text/html; charset=koi8-r\r\nContent-Transfer-Encoding: base64\r\n\r\nPHA+aGk8L3A+\r\n--b--\r\n"))
 	f.Add([]byte("From: a@example.org\r\nContent-Type: multipart/mixed; boundary=b\r\n\r\n--b\r\nContent-Type: multipart/mixed; boundary=b\r\n\r\n--b\r\n"))
+	seedHostile(f, "email")
 	fuzzExtractor(f, emailText{})
 }
 
@@ -123,6 +152,7 @@ func FuzzExtractZIP(f *testing.F) {
 	seed(f, "essay/essay.docx")
 	f.Add(zipOf(f, zipMember{name: "a.txt", data: []byte("The boat is back.")}, zipMember{name: "in.zip", data: zipOf(f, zipMember{name: "b.txt", data: []byte("words")})}))
 	f.Add(zipOf(f, zipMember{name: "s.txt", data: []byte("secret"), flags: 1}))
+	seedHostile(f, "zip")
 	f.Fuzz(func(t *testing.T, raw []byte) {
 		opt := fuzzOptions(t)
 		budget := opt.MaxContainerBytes

@@ -60,7 +60,7 @@ func (htmlText) sniff(head []byte) bool {
 
 func (htmlText) extract(in *input) (extraction, error) {
 	w := &paraWriter{limit: int(in.opt.MaxMemberBytes)}
-	enc, err := htmlInto(w, in.raw, "", in.opt.MaxDepth)
+	enc, err := htmlInto(w, in.raw, "", in.opt.MaxDepth, in.dl)
 	if err != nil {
 		return extraction{}, err
 	}
@@ -68,8 +68,9 @@ func (htmlText) extract(in *input) (extraction, error) {
 }
 
 // htmlInto adds the visible text of one HTML document to w and returns
-// the name of the character set it was decoded from.
-func htmlInto(w *paraWriter, raw []byte, contentType string, maxDepth int) (string, error) {
+// the name of the character set it was decoded from. It asks dl at every
+// token.
+func htmlInto(w *paraWriter, raw []byte, contentType string, maxDepth int, dl *deadline) (string, error) {
 	var r io.Reader = bytes.NewReader(raw)
 	_, name, _ := charset.DetermineEncoding(raw[:min(len(raw), 1024)], contentType)
 	if !(name == "utf-8" && utf8.Valid(raw)) {
@@ -85,6 +86,9 @@ func htmlInto(w *paraWriter, raw []byte, contentType string, maxDepth int) (stri
 	var stack []atom.Atom
 	hidden := 0 // open elements whose text is not shown
 	for {
+		if dl.passed() {
+			return "", dl.err()
+		}
 		tt := z.Next()
 		switch tt {
 		case html.ErrorToken:

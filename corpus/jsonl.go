@@ -32,6 +32,12 @@ import (
 // and a CR before each LF are dropped. Invalid UTF-8 inside a JSON string
 // is replaced by U+FFFD (encoding/json does that).
 //
+// Options.FileTimeout applies to each line, not to the file (a corpus may
+// take hours to read): a line whose reading and decoding ran past it is
+// listed as skipped. encoding/json cannot be stopped midway, so the clock
+// is read once the line is decoded; what bounds the decoding is the line's
+// size limit and encoding/json's linear time.
+//
 // The file is streamed through a bufio.Reader, one line at a time, and never
 // read whole: a JSONL corpus is usually far larger than any one document,
 // so MaxFileSize (a per-document limit) does not apply to the file. What
@@ -99,6 +105,7 @@ func eachJSONL(r io.Reader, opt *Options, emit func(*part)) (int, error) {
 	for n := 1; ; n++ {
 		var tooLong bool
 		var err error
+		dl := newDeadline(opt.FileTimeout) // per line: a corpus file may take hours
 		line, tooLong, err = readLine(br, line[:0], limit)
 		if err != nil && !errors.Is(err, io.EOF) {
 			return n - 1, err
@@ -108,6 +115,10 @@ func eachJSONL(r io.Reader, opt *Options, emit func(*part)) (int, error) {
 				line = bytes.TrimPrefix(line, []byte("\uFEFF"))
 			}
 			if p := jsonlPart(line, tooLong, limit, idField, textField, n, seen); p != nil {
+				if p.reason == "" && dl.check() {
+					delete(seen, p.sub[1:]) // the id is free again: no document has it
+					p = &part{sub: ":" + strconv.Itoa(n), reason: fmt.Sprintf("line %d: ", n) + timedOutReason(opt.FileTimeout)}
+				}
 				emit(p)
 			}
 		}

@@ -130,6 +130,7 @@ func FuzzJSONL(f *testing.F) {
 	f.Add([]byte(`{"id":"a","text":"One."}` + "\n" + `{"id":2,"text":"Two \ud83d"}`))
 	f.Add([]byte("\uFEFF{\"id\":\"x\",\"text\":\"\\u0000\"}\r\n\n[1]\n{\"id\":\"x\",\"text\":\"dup\"}"))
 	f.Add([]byte("{\"id\":\"\xff\",\"text\":\"bad \xfe bytes\"}\n{\"id\":1e3,\"text\":\"n\"}"))
+	seedHostile(f, "jsonl")
 	f.Fuzz(func(t *testing.T, raw []byte) {
 		o := testOptions(t)
 		o.MaxJSONLLine = 1 << 10

@@ -16,6 +16,7 @@ const (
 	DefaultMaxRatio          = 100
 	DefaultMaxDepth          = 256
 	DefaultPDFTimeout        = 30 * time.Second
+	DefaultFileTimeout       = 60 * time.Second
 )
 
 // MinRatioCheck: members of at most this many uncompressed bytes are not
@@ -63,6 +64,12 @@ func (o *Options) limitDefaults() error {
 		return fmt.Errorf("corpus: pdftotext timeout %v is negative", o.PDFTimeout)
 	case o.PDFTimeout == 0:
 		o.PDFTimeout = DefaultPDFTimeout
+	}
+	switch {
+	case o.FileTimeout < 0:
+		return fmt.Errorf("corpus: file timeout %v is negative", o.FileTimeout)
+	case o.FileTimeout == 0:
+		o.FileTimeout = DefaultFileTimeout
 	}
 	if o.PDFToText == "" {
 		o.PDFToText = "pdftotext"

@@ -2,6 +2,7 @@ package corpus
 
 import (
 	"bytes"
+	"slices"
 	"unicode"
 	"unicode/utf8"
 )
@@ -27,8 +28,10 @@ func (markdown) extract(in *input) (extraction, error) {
 		return extraction{}, err
 	}
 	b := bytes.Clone(d.text)
-	var m mdBlanker
-	m.blank(b)
+	m := mdBlanker{dl: in.dl}
+	if err := m.blank(b); err != nil {
+		return extraction{}, err
+	}
 	if onlySpace(b) {
 		return extraction{}, refuse(reasonMarkupOnly)
 	}
@@ -43,13 +46,39 @@ func (markdown) extract(in *input) (extraction, error) {
 // slices are scratch space reused between paragraphs; a blanker is used by
 // one goroutine.
 type mdBlanker struct {
+	dl       *deadline // asked once per line and once per paragraph
 	lines    []mdLine
 	delims   []mdDelim
 	brackets []mdBracket
+	// jump[k] < k says the delimiter runs jump[k]+1 to k are used up
+	// (emphasis): the search for an opener leaps over them.
+	jump []int
 	// noClose[k] >= 0 means that closer k (see closers) does not occur in
 	// the current paragraph at or after that offset, so that a paragraph
-	// of many unclosed "<!--" costs linear time, not quadratic.
+	// of many unclosed "<!--" costs linear time, not quadratic; found[k]
+	// is the offset of the first closer k at or after an earlier search's
+	// start, the answer for any later search starting at or before it
+	// (the bytes ahead of the scan are never changed before it gets
+	// there), so that many "[a](b (" before one far ")" are linear too.
 	noClose [len(closers)]int
+	found   [len(closers)]int
+	// ticks and ticksAll remember the backtick runs seen ahead of the
+	// scan by closingBackticks: ticks[n] is the start of the last run of
+	// exactly n backticks seen, and ticksAll says the search went to the
+	// paragraph's end, so that an opener whose length has no run left
+	// fails at once instead of scanning the rest again.
+	ticks    map[int]int
+	ticksAll bool
+	// linkFloor: the brackets below this index that are not images can
+	// no longer open a link (a link closed above them: links cannot
+	// contain links); they are dropped when they come to the top.
+	linkFloor int
+	// rule caches the last failed thematic-break test of the current
+	// line: from any position before ruleFail whose byte is ruleChar the
+	// test fails at ruleFail again. Only lines of many list markers ("- -
+	// - - x") ask it repeatedly.
+	ruleChar byte
+	ruleFail int
 }
 
 // closers are the strings some inline constructs search ahead for.
@@ -68,11 +97,15 @@ func (m *mdBlanker) find(b []byte, i, e, k int) int {
 	if m.noClose[k] >= 0 && i >= m.noClose[k] {
 		return -1
 	}
+	if m.found[k] >= i {
+		return m.found[k]
+	}
 	j := bytes.Index(b[i:e], []byte(closers[k]))
 	if j < 0 {
 		m.noClose[k] = i
 		return -1
 	}
+	m.found[k] = i + j
 	return i + j
 }
 
@@ -165,27 +198,38 @@ func (m *mdBlanker) splitLines(b []byte) {
 	}
 }
 
-// blank removes the markup of the Markdown text b in place.
-func (m *mdBlanker) blank(b []byte) {
+// blank removes the markup of the Markdown text b in place. The error is
+// the deadline's, when it passed.
+func (m *mdBlanker) blank(b []byte) error {
 	m.splitLines(b)
 	first := m.frontMatter(b)
-	m.blocks(b, first)
+	if !m.blocks(b, first) {
+		return m.dl.err()
+	}
 	for i := 0; i < len(m.lines); {
+		if m.dl.passed() {
+			return m.dl.err()
+		}
 		switch m.lines[i].kind {
 		case lineSolo:
-			m.inline(b, m.lines[i].start, m.lines[i].end)
+			if !m.inline(b, m.lines[i].start, m.lines[i].end) {
+				return m.dl.err()
+			}
 			i++
 		case lineText:
 			j := i
 			for j+1 < len(m.lines) && m.lines[j+1].kind == lineText {
 				j++
 			}
-			m.inline(b, m.lines[i].start, m.lines[j].end)
+			if !m.inline(b, m.lines[i].start, m.lines[j].end) {
+				return m.dl.err()
+			}
 			i = j + 1
 		default:
 			i++
 		}
 	}
+	return nil
 }
 
 // frontMatter blanks a YAML front matter block ("---" on the first line up
@@ -211,8 +255,9 @@ func lineIs(b []byte, l mdLine, s string) bool {
 	return string(b[l.start:trimBlankEnd(b, l.start, l.end)]) == s
 }
 
-// blocks classifies lines from first on and blanks block-level markup.
-func (m *mdBlanker) blocks(b []byte, first int) {
+// blocks classifies lines from first on and blanks block-level markup. It
+// returns false when the deadline passed before the end.
+func (m *mdBlanker) blocks(b []byte, first int) bool {
 	var (
 		fenceChar  byte // '`' or '~' inside a fenced code block, else 0
 		fenceLen   int
@@ -222,6 +267,9 @@ func (m *mdBlanker) blocks(b []byte, first int) {
 		tableOpen  bool // the previous line is a table row
 	)
 	for i := first; i < len(m.lines); i++ {
+		if m.dl.passed() {
+			return false
+		}
 		l := &m.lines[i]
 		s, e := l.start, l.end
 		if fenceChar != 0 {
@@ -264,6 +312,7 @@ func (m *mdBlanker) blocks(b []byte, first int) {
 		// them, in any order ("> 1. - text").
 		p := s
 		inList := false
+		m.ruleFail = -1
 		for {
 			q := skipBlank(b, p, e)
 			if q < e && b[q] == '>' {
@@ -271,7 +320,7 @@ func (m *mdBlanker) blocks(b []byte, first int) {
 				p = q + 1
 				continue
 			}
-			if isRule(b, q, e) {
+			if m.isRule(b, q, e) {
 				break
 			}
 			if n := listMarker(b, q, e, paraOpen && !paraInList); n > 0 {
@@ -330,7 +379,7 @@ func (m *mdBlanker) blocks(b []byte, first int) {
 				continue
 			}
 		}
-		if isRule(b, q, e) {
+		if m.isRule(b, q, e) {
 			blankRange(b, q, e)
 			l.kind = lineGone
 			paraOpen = false
@@ -360,6 +409,7 @@ func (m *mdBlanker) blocks(b []byte, first int) {
 		}
 		paraOpen = true
 	}
+	return true
 }
 
 // runOf returns how many bytes equal to c start at b[i], up to e.
@@ -415,18 +465,26 @@ func listMarker(b []byte, q, e int, interrupting bool) int {
 }
 
 // isRule reports whether b[q:e] is a thematic break: three or more of the
-// same '*', '-' or '_', with only blanks between.
-func isRule(b []byte, q, e int) bool {
+// same '*', '-' or '_', with only blanks between. A failed test is
+// remembered (ruleChar, ruleFail; the caller resets ruleFail to -1 at each
+// line): the bytes from q to the failing one are all the rule's character
+// or blanks, so a test from any later q before it, at the same character,
+// fails there too. A line of n list markers then costs n steps, not n².
+func (m *mdBlanker) isRule(b []byte, q, e int) bool {
 	if q >= e || (b[q] != '*' && b[q] != '-' && b[q] != '_') {
 		return false
 	}
 	c, n := b[q], 0
+	if q < m.ruleFail && c == m.ruleChar {
+		return false
+	}
 	for k := q; k < e; k++ {
 		switch {
 		case b[k] == c:
 			n++
 		case isBlankByte(b[k]):
 		default:
+			m.ruleChar, m.ruleFail = c, k
 			return false
 		}
 	}
@@ -556,15 +614,35 @@ func isReferenceDefinition(b []byte, q, e int) bool {
 	return end-t >= 2 && b[end-1] == closer
 }
 
+// inlineAsk is how many bytes of a paragraph inline goes through between
+// two questions to the deadline.
+const inlineAsk = 1 << 10
+
 // inline removes inline markup from b[s:e], one paragraph (which may span
-// several lines) or one heading or table row.
-func (m *mdBlanker) inline(b []byte, s, e int) {
-	m.delims = m.delims[:0]
-	m.brackets = m.brackets[:0]
+// several lines) or one heading or table row. It returns false when the
+// deadline passed before the end.
+func (m *mdBlanker) inline(b []byte, s, e int) bool {
+	// The delimiter runs and brackets are at most the paragraph's '*',
+	// '_', '~' and '[' bytes: room for that many at once costs one
+	// allocation of the final size, where growing by append allocated
+	// about five times it (a paragraph of 10^5 runs: 50 MiB for 1 MiB).
+	p := b[s:e]
+	m.delims = slices.Grow(m.delims[:0], bytes.Count(p, []byte("*"))+bytes.Count(p, []byte("_"))+bytes.Count(p, []byte("~")))
+	m.brackets = slices.Grow(m.brackets[:0], bytes.Count(p, []byte("[")))
+	m.linkFloor = 0
 	for k := range m.noClose {
-		m.noClose[k] = -1
+		m.noClose[k], m.found[k] = -1, -1
 	}
+	clear(m.ticks)
+	m.ticksAll = false
+	ask := s + inlineAsk
 	for i := s; i < e; {
+		if i >= ask {
+			if m.dl.passed() {
+				return false
+			}
+			ask = i + inlineAsk
+		}
 		switch c := b[i]; c {
 		case '\\':
 			if i+1 < e && isASCIIPunct(b[i+1]) {
@@ -578,7 +656,7 @@ func (m *mdBlanker) inline(b []byte, s, e int) {
 			i++
 		case '`':
 			n := runOf(b, i, e, '`')
-			if k := closingBackticks(b, i+n, e, n); k >= 0 {
+			if k := m.closingBackticks(b, i+n, e, n); k >= 0 {
 				blankRange(b, i, i+n)
 				blankRange(b, k, k+n)
 				i = k + n
@@ -616,6 +694,7 @@ func (m *mdBlanker) inline(b []byte, s, e int) {
 		}
 	}
 	m.emphasis(b)
+	return true
 }
 
 // closeBracket handles the ']' at b[i]: with an inline destination
@@ -623,11 +702,18 @@ func (m *mdBlanker) inline(b []byte, s, e int) {
 // destination are blanked and the text kept. It returns where scanning
 // goes on.
 func (m *mdBlanker) closeBracket(b []byte, i, e int) int {
+	// Brackets below linkFloor that are not images were taken out of the
+	// stack when a link closed above them; they go now, as they surface.
+	for len(m.brackets) > 0 && len(m.brackets)-1 < m.linkFloor && !m.brackets[len(m.brackets)-1].image {
+		m.brackets = m.brackets[:len(m.brackets)-1]
+	}
 	if len(m.brackets) == 0 {
+		m.linkFloor = 0
 		return i + 1
 	}
 	o := m.brackets[len(m.brackets)-1]
 	m.brackets = m.brackets[:len(m.brackets)-1]
+	m.linkFloor = min(m.linkFloor, len(m.brackets))
 	end := -1
 	if i+1 < e && b[i+1] == '(' {
 		end = m.inlineLinkEnd(b, i+1, e)
@@ -642,34 +728,46 @@ func (m *mdBlanker) closeBracket(b []byte, i, e int) int {
 	} else {
 		b[o.pos] = ' '
 		// Links cannot contain links: earlier '[' can no longer open one.
-		k := 0
-		for _, br := range m.brackets {
-			if br.image {
-				m.brackets[k] = br
-				k++
-			}
-		}
-		m.brackets = m.brackets[:k]
+		// They are dropped lazily (above), not by filtering the stack
+		// here, which made n image openers before n links cost n².
+		m.linkFloor = len(m.brackets)
 	}
 	blankRange(b, i, end)
 	return end
 }
 
 // closingBackticks returns the start of the next run of exactly n
-// backticks in b[i:e], or -1.
-func closingBackticks(b []byte, i, e, n int) int {
+// backticks in b[i:e], or -1. Every run it passes is recorded in ticks;
+// once a search has reached e, an opener with no run of its length at or
+// after i fails without scanning (openers of ever longer runs would
+// otherwise each scan the rest of the paragraph: n^1.5 for n bytes). A
+// successful search ends where the scan goes on, so the successful ones
+// cover each byte once.
+func (m *mdBlanker) closingBackticks(b []byte, i, e, n int) int {
+	if m.ticksAll {
+		if last, ok := m.ticks[n]; !ok || last < i {
+			return -1
+		}
+	}
+	if m.ticks == nil {
+		m.ticks = make(map[int]int)
+	}
 	for i < e {
 		k := bytes.IndexByte(b[i:e], '`')
 		if k < 0 {
-			return -1
+			break
 		}
 		i += k
 		r := runOf(b, i, e, '`')
+		if last, ok := m.ticks[r]; !ok || last < i {
+			m.ticks[r] = i
+		}
 		if r == n {
 			return i
 		}
 		i += r
 	}
+	m.ticksAll = true
 	return -1
 }
 
@@ -902,9 +1000,16 @@ func (m *mdBlanker) addDelim(b []byte, s, e, i, n int) {
 // nearest matching opener before it, and blanks the matched characters;
 // unmatched ones are literal text and stay. It follows CommonMark's
 // process-emphasis procedure (including the rule of three), with a floor
-// per kind of closer so that unmatched runs cost linear time.
+// per kind of closer so that unmatched runs cost linear time, and jumps
+// over the runs a match used up (CommonMark removes them from its
+// delimiter list), so that n nested openers and their n closers
+// ("*a *a ... a* a*") cost linear time too, not n².
 func (m *mdBlanker) emphasis(b []byte) {
 	d := m.delims
+	m.jump = slices.Grow(m.jump[:0], len(d))
+	for k := range d {
+		m.jump = append(m.jump, k)
+	}
 	var floor [18]int // per (char, closer can open, closer length mod 3): no opener below this index
 	for ci := range d {
 		if !d[ci].close {
@@ -914,6 +1019,10 @@ func (m *mdBlanker) emphasis(b []byte) {
 			key := delimKey(d[ci])
 			oi := ci - 1
 			for ; oi >= floor[key]; oi-- {
+				if m.jump[oi] != oi {
+					oi = m.live(oi) + 1 // the loop's oi-- lands on it
+					continue
+				}
 				o := &d[oi]
 				if o.n == 0 || !o.open || o.c != d[ci].c {
 					continue
@@ -946,11 +1055,37 @@ func (m *mdBlanker) emphasis(b []byte) {
 			blankRange(b, d[ci].pos, d[ci].pos+use)
 			d[ci].pos += use
 			d[ci].n -= use
-			for k := oi + 1; k < ci; k++ {
-				d[k].n = 0 // runs between a matched pair can no longer match
+			// Runs between a matched pair can no longer match; those a
+			// jump leaps over are used up already (a jump never leaps
+			// below a live opener, which would then have been between
+			// an earlier pair).
+			for k := ci - 1; k > oi; {
+				if r := m.live(k); r != k {
+					k = r
+					continue
+				}
+				d[k].n = 0
+				k--
+			}
+			if oi+1 < ci {
+				m.jump[ci-1] = oi
 			}
 		}
 	}
+}
+
+// live returns the first index at or below k that no jump leaps over,
+// shortening the jumps it followed (path compression, as in union-find),
+// so that every used-up run is passed over a bounded number of times.
+func (m *mdBlanker) live(k int) int {
+	r := k
+	for m.jump[r] != r {
+		r = m.jump[r]
+	}
+	for m.jump[k] != k {
+		m.jump[k], k = r, m.jump[k]
+	}
+	return r
 }
 
 func delimKey(d mdDelim) int {

@@ -197,6 +197,7 @@ func FuzzMarkdown(f *testing.F) {
 	} {
 		f.Add([]byte(s))
 	}
+	seedHostile(f, "markdown")
 	f.Fuzz(func(t *testing.T, in []byte) {
 		b := bytes.Clone(in)
 		var m mdBlanker

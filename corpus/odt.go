@@ -40,7 +40,7 @@ func (odtText) extract(in *input) (extraction, error) {
 	var notes paraWriter
 	w := body
 	skip, noteBody, citation := 0, 0, 0
-	err = xmlWalk(data, "content.xml", in.opt.MaxDepth, func(tok xml.Token, depth int) error {
+	err = xmlWalk(data, "content.xml", in.opt.MaxDepth, in.dl, func(tok xml.Token, depth int) error {
 		switch t := tok.(type) {
 		case xml.StartElement:
 			if skip > 0 || citation > 0 {

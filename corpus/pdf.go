@@ -9,6 +9,7 @@ import (
 	"os/exec"
 	"path/filepath"
 	"strings"
+	"time"
 	"unicode"
 	"unicode/utf8"
 )
@@ -71,7 +72,15 @@ func (pdfText) extract(in *input) (extraction, error) {
 	if strings.HasPrefix(name, "-") { // never read as an option
 		name = "." + string(filepath.Separator) + name
 	}
-	ctx, cancel := context.WithTimeout(context.Background(), in.opt.PDFTimeout)
+	// The run is bounded by --pdf-timeout and by what is left of the
+	// file's deadline (a PDF member of a ZIP shares the archive's).
+	limit, byFile := in.opt.PDFTimeout, false
+	if in.dl != nil {
+		if left := time.Until(in.dl.at); left < limit {
+			limit, byFile = max(left, 0), true
+		}
+	}
+	ctx, cancel := context.WithTimeout(context.Background(), limit)
 	defer cancel()
 	cmd := exec.CommandContext(ctx, prog, "-enc", "UTF-8", "-eol", "unix", name, "-")
 	out := &cappedBuffer{limit: int(in.opt.MaxMemberBytes), onOver: cancel}
@@ -82,6 +91,8 @@ func (pdfText) extract(in *input) (extraction, error) {
 	switch {
 	case out.over:
 		return extraction{}, refuse(fmt.Sprintf("pdftotext wrote more than the %s limit (--max-member-size)", formatSize(in.opt.MaxMemberBytes)))
+	case ctx.Err() != nil && byFile:
+		return extraction{}, in.dl.err()
 	case ctx.Err() != nil:
 		return extraction{}, refuse(fmt.Sprintf("pdftotext did not finish within %v (--pdf-timeout)", in.opt.PDFTimeout))
 	case err != nil:

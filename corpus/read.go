@@ -238,7 +238,8 @@ func readEntry(e *entry, opt *Options, buf []byte, emit func(*part)) []byte {
 		return raw
 	}
 	budget := opt.MaxContainerBytes
-	parts := extractFile(path.Base(e.display), &input{raw: raw, osPath: e.osPath, opt: opt, budget: &budget, owned: true})
+	in := &input{raw: raw, osPath: e.osPath, opt: opt, budget: &budget, owned: true, dl: newDeadline(opt.FileTimeout)}
+	parts := extractFile(path.Base(e.display), in)
 	for k := range parts {
 		emit(&parts[k])
 	}

@@ -134,6 +134,9 @@ func (rtfText) extract(in *input) (extraction, error) {
 	top := func() *rtfGroup { return &stack[len(stack)-1] }
 	i := 0
 	for i < len(raw) {
+		if in.dl.passed() {
+			return extraction{}, in.dl.err()
+		}
 		c := raw[i]
 		switch c {
 		case '{':

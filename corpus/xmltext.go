@@ -18,13 +18,17 @@ import (
 //     entity references that follow would fail as syntax errors; naming
 //     the cause is clearer;
 //   - nesting deeper than maxDepth elements;
-//   - any syntax error (with the decoder's line number).
+//   - any syntax error (with the decoder's line number);
+//   - going on past the deadline dl, asked at every token.
 //
 // part names the member in the reasons.
-func xmlWalk(data []byte, part string, maxDepth int, fn func(tok xml.Token, depth int) error) error {
+func xmlWalk(data []byte, part string, maxDepth int, dl *deadline, fn func(tok xml.Token, depth int) error) error {
 	d := xml.NewDecoder(bytes.NewReader(data))
 	depth := 0
 	for {
+		if dl.passed() {
+			return dl.err()
+		}
 		tok, err := d.Token()
 		if err == io.EOF {
 			return nil

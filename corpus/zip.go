@@ -151,6 +151,10 @@ func extractZip(in *input) []part {
 		if w.skipped(base, name) || !w.included(base) {
 			continue
 		}
+		if in.dl.passed() { // this member and the rest are listed, not read
+			parts = append(parts, part{sub: sub, reason: reasonOf(in.dl.err())})
+			continue
+		}
 		if i > 0 && files[i-1].Name == name {
 			parts = append(parts, part{sub: sub, reason: reasonZipDup})
 			continue
@@ -164,7 +168,7 @@ func extractZip(in *input) []part {
 			parts = append(parts, part{sub: sub, reason: reasonOf(err)})
 			continue
 		}
-		inner := &input{raw: raw, opt: in.opt, budget: in.budget, depth: in.depth + 1}
+		inner := &input{raw: raw, opt: in.opt, budget: in.budget, depth: in.depth + 1, dl: in.dl}
 		for _, p := range extractFile(base, inner) {
 			p.sub = sub + p.sub
 			parts = append(parts, p)

@@ -78,10 +78,13 @@ type ReadSettings struct {
 	MaxRatio          int     `json:"max_ratio"`           // compression ratio of one large member
 	MaxDepth          int     `json:"max_depth"`           // HTML/XML elements, RTF groups, MIME parts
 	PDFTimeoutSeconds float64 `json:"pdf_timeout_seconds"` // pdftotext per PDF
-	SkipQuotedReplies bool    `json:"skip_quoted_replies"` // e-mail lines starting with ">" left out
-	JSONLID           string  `json:"jsonl_id"`            // JSON Lines: the id field
-	JSONLText         string  `json:"jsonl_text"`          // JSON Lines: the text field
-	MaxJSONLLine      int64   `json:"max_jsonl_line"`      // JSON Lines: bytes in one line
+	// FileTimeoutSeconds: extraction per file (a ZIP's members together,
+	// a JSON Lines line); 0 in results written before it existed.
+	FileTimeoutSeconds float64 `json:"file_timeout_seconds,omitempty"`
+	SkipQuotedReplies  bool    `json:"skip_quoted_replies"` // e-mail lines starting with ">" left out
+	JSONLID            string  `json:"jsonl_id"`            // JSON Lines: the id field
+	JSONLText          string  `json:"jsonl_text"`          // JSON Lines: the text field
+	MaxJSONLLine       int64   `json:"max_jsonl_line"`      // JSON Lines: bytes in one line
 }
 
 type ShingleSettings struct {

@@ -197,8 +197,11 @@ func TestSettingsRecordTheReadingLimits(t *testing.T) {
 	if r := def.Settings.Read; r == nil || r.MaxDepth != 256 || r.MaxMembers != 10000 || r.JSONLText != "text" {
 		t.Errorf("default reading settings %+v, want the documented defaults (depth 256, 10000 members, text field \"text\")", r)
 	}
-	set := scanJSON(t, exitOK, "--max-depth", "77", "--skip-quoted-replies", "--pdf-timeout", "5s", demo)
-	if r := set.Settings.Read; r == nil || r.MaxDepth != 77 || !r.SkipQuotedReplies || r.PDFTimeoutSeconds != 5 {
-		t.Errorf("reading settings %+v, want max_depth 77, skip_quoted_replies, pdf_timeout_seconds 5", r)
+	if r := def.Settings.Read; r == nil || r.FileTimeoutSeconds != 60 {
+		t.Errorf("default reading settings %+v, want file_timeout_seconds 60", r)
+	}
+	set := scanJSON(t, exitOK, "--max-depth", "77", "--skip-quoted-replies", "--pdf-timeout", "5s", "--file-timeout", "90s", demo)
+	if r := set.Settings.Read; r == nil || r.MaxDepth != 77 || !r.SkipQuotedReplies || r.PDFTimeoutSeconds != 5 || r.FileTimeoutSeconds != 90 {
+		t.Errorf("reading settings %+v, want max_depth 77, skip_quoted_replies, pdf_timeout_seconds 5, file_timeout_seconds 90", r)
 	}
 }

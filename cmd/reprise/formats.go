@@ -19,6 +19,7 @@ type formatLimits struct {
 	maxRatio     int
 	maxDepth     int
 	pdfTimeout   time.Duration
+	fileTimeout  time.Duration
 	skipQuoted   bool
 }
 
@@ -29,6 +30,7 @@ func (l *formatLimits) register(fs *pflag.FlagSet) {
 	fs.IntVar(&l.maxRatio, "max-ratio", corpus.DefaultMaxRatio, "skip ZIP members over 1 MiB that expand more than `N` times (ZIP bombs)")
 	fs.IntVar(&l.maxDepth, "max-depth", corpus.DefaultMaxDepth, "skip HTML or XML nesting elements, RTF nesting groups, or e-mail nesting MIME parts more than `N` deep")
 	fs.DurationVar(&l.pdfTimeout, "pdf-timeout", corpus.DefaultPDFTimeout, "skip a PDF when pdftotext takes longer than `DURATION`")
+	fs.DurationVar(&l.fileTimeout, "file-timeout", corpus.DefaultFileTimeout, "skip a file whose text takes longer than `DURATION` to extract (a ZIP's members together; a JSON Lines line)")
 	fs.BoolVar(&l.skipQuoted, "skip-quoted-replies", false, "leave out e-mail lines starting with '>' (quoted replies); a note says how many")
 }
 
@@ -53,6 +55,10 @@ func (l *formatLimits) options() (corpus.Options, error) {
 	if l.pdfTimeout <= 0 {
 		return o, fmt.Errorf("--pdf-timeout must be positive, not %v", l.pdfTimeout)
 	}
+	if l.fileTimeout <= 0 {
+		return o, fmt.Errorf("--file-timeout must be positive, not %v", l.fileTimeout)
+	}
+	o.FileTimeout = l.fileTimeout
 	o.MaxMembers, o.MaxRatio, o.MaxDepth = l.maxMembers, l.maxRatio, l.maxDepth
 	o.PDFTimeout, o.SkipQuotedReplies = l.pdfTimeout, l.skipQuoted
 	return o, nil

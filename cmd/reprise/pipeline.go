@@ -606,15 +606,16 @@ func readSettings(o corpus.Options) *report.ReadSettings {
 		return nil
 	}
 	return &report.ReadSettings{
-		MaxContainerSize:  e.MaxContainerBytes,
-		MaxMemberSize:     e.MaxMemberBytes,
-		MaxMembers:        e.MaxMembers,
-		MaxRatio:          e.MaxRatio,
-		MaxDepth:          e.MaxDepth,
-		PDFTimeoutSeconds: e.PDFTimeout.Seconds(),
-		SkipQuotedReplies: e.SkipQuotedReplies,
-		JSONLID:           e.JSONLID,
-		JSONLText:         e.JSONLText,
-		MaxJSONLLine:      e.MaxJSONLLine,
+		MaxContainerSize:   e.MaxContainerBytes,
+		MaxMemberSize:      e.MaxMemberBytes,
+		MaxMembers:         e.MaxMembers,
+		MaxRatio:           e.MaxRatio,
+		MaxDepth:           e.MaxDepth,
+		PDFTimeoutSeconds:  e.PDFTimeout.Seconds(),
+		FileTimeoutSeconds: e.FileTimeout.Seconds(),
+		SkipQuotedReplies:  e.SkipQuotedReplies,
+		JSONLID:            e.JSONLID,
+		JSONLText:          e.JSONLText,
+		MaxJSONLLine:       e.MaxJSONLLine,
 	}
 }

@@ -305,6 +305,7 @@ func recordedReadOptions(s report.Settings) corpus.Options {
 		o.MaxRatio = r.MaxRatio
 		o.MaxDepth = r.MaxDepth
 		o.PDFTimeout = time.Duration(r.PDFTimeoutSeconds * float64(time.Second))
+		o.FileTimeout = time.Duration(r.FileTimeoutSeconds * float64(time.Second))
 		o.SkipQuotedReplies = r.SkipQuotedReplies
 		o.JSONLID, o.JSONLText = r.JSONLID, r.JSONLText
 		o.MaxJSONLLine = r.MaxJSONLLine

@@ -116,7 +116,7 @@ func TestReportReadOptionsAreTheRecordedOnes(t *testing.T) {
 	}{
 		{"recorded settings are used", report.Settings{MaxFileSize: 1 << 20, Read: &report.ReadSettings{
 			MaxContainerSize: 5 << 20, MaxMemberSize: 3 << 20, MaxMembers: 7, MaxRatio: 9, MaxDepth: 11,
-			PDFTimeoutSeconds: 2.5, SkipQuotedReplies: true, JSONLID: "key", JSONLText: "body", MaxJSONLLine: 4096,
+			PDFTimeoutSeconds: 2.5, FileTimeoutSeconds: 7, SkipQuotedReplies: true, JSONLID: "key", JSONLText: "body", MaxJSONLLine: 4096,
 		}}, func(t *testing.T, s report.Settings) {
 			got := readSettings(recordedReadOptions(s))
 			if *got != *s.Read {

@@ -1,0 +1,217 @@
+package corpus
+
+import (
+	"bytes"
+	"fmt"
+	"runtime"
+	"runtime/debug"
+	"slices"
+	"strings"
+	"testing"
+	"time"
+
+	"reprise/internal/hostile"
+)
+
+// The growth check: every extractor on every shape of internal/hostile at
+// n, 2n and 4n repetitions. It is a benchmark, not a timed test (the
+// machine's load says nothing about the code). BenchmarkHostileGrowth has
+// one sub-benchmark per shape and size, for ns/op and B/op as usual;
+// BenchmarkHostileRatios measures the three sizes of a shape in
+// alternation, round after round, and reports the growth per doubling
+// (medians over the rounds) as metrics, which is what go run
+// ./scripts/hostile -table runs several times and prints (BENCHMARKS.md,
+// "Hostile inputs"): linear code shows 2x, and 2.5x is the bound the table
+// checks. Measuring the sizes one after the other instead made the ratios
+// follow the load of the shared machine more than the code.
+//
+//	go test -run '^$' -bench BenchmarkHostileGrowth -benchtime 10x -count 5 ./corpus
+//	go test -run '^$' -bench BenchmarkHostileRatios -benchtime 1s -count 5 ./corpus
+
+// extractShape reads one hostile file as Read does (a .jsonl file
+// streamed line by line; the bytes owned by the extraction, as a file's
+// are, so a plain text is not copied), under the deadline dl.
+func extractShape(tb testing.TB, s hostile.Shape, raw []byte, opt *Options, dl *deadline) []part {
+	tb.Helper()
+	if s.Format == "jsonl" {
+		parts, _, err := scanJSONL(bytes.NewReader(raw), opt)
+		if err != nil {
+			tb.Fatal(err)
+		}
+		return parts
+	}
+	budget := opt.MaxContainerBytes
+	return extractFile("hostile"+s.Ext, &input{raw: raw, opt: opt, budget: &budget, dl: dl, owned: true})
+}
+
+func makeShape(tb testing.TB, s hostile.Shape, n int) []byte {
+	tb.Helper()
+	raw, err := s.Make(n)
+	if err != nil {
+		tb.Fatalf("%s: %v", s.Name, err)
+	}
+	return raw
+}
+
+func BenchmarkHostileGrowth(b *testing.B) {
+	opt := testOptions(b)
+	for _, s := range hostile.Shapes() {
+		for _, mult := range []int{1, 2, 4} {
+			n := s.Base * mult
+			b.Run(fmt.Sprintf("%s/n=%d", s.Name, n), func(b *testing.B) {
+				raw := makeShape(b, s, n)
+				b.SetBytes(int64(len(raw)))
+				b.ReportAllocs()
+				for b.Loop() {
+					extractShape(b, s, raw, opt, newDeadline(opt.FileTimeout))
+				}
+			})
+		}
+	}
+}
+
+// BenchmarkHostileRatios reports, per shape, t2n/n and t4n/2n (time of
+// one read at 2n over n, 4n over 2n: medians over the rounds, each read
+// after a collection so that none pays for another's garbage, with the
+// collector off during the read) and a2n/n,
+// a4n/2n (bytes allocated by one read, counted by the runtime). The time
+// is the processor time of the reading thread (threadTime; the wall clock
+// where there is none): on a shared machine the wall clock also counts the
+// time other work held the processor, which made single ratios swing from
+// 0.5 to 6 between runs. It leaves out the collector's background work,
+// which the allocated bytes stand for.
+func BenchmarkHostileRatios(b *testing.B) {
+	clock := func() time.Duration {
+		if t, ok := threadTime(); ok {
+			return t
+		}
+		return time.Duration(time.Now().UnixNano())
+	}
+	opt := testOptions(b)
+	for _, s := range hostile.Shapes() {
+		b.Run(s.Name, func(b *testing.B) {
+			// Each sub-benchmark runs on a goroutine of its own: it is
+			// this one that must stay on its thread for threadTime.
+			runtime.LockOSThread()
+			defer runtime.UnlockOSThread()
+			var raws [3][]byte
+			for k := range raws {
+				raws[k] = makeShape(b, s, s.Base<<k)
+			}
+			var alloc [3]float64
+			for k, raw := range raws {
+				var m0, m1 runtime.MemStats
+				runtime.GC()
+				runtime.ReadMemStats(&m0)
+				extractShape(b, s, raw, opt, newDeadline(opt.FileTimeout))
+				runtime.ReadMemStats(&m1)
+				alloc[k] = float64(m1.TotalAlloc - m0.TotalAlloc)
+			}
+			var times [3][]float64
+			// The collector is off during a timed read (and runs between
+			// reads): how many cycles a read of a given size triggers, and
+			// how much of their marking falls on the reading thread,
+			// depends on the heap it starts from, which made single ratios
+			// of the shapes that allocate most swing from 1.5 to 5.
+			defer debug.SetGCPercent(debug.SetGCPercent(-1))
+			for b.Loop() {
+				for k, raw := range raws {
+					runtime.GC()
+					start := clock()
+					extractShape(b, s, raw, opt, newDeadline(opt.FileTimeout))
+					times[k] = append(times[k], float64(clock()-start))
+				}
+			}
+			var med [3]float64
+			for k := range times {
+				slices.Sort(times[k])
+				med[k] = times[k][len(times[k])/2]
+			}
+			b.ReportMetric(med[0]/1e6, "ms-at-n")
+			b.ReportMetric(med[1]/med[0], "t2n/n")
+			b.ReportMetric(med[2]/med[1], "t4n/2n")
+			b.ReportMetric(alloc[0], "alloc-at-n")
+			b.ReportMetric(alloc[1]/alloc[0], "a2n/n")
+			b.ReportMetric(alloc[2]/alloc[1], "a4n/2n")
+			b.ReportMetric(float64(len(raws[0])), "bytes-at-n")
+		})
+	}
+}
+
+// wantFormat is the format of the documents a shape gives: a ZIP archive's
+// members are text files.
+func wantFormat(s hostile.Shape) string {
+	if s.Format == "zip" {
+		return "text"
+	}
+	return s.Format
+}
+
+// testN is the repetition count the tests read a shape at: a 64th of the
+// growth check's, but the full count for a shape that must be refused
+// (its nesting must pass the depth limit).
+func testN(s hostile.Shape) int {
+	if s.Refused {
+		return s.Base
+	}
+	return max(1, s.Base/64)
+}
+
+// TestHostileShapes: each shape at its test size is read as its format
+// (documents of that format, no skipped part) or, when it must be refused,
+// skipped with a reason naming the limit; and each extractor asks the
+// deadline as it goes: under one that has already passed it stops at the
+// first question and the file is skipped saying so, where a live one is
+// asked at every step.
+func TestHostileShapes(t *testing.T) {
+	opt := testOptions(t)
+	for _, s := range hostile.Shapes() {
+		t.Run(s.Name, func(t *testing.T) {
+			raw := makeShape(t, s, testN(s))
+			if n2 := len(makeShape(t, s, 2*testN(s))); n2 < 2*len(raw)*8/10 || n2 > 2*len(raw)*12/10 {
+				t.Errorf("size at 2n is %d bytes, at n %d: the shape does not grow linearly", n2, len(raw))
+			}
+			live := newDeadline(time.Hour)
+			parts := extractShape(t, s, raw, opt, live)
+			docs := 0
+			for _, p := range parts {
+				switch {
+				case s.Refused && p.reason == "":
+					t.Fatalf("%s gave a document, want it refused", p.sub)
+				case s.Refused && !strings.Contains(p.reason, "(--max-depth)"):
+					t.Fatalf("refused for %q, want the depth limit", p.reason)
+				case !s.Refused && p.reason != "":
+					t.Fatalf("%s skipped: %s", p.sub, p.reason)
+				case p.reason == "":
+					docs++
+					if p.format != wantFormat(s) {
+						t.Fatalf("%s read as %s, want %s", p.sub, p.format, wantFormat(s))
+					}
+				}
+			}
+			if !s.Refused && docs == 0 {
+				t.Fatal("no document")
+			}
+			if s.Format == "jsonl" {
+				return // per-line deadlines: TestFileTimeoutSkips
+			}
+			past := &deadline{at: time.Now().Add(-time.Second), timeout: time.Nanosecond}
+			for _, p := range extractShape(t, s, raw, opt, past) {
+				if p.reason != timedOutReason(time.Nanosecond) {
+					t.Fatalf("%s under a passed deadline: reason %q", p.sub, p.reason)
+				}
+			}
+			if past.calls > 1 {
+				t.Errorf("the extractor asked a passed deadline %d times, want it to stop at the first", past.calls)
+			}
+			// Every extractor asks at each step of its own (a line, a
+			// token, a group, a member), at least once per 128 KiB, but
+			// two: plain text is one pass of the runtime's byte loops,
+			// asked once done (extractFile), and an e-mail's header is one
+			// call of net/mail, asked per MIME part.
+			if s.Format != "text" && s.Format != "email" && !s.Refused && int(live.calls) < max(2, len(raw)>>17) {
+				t.Errorf("the extractor asked a live deadline %d times for %d bytes, want it asked as it goes", live.calls, len(raw))
+			}
+		})
+	}
+}
