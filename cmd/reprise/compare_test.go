@@ -568,17 +568,7 @@ func TestCompareAndArchiveAgree(t *testing.T) {
 	// put them on side B.
 	demo := "../../testdata/demo"
 	sources := t.TempDir()
-	entries, err := os.ReadDir("../../testdata/demo-sources")
-	if err != nil {
-		t.Fatal(err)
-	}
-	for _, e := range entries {
-		raw, err := os.ReadFile(filepath.Join("../../testdata/demo-sources", e.Name()))
-		if err != nil {
-			t.Fatal(err)
-		}
-		writeFile(t, filepath.Join(sources, e.Name()), string(raw))
-	}
+	copyFiles(t, "../../testdata/demo-sources", sources)
 	cmp := compareNDJSON(t, "--against", sources, demo)
 	arch := filepath.Join(t.TempDir(), "archive")
 	if code, _, e := runCLI(t, "archive", "--archive", arch, "add", "-q", sources); code != exitOK {

@@ -85,17 +85,7 @@ func TestIdenticalTextsScoreWhole(t *testing.T) {
 // next scan, which then finds what the first one found.
 func TestEarlierReportsAreNotDocuments(t *testing.T) {
 	dir := t.TempDir()
-	entries, err := os.ReadDir("../../testdata/demo")
-	if err != nil {
-		t.Fatal(err)
-	}
-	for _, e := range entries {
-		raw, err := os.ReadFile(filepath.Join("../../testdata/demo", e.Name()))
-		if err != nil {
-			t.Fatal(err)
-		}
-		writeFile(t, filepath.Join(dir, e.Name()), string(raw))
-	}
+	copyFiles(t, "../../testdata/demo", dir)
 	first := scanJSON(t, exitOK, dir)
 	for _, f := range []string{"json", "ndjson", "csv", "text", "html"} {
 		var out, errs bytes.Buffer

@@ -62,3 +62,39 @@ func writeFile(t *testing.T, path, text string) {
 		t.Fatal(err)
 	}
 }
+
+// copyFiles copies the files of folder src (not its subfolders) into dst.
+func copyFiles(t *testing.T, src, dst string) {
+	t.Helper()
+	entries, err := os.ReadDir(src)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, e := range entries {
+		if e.IsDir() {
+			continue
+		}
+		raw, err := os.ReadFile(filepath.Join(src, e.Name()))
+		if err != nil {
+			t.Fatal(err)
+		}
+		writeFile(t, filepath.Join(dst, e.Name()), string(raw))
+	}
+}
+
+// spdxText is the licenseText of one license of the SPDX license list
+// (npm package spdx-license-list 6.12.0, licenses/ID.json).
+func spdxText(t *testing.T, spdx, id string) string {
+	t.Helper()
+	raw, err := os.ReadFile(filepath.Join(spdx, id+".json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var lic struct {
+		LicenseText string `json:"licenseText"`
+	}
+	if err := json.Unmarshal(raw, &lic); err != nil {
+		t.Fatalf("%s: %v", id, err)
+	}
+	return lic.LicenseText
+}

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"encoding/json"
 	"fmt"
 	"maps"
 	"os"
@@ -23,17 +22,7 @@ func TestLicenseTexts(t *testing.T) {
 	ids := []string{"GPL-2.0-only", "GPL-2.0-or-later", "GPL-3.0-only", "LGPL-3.0-only",
 		"MIT", "Apache-2.0", "BSD-3-Clause", "MPL-2.0"}
 	for _, id := range ids {
-		raw, err := os.ReadFile(filepath.Join(spdx, id+".json"))
-		if err != nil {
-			t.Fatal(err)
-		}
-		var lic struct {
-			LicenseText string `json:"licenseText"`
-		}
-		if err := json.Unmarshal(raw, &lic); err != nil {
-			t.Fatalf("%s: %v", id, err)
-		}
-		writeFile(t, filepath.Join(dir, id+".txt"), lic.LicenseText)
+		writeFile(t, filepath.Join(dir, id+".txt"), spdxText(t, spdx, id))
 	}
 	debianGPL3 := "/usr/share/common-licenses/GPL-3"
 	haveDebian := false
@@ -101,19 +90,7 @@ func brief(p *report.Pair) string {
 // of the documents; the licenses that nobody embedded pair with nothing.
 func TestLicenseCopiesAreClustered(t *testing.T) {
 	spdx := dataDir(t, "spdx/licenses")
-	text := func(id string) string {
-		raw, err := os.ReadFile(filepath.Join(spdx, id+".json"))
-		if err != nil {
-			t.Fatal(err)
-		}
-		var lic struct {
-			LicenseText string `json:"licenseText"`
-		}
-		if err := json.Unmarshal(raw, &lic); err != nil {
-			t.Fatalf("%s: %v", id, err)
-		}
-		return lic.LicenseText
-	}
+	text := func(id string) string { return spdxText(t, spdx, id) }
 	dir := t.TempDir()
 	embedded := map[string]int{"Apache-2.0": 24, "MIT": 4, "BSD-3-Clause": 3}
 	alone := []string{"MPL-2.0", "Zlib", "ISC", "BSL-1.0", "Unlicense", "PostgreSQL", "NCSA"}
