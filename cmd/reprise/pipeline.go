@@ -305,7 +305,7 @@ func (p *splitterPool) digest(d *corpus.Document, effective shingle.Options, kee
 	slices.Sort(set)
 	set = slices.Clip(slices.Compact(set))
 	g := docDigest{
-		report: isReprisReport(d.Text),
+		report: isRepriseReport(d.Text),
 		set:    set, sum: xxhash.Sum64String(d.Text), size: len(d.Text),
 		words: int32(st.Words), units: int32(len(units)), spool: at,
 		notes: splitNotes(d.Notes, st, d.Text, effective),
@@ -492,16 +492,16 @@ func splitNotes(readNotes []string, st shingle.Stats, text string, effective shi
 // setTemplatesAside removes from docs every file that is also a template,
 // listing it as skipped, so a prompt kept beside the essays is not compared
 // with them. kept lists the original index of each document kept.
-// isReprisReport reports whether text holds the caution that every report
+// isRepriseReport reports whether text holds the caution that every report
 // of reprise carries, in any format, with any line wrapping (the text
 // report folds it): near the start of JSON, NDJSON, text reports and of
 // the review page's text, at the end of the CSV. Only the first 64 KiB and
 // the last 4 KiB are searched, and only for the caution's first words
 // unless they are there, so that the check costs nothing next to splitting.
-func isReprisReport(text string) bool {
+func isRepriseReport(text string) bool {
 	const head, tail = 64 << 10, 4 << 10
 	if len(text) > head+tail {
-		return isReprisReport(text[:head]) || isReprisReport(text[len(text)-tail:])
+		return isRepriseReport(text[:head]) || isRepriseReport(text[len(text)-tail:])
 	}
 	start := report.Caution[:strings.Index(report.Caution, " for ")]
 	at := strings.Index(text, start)
