@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"os"
+	"slices"
 )
 
 // Errors wrapped by Count for invalid input; test with errors.Is.
@@ -155,9 +156,8 @@ func Count(in Input, opt Options) (*Result, error) {
 func countInMemory(in Input, cfg config, res *Result, entries int64) error {
 	// Step 1: baskets.
 	ents := gather(in.Docs, cfg.jobs)
-	var mostly []bool
-	res.CommonShares, mostly = commonShares(frequentPerDoc(ents, in.Excluded, cfg.maxDocs, cfg.documents), in.Docs, cfg.auto)
-	bk, common, hits := formBaskets(ents, in.Excluded, cfg.maxDocs, mostly)
+	bk, common, shares, hits := formBaskets(ents, in.Excluded, cfg.maxDocs, in.Docs, cfg.auto)
+	res.CommonShares = shares
 	res.Common = common
 	res.Stats.ExcludedHits = hits
 	res.Stats.Baskets = bk.len()
@@ -287,11 +287,15 @@ func (b *baskets) row(i int) []uint32 { return b.docs[b.start[i]:b.start[i+1]] }
 // excluded is skipped and counted in hits (whatever its size: exclusion
 // comes first, so an excluded unit is never listed as common either); a run
 // of one document is dropped; a run of more than maxDocs documents is common
-// text: its mostly-common documents (mostly[d], nil for none) still form a
-// basket, and it is listed unless they are all of its holders; every other
-// run becomes a basket.
-func formBaskets(ents []entry, excluded []uint64, maxDocs int, mostly []bool) (b baskets, common []CommonUnit, hits int) {
+// text and listed; every other run becomes a basket. The walk also counts
+// each document's common units (shares); under the automatic cap (auto)
+// the mostly-common documents of each common run then form a basket of
+// their own, added after the others, and a common unit that counts in all
+// its holders is not listed.
+func formBaskets(ents []entry, excluded []uint64, maxDocs int, docs [][]uint64, auto bool) (b baskets, common []CommonUnit, shares []CommonShare, hits int) {
 	b.start = append(b.start, 0)
+	var freq []uint32  // common units of each document
+	var commonAt []int // where each common run starts in ents
 	xi := 0
 	for i := 0; i < len(ents); {
 		fp := ents[i].fp
@@ -308,24 +312,13 @@ func formBaskets(ents []entry, excluded []uint64, maxDocs int, mostly []bool) (b
 			hits++
 		case d < 2:
 		case d > maxDocs:
-			kept := 0
-			if mostly != nil {
-				for _, e := range ents[i:j] {
-					if mostly[e.doc] {
-						b.docs = append(b.docs, e.doc)
-						kept++
-					}
-				}
-				switch {
-				case kept >= 2:
-					b.fps = append(b.fps, fp)
-					b.start = append(b.start, len(b.docs))
-				default:
-					b.docs = b.docs[:len(b.docs)-kept]
-				}
+			common = append(common, CommonUnit{Hash: fp, Docs: uint32(d), First: ents[i].doc})
+			commonAt = append(commonAt, i)
+			if freq == nil {
+				freq = make([]uint32, len(docs))
 			}
-			if kept < d {
-				common = append(common, CommonUnit{Hash: fp, Docs: uint32(d), First: ents[i].doc, Kept: uint32(kept)})
+			for _, e := range ents[i:j] {
+				freq[e.doc]++
 			}
 		default:
 			b.fps = append(b.fps, fp)
@@ -336,8 +329,31 @@ func formBaskets(ents []entry, excluded []uint64, maxDocs int, mostly []bool) (b
 		}
 		i = j
 	}
+	shares, mostly := commonShares(freq, docs, auto)
+	if mostly != nil {
+		for k := range common {
+			c := &common[k]
+			from := len(b.docs)
+			for _, e := range ents[commonAt[k] : commonAt[k]+int(c.Docs)] {
+				if mostly[e.doc] {
+					b.docs = append(b.docs, e.doc)
+				}
+			}
+			c.Kept = uint32(len(b.docs) - from)
+			if c.Kept < 2 {
+				b.docs = b.docs[:from]
+				continue
+			}
+			b.fps = append(b.fps, c.Hash)
+			b.start = append(b.start, len(b.docs))
+		}
+		common = slices.DeleteFunc(common, func(c CommonUnit) bool { return c.Kept == c.Docs })
+		if len(common) == 0 {
+			common = nil
+		}
+	}
 	sortCommon(common)
-	return b, common, hits
+	return b, common, shares, hits
 }
 
 // prune removes, pass after pass, every document found in fewer than s

@@ -73,10 +73,12 @@
 // the others. A prompt pasted into twenty essays is still set aside in
 // them; the eleven copies of one essay still pair on every sentence,
 // prompt included. The rule is judged per document, in units (sentences
-// or shingles, which track words closely), with one pass over the entries
-// to count each document's common units before baskets form (in the
-// spilling path the common runs go to a side file that is read once more
-// when there are any). An explicit MaxDocs, and templates in
+// or shingles, which track words closely): the walk that forms baskets
+// counts each document's common units, and the mostly-common holders of
+// each common run become baskets once it is over, so that only the common
+// runs are read twice (in memory, where they start is remembered; in the
+// spilling path they go to a side file that is read once more when there
+// are any). An explicit MaxDocs, and templates in
 // Input.Excluded, keep their meaning for every document.
 //
 // What it costs: a kept common unit in k documents costs C(k, 2)

@@ -5,33 +5,6 @@ import (
 	"slices"
 )
 
-// frequentPerDoc counts, for every document, its units found in more than
-// maxDocs documents (not excluded); nil when there are none.
-func frequentPerDoc(ents []entry, excluded []uint64, maxDocs, n int) []uint32 {
-	var freq []uint32
-	xi := 0
-	for i := 0; i < len(ents); {
-		fp := ents[i].fp
-		j := i + 1
-		for j < len(ents) && ents[j].fp == fp {
-			j++
-		}
-		for xi < len(excluded) && excluded[xi] < fp {
-			xi++
-		}
-		if j-i > maxDocs && !(xi < len(excluded) && excluded[xi] == fp) {
-			if freq == nil {
-				freq = make([]uint32, n)
-			}
-			for _, e := range ents[i:j] {
-				freq[e.doc]++
-			}
-		}
-		i = j
-	}
-	return freq
-}
-
 // commonShares turns the per-document counts of common units into the
 // Result's list, and, under the automatic cap (auto), marks the documents
 // that are mostly common text: more than half of their distinct units are
