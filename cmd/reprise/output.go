@@ -147,8 +147,10 @@ func (p *progress) done() {
 // counter reports the progress of one stage through show: done of total
 // (total 0: not known) with, once a second has passed, an estimate of the
 // time left. It shows at most ten lines a second, whatever the rate of
-// calls, and is safe from several goroutines.
+// calls, and is safe from several goroutines: it calls show from one
+// goroutine at a time, so show itself need not be.
 type counter struct {
+	mu    sync.Mutex // held while show runs
 	show  func(format string, args ...any)
 	label string
 	total atomic.Int64 // 0: not known
@@ -182,6 +184,8 @@ func (c *counter) report(done int64) {
 	if !c.last.CompareAndSwap(last, now.UnixNano()) {
 		return
 	}
+	c.mu.Lock()
+	defer c.mu.Unlock()
 	c.show("%s", c.line(done, now.Sub(c.start)))
 }
 
