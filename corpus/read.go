@@ -1,6 +1,7 @@
 package corpus
 
 import (
+	"context"
 	"fmt"
 	"path"
 	"slices"
@@ -55,6 +56,13 @@ func Read(paths []string, opt Options) ([]Document, []Skipped, error) {
 // kept slots (one int per file, as the list of files to read was); the
 // entries are dropped before the documents are gathered.
 func ReadEach[T any](paths []string, opt Options, digest func(d *Document) T) ([]Document, []T, []Skipped, error) {
+	return ReadEachContext(context.Background(), paths, opt, digest)
+}
+
+// ReadEachContext is ReadEach under ctx: once ctx is done, the walk lists
+// no more files, the workers read no more of them (a file being read is
+// finished), and the call returns ctx's error and no documents.
+func ReadEachContext[T any](ctx context.Context, paths []string, opt Options, digest func(d *Document) T) ([]Document, []T, []Skipped, error) {
 	opt, err := opt.withDefaults()
 	if err != nil {
 		return nil, nil, nil, err
@@ -77,6 +85,9 @@ func ReadEach[T any](paths []string, opt Options, digest func(d *Document) T) ([
 	work := func() {
 		var scratch []byte // the buffer files are read into, while no document keeps it
 		for j := range jobs {
+			if ctx.Err() != nil {
+				continue // drained, not read
+			}
 			r, name0 := j.r, j.e.display
 			kept := false
 			used := readEntry(&j.e, &opt, scratch, func(p *part) {
@@ -111,7 +122,7 @@ func ReadEach[T any](paths []string, opt Options, digest func(d *Document) T) ([
 	}
 	var wg sync.WaitGroup
 	workers := 0
-	w := walker{opt: opt, found: func(e *entry) {
+	w := walker{opt: opt, stopped: func() bool { return ctx.Err() != nil }, found: func(e *entry) {
 		if workers < opt.Jobs { // started as files come, at most one per file
 			workers++
 			wg.Go(work)
@@ -119,10 +130,16 @@ func ReadEach[T any](paths []string, opt Options, digest func(d *Document) T) ([
 		jobs <- job{e: *e, r: results.at(e.seq)}
 	}}
 	for _, p := range paths {
+		if w.stop() {
+			break
+		}
 		w.arg(p)
 	}
 	close(jobs)
 	wg.Wait()
+	if err := ctx.Err(); err != nil {
+		return nil, nil, nil, err
+	}
 
 	// Sorted and de-duplicated as if nothing had been read yet; the
 	// readings of the entries found to be duplicates are thrown away.

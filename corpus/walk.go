@@ -48,7 +48,11 @@ type walker struct {
 	entries    []entry
 	candidates int // entries with reason == "" so far: the next one's seq
 	found      func(e *entry)
+	stopped    func() bool // nil: never; true: the walk lists nothing more
 }
+
+// stop reports whether the walk was asked to end early.
+func (w *walker) stop() bool { return w.stopped != nil && w.stopped() }
 
 // arg adds one command-line argument: a file, a folder, or a symbolic link
 // to either. A link given as an argument is followed, even to a folder:
@@ -96,6 +100,9 @@ func (w *walker) dir(osPath, display, abs string) {
 		w.skip(display, abs, osReason(err))
 	}
 	for _, e := range ents {
+		if w.stop() {
+			return
+		}
 		name := e.Name()
 		d := joinDisplay(display, name)
 		op, ap := joinOS(osPath, name), filepath.Join(abs, name)

@@ -1,6 +1,7 @@
 package pairs
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -50,6 +51,7 @@ type config struct {
 	budget    int64  // Options.MemoryBudget; 0: no bound
 	tempDir   string // where spilled runs go
 	jobs      int
+	stopped   func() error // the caller's context's Err: checked between steps
 }
 
 func resolve(in Input, opt Options) (config, error) {
@@ -62,6 +64,7 @@ func resolve(in Input, opt Options) (config, error) {
 		budget:    opt.MemoryBudget,
 		tempDir:   opt.TempDir,
 		jobs:      max(opt.Jobs, 1),
+		stopped:   func() error { return nil },
 	}
 	if c.budget < 0 {
 		return c, fmt.Errorf("pairs: MemoryBudget %d < 0: %w", opt.MemoryBudget, ErrOption)
@@ -132,10 +135,18 @@ func checkAscending(fps []uint64) error {
 // of a document or of Excluded not strictly ascending, or an option out of
 // range. The steps are described in the package documentation.
 func Count(in Input, opt Options) (*Result, error) {
+	return CountContext(context.Background(), in, opt)
+}
+
+// CountContext is Count under ctx: once ctx is done, the count stops at
+// its next step, sorted run, merge or range of pairs, removes its
+// temporary files and returns ctx's error.
+func CountContext(ctx context.Context, in Input, opt Options) (*Result, error) {
 	cfg, err := resolve(in, opt)
 	if err != nil {
 		return nil, err
 	}
+	cfg.stopped = ctx.Err
 	res := &Result{MaxDocs: cfg.maxDocs, MinShared: cfg.s}
 	var entries int64
 	for _, fps := range in.Docs {
@@ -161,6 +172,9 @@ func countInMemory(in Input, cfg config, res *Result, entries int64) error {
 	res.Common = common
 	res.Stats.ExcludedHits = hits
 	res.Stats.Baskets = bk.len()
+	if err := cfg.stopped(); err != nil {
+		return err
+	}
 
 	// Step 2: A-Priori pruning, then compact the surviving document IDs.
 	res.Stats.Pruned = bk.prune(cfg.documents, cfg.s)
@@ -195,8 +209,11 @@ func countInMemory(in Input, cfg config, res *Result, entries int64) error {
 			if cfg.budget > 0 {
 				budget = max(cfg.budget-inMemoryBytes(entries, cfg.documents), 1)
 			}
-			found, res.Spill.Ranges, err2 = countRanges(src, m, weights, countPlan{kind: kind, s: uint32(cfg.s), jobs: cfg.jobs, budget: budget})
+			found, res.Spill.Ranges, err2 = countRanges(src, m, weights, countPlan{kind: kind, s: uint32(cfg.s), jobs: cfg.jobs, budget: budget, stopped: cfg.stopped})
 		}
+	}
+	if err2 == nil {
+		err2 = cfg.stopped()
 	}
 	if err2 != nil {
 		return err2

@@ -105,6 +105,8 @@ type countPlan struct {
 	s      uint32
 	jobs   int
 	budget int64 // bytes for all counters at once; 0: no bound
+	// stopped, when set, is checked before each range is counted.
+	stopped func() error
 }
 
 // countRanges counts every pair of every row with the plan's counter, in
@@ -132,6 +134,11 @@ func countRanges(src rowSource, m int, weights []int64, p countPlan) ([]countedP
 		go func() {
 			defer wg.Done()
 			for i := range next {
+				if p.stopped != nil {
+					if errs[i] = p.stopped(); errs[i] != nil {
+						continue
+					}
+				}
 				lo, hi := ranges[i][0], ranges[i][1]
 				var est int64
 				for a := lo; a < hi; a++ {

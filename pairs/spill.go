@@ -92,7 +92,7 @@ func countSpilled(in Input, cfg config, res *Result) error {
 	defer os.RemoveAll(dir)
 	sc := newSpillConfig(cfg.budget, cfg.documents, dir)
 	sc.jobs = cfg.jobs
-	sp := &spiller{cfg: sc}
+	sp := &spiller{cfg: sc, stop: cfg.stopped}
 
 	// Step 1: sorted runs, merged into the basket file.
 	runs, err := sp.writeRuns(in.Docs)
@@ -103,6 +103,9 @@ func countSpilled(in Input, cfg config, res *Result) error {
 		if runs, err = sp.mergeLevel(runs); err != nil {
 			return err
 		}
+	}
+	if err := cfg.stopped(); err != nil {
+		return err
 	}
 	deg := make([]uint32, cfg.documents)
 	basketPath := filepath.Join(dir, "baskets")
@@ -122,6 +125,9 @@ func countSpilled(in Input, cfg config, res *Result) error {
 		return err
 	}
 	res.Stats.Pruned = pruned
+	if err := cfg.stopped(); err != nil {
+		return err
+	}
 	const none = math.MaxUint32
 	rank := make([]uint32, cfg.documents)
 	var orig []uint32
@@ -146,7 +152,10 @@ func countSpilled(in Input, cfg config, res *Result) error {
 	if kind == CounterTriangular && possiblePairs(m) > maxTriangularCells {
 		return fmt.Errorf("pairs: triangular counter for %d documents needs %d cells, more than %d: %w", m, possiblePairs(m), maxTriangularCells, ErrOption)
 	}
-	found, ranges, err := countRanges(file, m, weights, countPlan{kind: kind, s: uint32(cfg.s), jobs: cfg.jobs, budget: sc.countMem})
+	found, ranges, err := countRanges(file, m, weights, countPlan{kind: kind, s: uint32(cfg.s), jobs: cfg.jobs, budget: sc.countMem, stopped: cfg.stopped})
+	if err == nil {
+		err = cfg.stopped()
+	}
 	if err != nil {
 		return err
 	}
@@ -167,9 +176,18 @@ func countSpilled(in Input, cfg config, res *Result) error {
 // spiller writes and merges the sorted runs of step 1.
 type spiller struct {
 	cfg     spillConfig
-	files   int   // names handed out
-	runs    int   // sorted runs written, intermediate merges included
-	written int64 // bytes written to temporary files
+	files   int          // names handed out
+	runs    int          // sorted runs written, intermediate merges included
+	written int64        // bytes written to temporary files
+	stop    func() error // nil: never stopped
+}
+
+// stopped reports why the spiller must stop, or nil.
+func (sp *spiller) stopped() error {
+	if sp.stop == nil {
+		return nil
+	}
+	return sp.stop()
 }
 
 func (sp *spiller) create() (*os.File, error) {
@@ -190,6 +208,9 @@ func (sp *spiller) writeRuns(docs [][]uint64) ([]string, error) {
 	flush := func() error {
 		if len(chunk) == 0 {
 			return nil
+		}
+		if err := sp.stopped(); err != nil {
+			return err
 		}
 		radixSortEntries(chunk, scratch[:len(chunk)], sp.cfg.jobs)
 		p, err := sp.writeRun(func(emit func(entry) error) error {
@@ -254,6 +275,9 @@ func (sp *spiller) mergeLevel(runs []string) ([]string, error) {
 	var out []string
 	for lo := 0; lo < len(runs); lo += sp.cfg.fanIn {
 		group := runs[lo:min(lo+sp.cfg.fanIn, len(runs))]
+		if err := sp.stopped(); err != nil {
+			return nil, err
+		}
 		p, err := sp.writeRun(func(emit func(entry) error) error {
 			return sp.merge(group, emit)
 		})

@@ -107,6 +107,9 @@ func WriteNDJSON(w io.Writer, r *Result) error {
 	for i := range r.Clusters {
 		typedLine(e, "cluster", &r.Clusters[i], (*jsonEncoder).clusterFields)
 	}
+	if err := compareNDJSON(e, r); err != nil {
+		return fmt.Errorf("report: ndjson: %w", err)
+	}
 	if err := e.flush(); err != nil {
 		return fmt.Errorf("report: ndjson: %w", err)
 	}
@@ -153,6 +156,7 @@ func WriteCSV(w io.Writer, r *Result) error {
 		rows = append(rows, []string{"common", "", "", "", "", "", "", "", "", "", "",
 			safeCell(fmt.Sprintf("%d documents: %s", c.Documents, c.Text))})
 	}
+	rows = append(rows, compareCSV(r, num)...)
 	for _, s := range r.Skipped {
 		rows = append(rows, []string{"skipped", "", "", "", "", "", "", "", "", safeCell(s.Path), "", safeCell(s.Reason)})
 	}
@@ -279,6 +283,8 @@ func WriteText(w io.Writer, r *Result, opt TextOptions) error {
 			}
 		}
 	}
+
+	writeCompareText(t, r)
 
 	if len(r.Groups) > 0 {
 		t.heading("Groups")

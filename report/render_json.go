@@ -154,6 +154,17 @@ func (e *jsonEncoder) writeResultJSON(r *Result) error {
 	if _, err := checkJSONFloats(r); err != nil {
 		return err
 	}
+	var sources, masters []byte
+	if len(r.Sources) > 0 {
+		if sources, err = json.MarshalIndent(r.Sources, "  ", "  "); err != nil {
+			return err
+		}
+	}
+	if len(r.Masters) > 0 {
+		if masters, err = json.MarshalIndent(r.Masters, "  ", "  "); err != nil {
+			return err
+		}
+	}
 
 	k := &e.keys.result
 	d := jsonResultDepth
@@ -180,6 +191,14 @@ func (e *jsonEncoder) writeResultJSON(r *Result) error {
 	jsonObjects(e, d, r.Groups, (*jsonEncoder).groupFields)
 	e.put(k.clusters)
 	jsonObjects(e, d, r.Clusters, (*jsonEncoder).clusterFields)
+	if sources != nil {
+		e.buf = append(e.buf, ",\n  \"sources\": "...)
+		e.buf = append(e.buf, sources...)
+	}
+	if masters != nil {
+		e.buf = append(e.buf, ",\n  \"masters\": "...)
+		e.buf = append(e.buf, masters...)
+	}
 	e.newline(0)
 	e.buf = append(e.buf, '}', '\n')
 	return e.flush()

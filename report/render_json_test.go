@@ -486,7 +486,10 @@ func jsonTagNames(t *testing.T, typ reflect.Type) []string {
 			t.Errorf("%s.%s is embedded: the JSON appenders do not flatten embedded fields", typ.Name(), f.Name)
 		}
 		name, opts, _ := strings.Cut(tag, ",")
-		if opts != "" {
+		// The Result's reference-set sections are left out when empty,
+		// as encoding/json does (writeResultJSON implements that).
+		omitted := opts == "omitempty" && typ == reflect.TypeFor[Result]() && (f.Name == "Sources" || f.Name == "Masters")
+		if opts != "" && !omitted {
 			t.Errorf("%s.%s has json option %q: the JSON appenders do not implement it", typ.Name(), f.Name, opts)
 		}
 		if name == "" {
@@ -535,7 +538,7 @@ func TestJSONAppendersWriteEveryField(t *testing.T) {
 		return b.Bytes()
 	}
 	var whole bytes.Buffer
-	if err := WriteJSON(&whole, &Result{}); err != nil {
+	if err := WriteJSON(&whole, &Result{Sources: []Sources{{}}, Masters: []MasterCoverage{{}}}); err != nil {
 		t.Fatal(err)
 	}
 	for _, c := range []struct {

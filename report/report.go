@@ -2,6 +2,7 @@ package report
 
 import (
 	"cmp"
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -41,6 +42,10 @@ type Result struct {
 	Pairs      []Pair        `json:"pairs"`
 	Groups     []Group       `json:"groups"`
 	Clusters   []Cluster     `json:"clusters"`
+	// Sources and Masters are given by a compare against a reference set
+	// (compare.go); a scan has neither.
+	Sources []Sources        `json:"sources,omitempty"`
+	Masters []MasterCoverage `json:"masters,omitempty"`
 
 	// Texts holds each document's extracted text, parallel to Documents,
 	// for renderers that show passages in context (HTML). It is not part of
@@ -330,6 +335,12 @@ type Loader func(id int) (text string, units []shingle.Unit, err error)
 
 // Build aligns every reported pair, scores and ranks them, and assembles the Result.
 func Build(in Input) (*Result, error) {
+	return BuildContext(context.Background(), in)
+}
+
+// BuildContext is Build under ctx: once ctx is done, no further pair is
+// aligned and ctx's error is returned.
+func BuildContext(ctx context.Context, in Input) (*Result, error) {
 	eng := in.Engine
 	if eng == nil {
 		return nil, fmt.Errorf("report: no engine result")
@@ -410,12 +421,18 @@ func Build(in Input) (*Result, error) {
 	groups := runsBy(len(enginePairs), func(k int) uint32 { return enginePairs[k].A })
 	errs := make([]error, len(groups))
 	parallel(len(groups), in.Jobs, func(gi int) {
+		if errs[gi] = ctx.Err(); errs[gi] != nil {
+			return
+		}
 		a, err := load(enginePairs[groups[gi][0]].A)
 		if err != nil {
 			errs[gi] = err
 			return
 		}
 		for _, k := range groups[gi] {
+			if errs[gi] = ctx.Err(); errs[gi] != nil {
+				return
+			}
 			ep := enginePairs[k]
 			b, err := load(ep.B)
 			if err != nil {
@@ -443,6 +460,9 @@ func Build(in Input) (*Result, error) {
 			}
 		}
 	})
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
 	if err := errors.Join(errs...); err != nil {
 		return nil, err
 	}

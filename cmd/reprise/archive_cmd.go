@@ -1,11 +1,10 @@
 package main
 
 import (
-	"cmp"
 	"context"
+	"encoding/json"
 	"errors"
 	"fmt"
-	"github.com/cespare/xxhash/v2"
 	"io"
 	"os"
 	"runtime"
@@ -13,14 +12,13 @@ import (
 	"strconv"
 	"strings"
 	"text/tabwriter"
-	"time"
 
 	"github.com/spf13/pflag"
 
 	"reprise/archive"
 	"reprise/corpus"
-	"reprise/pairs"
 	"reprise/report"
+	"reprise/scan"
 	"reprise/shingle"
 )
 
@@ -113,7 +111,7 @@ func newArchiveFlagSet(cmd string, f *archiveFlags, stderr io.Writer) *pflag.Fla
 	return fs
 }
 
-func runArchive(args []string, stdout, stderr io.Writer) int {
+func runArchive(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 	// --archive may come before the command.
 	var pre []string
 	for len(args) > 0 && strings.HasPrefix(args[0], "-") {
@@ -201,9 +199,9 @@ func runArchive(args []string, stdout, stderr io.Writer) int {
 	code := exitOK
 	switch cmd {
 	case "add":
-		err = archiveAdd(ar, &f, paths, sopt, stdout)
+		err = archiveAdd(ctx, ar, &f, paths, sopt, stdout)
 	case "check":
-		code, err = archiveCheck(ar, &f, paths, sopt, stdout, stderr, warn)
+		code, err = archiveCheck(ctx, ar, &f, paths, sopt, stdout, stderr, warn)
 	case "list":
 		err = archiveList(ar, f.format, stdout)
 	case "stats":
@@ -230,6 +228,9 @@ func runArchive(args []string, stdout, stderr io.Writer) int {
 		err = cerr
 	}
 	if err != nil {
+		if ctx.Err() != nil && errors.Is(err, ctx.Err()) {
+			return runError(ctx, stderr, "archive "+cmd, err, nil)
+		}
 		return fail(err)
 	}
 	return code
@@ -241,58 +242,26 @@ func cutsUnits(cmd string, resplit bool) bool {
 	return cmd == "add" || cmd == "check" || (cmd == "verify" && resplit)
 }
 
-// readBatch reads and splits the documents under paths; with ar, it leaves
-// out (and counts in unchanged) those archived with the same path and content.
-func readBatch(f *archiveFlags, paths []string, sopt shingle.Options, ar *archive.Archive, unchanged *int) ([]corpus.Document, []corpus.Skipped, [][]shingle.Unit, []shingle.Stats, error) {
+// readBatch reads and splits the documents under paths with the flags'
+// limits; with ar, it leaves out (and counts in Unchanged) those archived
+// with the same path and content.
+func readBatch(ctx context.Context, f *archiveFlags, paths []string, sopt shingle.Options, ar *archive.Archive) (*scan.Batch, corpus.Options, error) {
 	size, err := parseSize(f.maxFileSize)
 	if err != nil {
-		return nil, nil, nil, nil, fmt.Errorf("--max-file-size: %w", err)
+		return nil, corpus.Options{}, fmt.Errorf("--max-file-size: %w", err)
 	}
 	if f.jobs < 1 {
-		return nil, nil, nil, nil, fmt.Errorf("--jobs must be at least 1, not %d", f.jobs)
+		return nil, corpus.Options{}, fmt.Errorf("--jobs must be at least 1, not %d", f.jobs)
 	}
-	docs, skipped, err := corpus.Read(paths, corpus.Options{Include: f.include, Skip: f.skip, MaxFileSize: size, Jobs: f.jobs})
-	if err != nil {
-		return nil, nil, nil, nil, err
-	}
-	if ar != nil {
-		// Documents already archived under the same path with the same
-		// content need no splitting: a resumed add skips them quickly.
-		kept := docs[:0]
-		for _, d := range docs {
-			id, ok, err := ar.FindHash(archive.ContentHash(d.Text))
-			if err != nil {
-				return nil, nil, nil, nil, err
-			}
-			if ok {
-				if m, err := ar.Meta(id); err == nil && m.Path == d.Path {
-					*unchanged++
-					continue
-				}
-			}
-			kept = append(kept, d)
-		}
-		docs = kept
-	}
-	units, stats := shingleAll(docs, sopt, f.jobs)
-	return docs, skipped, units, stats, nil
+	opt := corpus.Options{Include: f.include, Skip: f.skip, MaxFileSize: size, Jobs: f.jobs}
+	b, err := scan.ReadBatch(ctx, paths, opt, sopt, ar)
+	return b, opt, err
 }
 
-// addAll adds docs one atomic batch each, syncing every 1000 documents and
-// at the end; it writes a line per document to each (io.Discard for none)
-// and a summary line to out.
-func addAll(ar *archive.Archive, docs []corpus.Document, units [][]shingle.Unit, stats []shingle.Stats, each, out io.Writer) error {
-	now := time.Now()
-	counts := map[archive.Outcome]int{}
-	for i, d := range docs {
-		r, err := ar.Add(archive.Doc{
-			Path: d.Path, Format: d.Format, Encoding: d.Encoding, Size: d.Size,
-			Words: stats[i].Words, Notes: d.Notes, Marks: d.Marks, Text: d.Text, UnitList: units[i],
-		}, now)
-		if err != nil {
-			return err
-		}
-		counts[r.Outcome]++
+// addAll adds the batch, writing a line per document to each (io.Discard
+// for none) and a summary line to out.
+func addAll(ctx context.Context, ar *archive.Archive, b *scan.Batch, each, out io.Writer) error {
+	counts, err := scan.AddBatch(ctx, ar, b, func(d *corpus.Document, r archive.AddResult) {
 		switch r.Outcome {
 		case archive.Added:
 			fmt.Fprintf(each, "added      %d\t%s\n", r.ID, d.Path)
@@ -303,43 +272,50 @@ func addAll(ar *archive.Archive, docs []corpus.Document, units [][]shingle.Unit,
 		case archive.Unchanged:
 			fmt.Fprintf(each, "unchanged  %d\t%s\n", r.ID, d.Path)
 		}
-		if (i+1)%1000 == 0 {
-			if err := ar.Sync(); err != nil {
-				return err
-			}
-		}
-	}
-	if err := ar.Sync(); err != nil {
-		return err
-	}
-	fmt.Fprintf(out, "%d added, %d replaced, %d unchanged, %d duplicates\n",
-		counts[archive.Added], counts[archive.Replaced], counts[archive.Unchanged], counts[archive.Duplicate])
-	return nil
-}
-
-func archiveAdd(ar *archive.Archive, f *archiveFlags, paths []string, sopt shingle.Options, stdout io.Writer) error {
-	unchanged := 0
-	docs, skipped, units, stats, err := readBatch(f, paths, sopt, ar, &unchanged)
+	})
 	if err != nil {
 		return err
 	}
-	for _, s := range skipped {
-		fmt.Fprintf(stdout, "skipped    -\t%s: %s\n", s.Path, s.Reason)
-	}
-	if len(docs)+unchanged == 0 {
-		return noDocumentError("document", paths, f.include)
-	}
-	if unchanged > 0 {
-		fmt.Fprintf(stdout, "unchanged  %d documents already archived with the same path and content\n", unchanged)
-	}
-	return addAll(ar, docs, units, stats, quietWriter(f.quiet, stdout), stdout)
+	fmt.Fprintf(out, "%s, %s, %s, %s\n",
+		plural(counts[archive.Added], "document added", "documents added"),
+		plural(counts[archive.Replaced], "replaced"), plural(counts[archive.Unchanged]+b.Unchanged, "unchanged"),
+		plural(counts[archive.Duplicate], "duplicate"))
+	return nil
 }
 
-// archivedName is how an archived document is named in a check's report,
-// so it never collides with a new document of the same path.
-func archivedName(path string) string { return "archive:" + path }
+// plural is n with one, or with many (default: one+"s"; "replaced" and
+// "unchanged" do not change).
+func plural(n int, one string, many ...string) string {
+	if n == 1 {
+		return "1 " + one
+	}
+	if len(many) > 0 {
+		return fmt.Sprint(n) + " " + many[0]
+	}
+	if strings.HasSuffix(one, "ed") {
+		return fmt.Sprint(n) + " " + one
+	}
+	return fmt.Sprint(n) + " " + one + "s"
+}
 
-func archiveCheck(ar *archive.Archive, f *archiveFlags, paths []string, sopt shingle.Options, stdout, stderr io.Writer, warn func(string, ...any)) (int, error) {
+func archiveAdd(ctx context.Context, ar *archive.Archive, f *archiveFlags, paths []string, sopt shingle.Options, stdout io.Writer) error {
+	b, _, err := readBatch(ctx, f, paths, sopt, ar)
+	if err != nil {
+		return err
+	}
+	for _, s := range b.Skipped {
+		fmt.Fprintf(stdout, "skipped    -\t%s: %s\n", s.Path, s.Reason)
+	}
+	if len(b.Docs)+b.Unchanged == 0 {
+		return noDocumentError("document", paths, f.include)
+	}
+	if b.Unchanged > 0 && !f.quiet {
+		fmt.Fprintf(stdout, "%s already in the archive with the same path and content: left as they are\n", plural(b.Unchanged, "document"))
+	}
+	return addAll(ctx, ar, b, quietWriter(f.quiet, stdout), stdout)
+}
+
+func archiveCheck(ctx context.Context, ar *archive.Archive, f *archiveFlags, paths []string, sopt shingle.Options, stdout, stderr io.Writer, warn func(string, ...any)) (int, error) {
 	if !slices.Contains(report.Formats, f.format) {
 		return exitUsage, fmt.Errorf("--format %q: want one of %s", f.format, strings.Join(report.Formats, ", "))
 	}
@@ -356,39 +332,25 @@ func archiveCheck(ar *archive.Archive, f *archiveFlags, paths []string, sopt shi
 			return exitUsage, fmt.Errorf("--fail-on: %w", err)
 		}
 	}
-	docs, skipped, units, stats, err := readBatch(f, paths, sopt, nil, nil)
+	b, opt, err := readBatch(ctx, f, paths, sopt, nil)
 	if err != nil {
 		return exitUsage, err
 	}
-	var excluded []uint64
-	if len(f.exclude) > 0 {
-		templates, bad, err := corpus.Read(f.exclude, corpus.Options{Jobs: f.jobs})
-		if err != nil {
-			return exitUsage, err
-		}
-		if len(bad) > 0 {
-			return exitUsage, fmt.Errorf("template %s: %s", bad[0].Path, bad[0].Reason)
-		}
-		docs, skipped, _ = setTemplatesAside(docs, skipped, templates)
-		units, stats = shingleAll(docs, sopt, f.jobs)
-		tu, _ := shingleAll(templates, sopt, f.jobs)
-		for _, us := range tu {
-			for _, u := range us {
-				excluded = append(excluded, u.Hash)
-			}
-		}
-		slices.Sort(excluded)
-		excluded = slices.Compact(excluded)
-	}
-	if len(docs) == 0 {
+	if len(b.Docs) == 0 {
 		return exitUsage, noDocumentError("document", paths, f.include)
 	}
-	res, err := checkAgainst(ar, docs, skipped, units, stats, excluded, f, sopt)
+	res, err := scan.CheckArchive(ctx, ar, b, scan.CheckConfig{
+		Corpus: opt, Shingle: sopt, MinShared: f.minShared, MaxDocs: f.maxDocs, Within: f.within,
+		Exclude: f.exclude, Jobs: f.jobs, Version: version,
+	})
+	if errors.Is(err, scan.ErrNoDocuments) {
+		return exitUsage, noDocumentError("document", paths, f.include)
+	}
 	if err != nil {
 		return exitUsage, err
 	}
 	color := f.output == "" && isTerminal(stdout) && os.Getenv("NO_COLOR") == ""
-	if err := writeOutput(f.output, stdout, func(w io.Writer) error {
+	if err := writeOutput(ctx, f.output, stdout, func(w io.Writer) error {
 		return report.Write(w, res, f.format, report.TextOptions{Top: f.top, Color: color})
 	}); err != nil {
 		return exitUsage, err
@@ -396,7 +358,7 @@ func archiveCheck(ar *archive.Archive, f *archiveFlags, paths []string, sopt shi
 	if f.add {
 		// The list of what was added goes to standard error: standard
 		// output holds the report.
-		if err := addAll(ar, docs, units, stats, quietWriter(f.quiet, stderr), quietWriter(f.quiet, stderr)); err != nil {
+		if err := addAll(ctx, ar, b, quietWriter(f.quiet, stderr), quietWriter(f.quiet, stderr)); err != nil {
 			return exitUsage, err
 		}
 	}
@@ -412,273 +374,6 @@ func quietWriter(quiet bool, w io.Writer) io.Writer {
 		return io.Discard
 	}
 	return w
-}
-
-// checkAgainst builds the report of the new documents against the archive.
-//
-// A unit's document frequency is its posting length plus the new documents
-// holding it; above the cap it is common text, over the whole archive. An
-// archived document is a candidate when it shares at least --min-shared
-// counted units with some new document. The engine then counts the new
-// documents and the candidates together, with the archive-wide common units
-// excluded and no further cap, and only pairs with one side new and the
-// other archived (and, with --within, pairs of new documents) are kept —
-// the same rule as compare.
-func checkAgainst(ar *archive.Archive, docs []corpus.Document, skipped []corpus.Skipped, units [][]shingle.Unit,
-	stats []shingle.Stats, excluded []uint64, f *archiveFlags, sopt shingle.Options) (*report.Result, error) {
-	newSets := fingerprintSets(units)
-	batchDF := map[uint64]int{}
-	firstDoc := map[uint64]int{}
-	for i, set := range newSets {
-		for _, fp := range set {
-			if _, ok := slices.BinarySearch(excluded, fp); ok {
-				continue
-			}
-			if batchDF[fp] == 0 {
-				firstDoc[fp] = i
-			}
-			batchDF[fp]++
-		}
-	}
-	archived, err := ar.Count()
-	if err != nil {
-		return nil, err
-	}
-	maxDocs, rule := f.maxDocs, "set by --max-docs"
-	if maxDocs == 0 {
-		maxDocs = pairs.DefaultMaxDocs(archived + len(docs))
-		rule = "default: half the documents of the archive and the batch, at least 5, at most 1000"
-	}
-	fps := make([]uint64, 0, len(batchDF))
-	for fp := range batchDF {
-		fps = append(fps, fp)
-	}
-	slices.Sort(fps)
-	postings := make(map[uint64][]uint64, len(fps))
-	dfs := make(map[uint64]int, len(fps))
-	for _, fp := range fps {
-		ids, err := ar.Postings(fp, nil)
-		if err != nil {
-			return nil, err
-		}
-		dfs[fp] = len(ids) + batchDF[fp]
-		if len(ids) > 0 {
-			postings[fp] = ids
-		}
-	}
-	frequent := func(fp uint64) bool { return dfs[fp] > maxDocs }
-	// The automatic cap's rule, as in scan: in a new document more than
-	// half of whose units are common text, common units still count.
-	mostlyNew := make([]bool, len(newSets))
-	if f.maxDocs == 0 {
-		for i, set := range newSets {
-			mostlyNew[i] = mostlyFrequent(set, frequent)
-		}
-	}
-	keptIn := map[uint64]int{} // common unit -> mostly-common new documents holding it
-	for i, set := range newSets {
-		if mostlyNew[i] {
-			for _, fp := range set {
-				if frequent(fp) {
-					keptIn[fp]++
-				}
-			}
-		}
-	}
-	var commonFPs []uint64
-	for _, fp := range fps {
-		if frequent(fp) {
-			commonFPs = append(commonFPs, fp)
-			if keptIn[fp] == 0 {
-				delete(postings, fp) // set aside in every new document
-			}
-		}
-	}
-	// A new document's counted set: common units are left out unless it is
-	// mostly common text.
-	countedSets := make([][]uint64, len(newSets))
-	for i, set := range newSets {
-		countedSets[i] = set
-		if !mostlyNew[i] && len(commonFPs) > 0 {
-			countedSets[i] = slices.DeleteFunc(slices.Clone(set), frequent)
-		}
-	}
-	// A new document archived before under the same path with the same
-	// content is the same document: it is not compared with itself.
-	self := make([]int64, len(docs))
-	for i, d := range docs {
-		self[i] = -1
-		if id, ok, err := ar.FindHash(archive.ContentHash(d.Text)); err != nil {
-			return nil, err
-		} else if ok {
-			if m, err := ar.Meta(id); err == nil && m.Path == d.Path {
-				self[i] = int64(id)
-			}
-		}
-	}
-	// Candidates: archived documents sharing enough counted units with a new one.
-	candidate := map[uint64]bool{}
-	shared := map[uint64]int{}
-	for i, set := range countedSets {
-		clear(shared)
-		for _, fp := range set {
-			for _, id := range postings[fp] {
-				shared[id]++
-			}
-		}
-		for id, n := range shared {
-			if n >= f.minShared && int64(id) != self[i] {
-				candidate[id] = true
-			}
-		}
-	}
-	ids := make([]uint64, 0, len(candidate))
-	for id := range candidate {
-		ids = append(ids, id)
-	}
-	slices.Sort(ids)
-
-	// All documents of the report: the archived ones first, then the new
-	// ones, each sorted by name, so that in every pair with an archived
-	// document that document is A and the passage text is the archived
-	// side's. isRef marks archived ones.
-	type entry struct {
-		doc    report.Doc
-		set    []uint64
-		isRef  bool
-		mostly bool  // mostly common text: common units count in it
-		batch  int   // index among the new documents, -1 for archived ones
-		id     int64 // archived ID, or the ID of the new document's own archived version, or -1
-	}
-	eff := shingle.New(sopt).Options()
-	all := make([]entry, 0, len(docs)+len(ids))
-	for i, d := range docs {
-		rd := reportDoc(d, units[i], stats[i], eff)
-		if self[i] >= 0 {
-			rd.Notes = append(rd.Notes, fmt.Sprintf("already archived as document %d (same path and content): not compared with itself", self[i]))
-		}
-		all = append(all, entry{doc: rd, set: countedSets[i], batch: i, id: self[i], mostly: mostlyNew[i]})
-	}
-	for _, id := range ids {
-		d, err := ar.Load(id)
-		if err != nil {
-			return nil, err
-		}
-		notes := slices.Clone(d.Notes)
-		notes = append(notes, fmt.Sprintf("archived document %d, added %s", d.ID, d.Added.Format("2006-01-02")))
-		set := fingerprintSets([][]shingle.Unit{d.UnitList})[0]
-		mostly := f.maxDocs == 0 && mostlyFrequent(set, frequent)
-		if !mostly && len(commonFPs) > 0 {
-			set = slices.DeleteFunc(set, frequent)
-		}
-		all = append(all, entry{
-			doc: report.Doc{Path: archivedName(d.Path), Format: d.Format, Encoding: d.Encoding, Notes: notes,
-				Text: d.Text, Words: d.Words, Units: d.UnitList, Marks: d.Marks,
-				Digest: xxhash.Sum64String(d.Text), Size: len(d.Text)},
-			set: set, isRef: true, batch: -1, id: int64(d.ID), mostly: mostly,
-		})
-	}
-	slices.SortStableFunc(all, func(x, y entry) int {
-		if x.isRef != y.isRef {
-			if x.isRef {
-				return -1
-			}
-			return 1
-		}
-		return strings.Compare(x.doc.Path, y.doc.Path)
-	})
-	at := make([]int, len(docs)) // new document index → report index
-	in := pairs.Input{Docs: make([][]uint64, len(all))}
-	isRef := make([]bool, len(all))
-	rdocs := make([]report.Doc, len(all))
-	for k, e := range all {
-		in.Docs[k], isRef[k], rdocs[k] = e.set, e.isRef, e.doc
-		if e.batch >= 0 {
-			at[e.batch] = k
-		}
-	}
-	// Common units, each set aside in the documents that are not mostly
-	// common text; Kept counts the mostly-common ones of this check that
-	// hold it (new, and archived candidates).
-	var common []pairs.CommonUnit
-	var shares []pairs.CommonShare
-	for k, e := range all {
-		if e.mostly {
-			shares = append(shares, pairs.CommonShare{Doc: uint32(k), Mostly: true})
-			if e.isRef {
-				for _, fp := range e.set {
-					if frequent(fp) {
-						keptIn[fp]++
-					}
-				}
-			}
-		}
-	}
-	for _, fp := range commonFPs {
-		if keptIn[fp] < dfs[fp] {
-			common = append(common, pairs.CommonUnit{Hash: fp, Docs: uint32(dfs[fp]), First: uint32(at[firstDoc[fp]]), Kept: uint32(keptIn[fp])})
-		}
-	}
-	slices.SortFunc(common, func(x, y pairs.CommonUnit) int {
-		return cmp.Or(cmp.Compare(y.Docs, x.Docs), cmp.Compare(x.Hash, y.Hash))
-	})
-	in.Excluded = excluded
-	eng, err := pairs.Count(in, pairs.Options{MinShared: f.minShared, MaxDocs: max(2, len(all))})
-	if err != nil {
-		return nil, err
-	}
-	keepCrossPairs(eng, isRef, f.within, func(a, b uint32) bool {
-		return isRef[a] != isRef[b] && all[a].id >= 0 && all[a].id == all[b].id
-	})
-	eng.NearCopies = pairs.NearCopiesOf(in, eng, 0)
-	eng.Common = common
-	eng.CommonShares = shares
-	eng.MaxDocs = maxDocs
-	eng.Stats.ExcludedHits = countHits(newSets, excluded)
-
-	rin := report.Input{
-		Docs:      rdocs,
-		Skipped:   make([]report.Skipped, len(skipped)),
-		Engine:    eng,
-		Excluded:  excluded,
-		Templates: len(f.exclude),
-		Settings: report.Settings{
-			Version: version, Unit: "sentence", MinShared: eng.MinShared, MinWords: eff.MinWords,
-			MaxDocs: maxDocs, MaxDocsRule: rule, MaxUnitBytes: eff.MaxUnitBytes,
-			Exclude: slices.Clone(f.exclude), Include: slices.Clone(f.include), Skip: slices.Clone(f.skip),
-		},
-	}
-	rin.Settings.MaxFileSize, _ = parseSize(f.maxFileSize)
-	unitSettings(&rin.Settings, eff, nil)
-	for i, s := range skipped {
-		rin.Skipped[i] = report.Skipped{Path: s.Path, Reason: s.Reason}
-	}
-	return report.Build(rin)
-}
-
-// mostlyFrequent reports whether more than half of a document's distinct
-// units are common text (the automatic cap's rule, pairs.CommonShare).
-func mostlyFrequent(set []uint64, frequent func(uint64) bool) bool {
-	n := 0
-	for _, fp := range set {
-		if frequent(fp) {
-			n++
-		}
-	}
-	return n > 0 && 2*n > len(set)
-}
-
-// countHits counts the distinct excluded fingerprints found in the sets.
-func countHits(sets [][]uint64, excluded []uint64) int {
-	hit := map[uint64]bool{}
-	for _, set := range sets {
-		for _, fp := range set {
-			if _, ok := slices.BinarySearch(excluded, fp); ok {
-				hit[fp] = true
-			}
-		}
-	}
-	return len(hit)
 }
 
 func archiveList(ar *archive.Archive, format string, stdout io.Writer) error {
@@ -791,6 +486,14 @@ func archiveRemove(ar *archive.Archive, targets []string, stdout io.Writer) (err
 		fmt.Fprintf(stdout, "removed    %d\t%s\n", id, d.Path)
 	}
 	return errors.Join(errs...)
+}
+
+// writeJSON writes v as indented JSON.
+func writeJSON(w io.Writer, v any) error {
+	enc := json.NewEncoder(w)
+	enc.SetEscapeHTML(false)
+	enc.SetIndent("", "  ")
+	return enc.Encode(v)
 }
 
 // quoteList joins quoted strings with commas.

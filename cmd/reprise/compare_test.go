@@ -100,10 +100,10 @@ func TestCompareMasterCoverage(t *testing.T) {
 		master string
 		news   string
 		copies int
-		check  func(t *testing.T, c masterCoverage, kept int)
+		check  func(t *testing.T, c report.MasterCoverage, kept int)
 	}{
 		{"the demo article against the 24 essays", demoSource, demoDir, 24,
-			func(t *testing.T, c masterCoverage, kept int) {
+			func(t *testing.T, c report.MasterCoverage, kept int) {
 				if slices.Contains(copiersOfTheSource, filepath.Base(c.Copy)) {
 					// The copiers take sentences 6–10 (five) and lack the rest.
 					if kept != 5 || len(c.Missing) != 2 {
@@ -112,7 +112,7 @@ func TestCompareMasterCoverage(t *testing.T) {
 				}
 			}},
 		{"a master and 12 copies, each with one word changed: each lacks only its changed sentence", master, copies, 12,
-			func(t *testing.T, c masterCoverage, kept int) {
+			func(t *testing.T, c report.MasterCoverage, kept int) {
 				var k int
 				if _, err := fmt.Sscanf(filepath.Base(c.Copy), "copy-%02d.txt", &k); err != nil {
 					t.Fatal(err)
@@ -170,8 +170,37 @@ func TestCompareMasterCoverage(t *testing.T) {
 			}
 		})
 	}
-	if code, _, e := runCLI(t, "compare", "--format", "csv", "--master", demoSource, demoDir); code != exitUsage || !strings.Contains(e, "--master") {
-		t.Errorf("--master with csv: exit %d, %q", code, e)
+}
+
+// TestCompareSectionsInEveryFormat: compare's sources and master coverage
+// are part of the result, written in all five formats, and `reprise report`
+// redraws them from the JSON.
+func TestCompareSectionsInEveryFormat(t *testing.T) {
+	want := map[string][]string{
+		"text":   {"Where each new document's shared passages were found", "What each copy keeps of its master", "of the master not in it"},
+		"json":   {`"sources": [`, `"masters": [`, `"missing": [`},
+		"ndjson": {`{"type":"sources"`, `{"type":"master"`},
+		"csv":    {"\nsource,1,", "\nmissing,1,"},
+		"html":   {"Where each new document", "What each copy keeps of its master"},
+	}
+	for _, format := range report.Formats {
+		code, out, e := runCLI(t, "compare", "-q", "--format", format, "--master", demoSource, demoDir)
+		if code != exitOK {
+			t.Fatalf("--master --format %s: exit %d: %s", format, code, e)
+		}
+		for _, w := range want[format] {
+			if !strings.Contains(out, w) {
+				t.Errorf("--master --format %s: no %q in the output", format, w)
+			}
+		}
+	}
+	saved := filepath.Join(t.TempDir(), "compare.json")
+	if code, _, e := runCLI(t, "compare", "-q", "--format", "json", "-o", saved, "--master", demoSource, demoDir); code != exitOK {
+		t.Fatalf("compare -o: exit %d: %s", code, e)
+	}
+	code, out, e := runCLI(t, "report", "--format", "text", saved)
+	if code != exitOK || !strings.Contains(out, "What each copy keeps of its master") || !strings.Contains(out, "Where each new document") {
+		t.Errorf("report of a saved compare: exit %d, %s; sections missing from:\n%s", code, e, out)
 	}
 }
 
@@ -306,8 +335,8 @@ type compareOutput struct {
 	settings report.Settings
 	docs     map[string]report.Document // by path
 	pairs    []report.Pair
-	sources  []sources
-	cover    []masterCoverage
+	sources  []report.Sources
+	cover    []report.MasterCoverage
 }
 
 // compareNDJSON runs compare with --format ndjson and decodes every line,
@@ -345,12 +374,12 @@ func compareNDJSON(t *testing.T, args ...string) *compareOutput {
 				r.pairs = append(r.pairs, p)
 			}
 		case "sources":
-			var s sources
+			var s report.Sources
 			if err = json.Unmarshal(b, &s); err == nil {
 				r.sources = append(r.sources, s)
 			}
 		case "master":
-			var c masterCoverage
+			var c report.MasterCoverage
 			if err = json.Unmarshal(b, &c); err == nil {
 				r.cover = append(r.cover, c)
 			}

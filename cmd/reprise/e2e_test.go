@@ -1,6 +1,7 @@
 package main
 
 import (
+	"archive/zip"
 	"bytes"
 	"encoding/json"
 	"os"
@@ -203,5 +204,40 @@ func TestSettingsRecordTheReadingLimits(t *testing.T) {
 	set := scanJSON(t, exitOK, "--max-depth", "77", "--skip-quoted-replies", "--pdf-timeout", "5s", "--file-timeout", "90s", demo)
 	if r := set.Settings.Read; r == nil || r.MaxDepth != 77 || !r.SkipQuotedReplies || r.PDFTimeoutSeconds != 5 || r.FileTimeoutSeconds != 90 {
 		t.Errorf("reading settings %+v, want max_depth 77, skip_quoted_replies, pdf_timeout_seconds 5, file_timeout_seconds 90", r)
+	}
+}
+
+// TestReadAgainKeepsIncludeForMembers: --include also chooses a ZIP
+// archive's members, so reading a quoted member again must apply it as
+// the first read did; otherwise the members left out the first time use
+// up --max-container-size and the quoted one is refused.
+func TestReadAgainKeepsIncludeForMembers(t *testing.T) {
+	dir := t.TempDir()
+	essay := strings.Join(masterSentences, " ") + "\n"
+	var buf bytes.Buffer
+	zw := zip.NewWriter(&buf)
+	for _, m := range []struct {
+		name string
+		data []byte
+	}{
+		{"a.dat", bytes.Repeat([]byte("0123456789abcdef"), 1<<16-4)}, // 64 bytes under 1 MiB, not a file the scan wants
+		{"b.txt", []byte(essay)},
+	} {
+		w, err := zw.CreateHeader(&zip.FileHeader{Name: m.name, Method: zip.Store})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if _, err := w.Write(m.data); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := zw.Close(); err != nil {
+		t.Fatal(err)
+	}
+	writeFile(t, filepath.Join(dir, "a.zip"), buf.String())
+	writeFile(t, filepath.Join(dir, "c.txt"), essay)
+	res := scanJSON(t, exitOK, "--include", "*.txt", "--include", "*.zip", "--max-container-size", "1MiB", dir)
+	if len(res.Pairs) != 1 || !strings.HasSuffix(res.Pairs[0].A, "a.zip!/b.txt") {
+		t.Fatalf("pairs %+v, want the member and its copy", res.Pairs)
 	}
 }

@@ -1,15 +1,18 @@
 // Command reprise finds documents that share passages.
 //
-// This package is the only place with side effects: it owns flags, reads
-// the inputs, shows progress, writes outputs atomically and chooses exit
-// codes. The stages it wires together (corpus, shingle, pairs, report)
-// neither print nor exit.
+// This package is the only place with side effects: it turns flags into a
+// scan.Config, shows progress, handles signals, writes outputs atomically
+// and chooses exit codes. The driver it calls (package scan) and the
+// stages below it (corpus, shingle, pairs, report) neither print nor exit.
 package main
 
 import (
+	"context"
 	"fmt"
 	"io"
 	"os"
+	"os/signal"
+	"syscall"
 )
 
 // version is the program's version, printed by --version and recorded in
@@ -21,6 +24,9 @@ const (
 	exitOK     = 0 // done
 	exitFailOn = 1 // a pair reached the --fail-on score
 	exitUsage  = 2 // bad usage, or no readable document
+	// exitInterrupted: stopped by Ctrl-C or SIGTERM, temporary files removed
+	// (128 + SIGINT's number, as a shell reports it).
+	exitInterrupted = 130
 )
 
 const mainUsage = `reprise finds documents that share passages, and shows which passages.
@@ -40,33 +46,49 @@ Shared passages are leads for a human reviewer, not proof of misconduct.
 `
 
 func main() {
-	os.Exit(run(os.Args[1:], os.Stdout, os.Stderr))
+	// Ctrl-C or SIGTERM cancels ctx: the run stops at its next file, merge
+	// step or pair, the code that made each temporary file removes it, and
+	// the exit code is exitInterrupted. A second signal ends the process at
+	// once.
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	go func() {
+		<-ctx.Done()
+		stop()
+	}()
+	code := runContext(ctx, os.Args[1:], os.Stdout, os.Stderr)
+	stop()
+	os.Exit(code)
 }
 
-// run executes one command line and returns the exit code.
+// run executes one command line, never cancelled, and returns the exit code.
 func run(args []string, stdout, stderr io.Writer) int {
+	return runContext(context.Background(), args, stdout, stderr)
+}
+
+// runContext executes one command line under ctx and returns the exit code.
+func runContext(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 	if len(args) == 0 {
 		fmt.Fprint(stderr, mainUsage)
 		return exitUsage
 	}
 	switch args[0] {
 	case "scan":
-		return runScan(args[1:], stdout, stderr)
+		return runScan(ctx, args[1:], stdout, stderr)
 	case "report":
-		return runReport(args[1:], stdout, stderr)
+		return runReport(ctx, args[1:], stdout, stderr)
 	case "compare":
-		return runCompare(args[1:], stdout, stderr)
+		return runCompare(ctx, args[1:], stdout, stderr)
 	case "archive":
-		return runArchive(args[1:], stdout, stderr)
+		return runArchive(ctx, args[1:], stdout, stderr)
 	case "help", "-h", "--help":
 		if len(args) > 1 && args[1] == "scan" {
-			return runScan([]string{"--help"}, stdout, stderr)
+			return runScan(ctx, []string{"--help"}, stdout, stderr)
 		}
 		if len(args) > 1 && args[1] == "report" {
-			return runReport([]string{"--help"}, stdout, stderr)
+			return runReport(ctx, []string{"--help"}, stdout, stderr)
 		}
 		if len(args) > 1 && (args[1] == "compare" || args[1] == "archive") {
-			return run([]string{args[1], "--help"}, stdout, stderr)
+			return runContext(ctx, []string{args[1], "--help"}, stdout, stderr)
 		}
 		if len(args) > 1 {
 			fmt.Fprintf(stderr, "reprise: no help on %q: the commands are scan, compare, archive and report\n", args[1])

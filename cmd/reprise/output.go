@@ -2,6 +2,7 @@ package main
 
 import (
 	"bufio"
+	"context"
 	"crypto/rand"
 	"encoding/hex"
 	"errors"
@@ -14,18 +15,24 @@ import (
 	"sync"
 	"sync/atomic"
 	"time"
+
+	"reprise/scan"
 )
 
 // writeOutput runs render into standard output, or into a temporary file
 // beside path that is renamed over path only when rendering succeeded, so a
 // reader never sees a half-written report and a failed run leaves the old
-// one in place. The temporary file is removed on failure, and on Ctrl-C
-// while a tempGuard watches.
+// one in place. The temporary file is removed on failure, and when ctx is
+// cancelled (Ctrl-C) while the report is written.
 //
 // Reports quote the documents, so the file gets no wider permissions than
 // the user asked for: a report replacing a file keeps that file's mode,
 // and a new one gets 0666 less the umask, as a shell redirection would.
-func writeOutput(path string, stdout io.Writer, render func(io.Writer) error) error {
+func writeOutput(ctx context.Context, path string, stdout io.Writer, render func(io.Writer) error) error {
+	// Once ctx is done every write fails, so the rendering stops at its
+	// next write and the temporary file is removed.
+	inner := render
+	render = func(w io.Writer) error { return inner(ctxWriter{ctx, w}) }
 	if path == "" || path == "-" {
 		bw := bufio.NewWriter(stdout)
 		if err := render(bw); err != nil {
@@ -55,7 +62,6 @@ func writeOutput(path string, stdout io.Writer, render func(io.Writer) error) er
 	if err != nil {
 		return fmt.Errorf("output: %w", err)
 	}
-	defer removeOnInterrupt(tmp.Name())()
 	ok := false
 	defer func() {
 		if !ok {
@@ -83,6 +89,19 @@ func writeOutput(path string, stdout io.Writer, render func(io.Writer) error) er
 	}
 	ok = true
 	return nil
+}
+
+// ctxWriter fails every write once its context is done.
+type ctxWriter struct {
+	ctx context.Context
+	w   io.Writer
+}
+
+func (c ctxWriter) Write(p []byte) (int, error) {
+	if err := c.ctx.Err(); err != nil {
+		return 0, err
+	}
+	return c.w.Write(p)
 }
 
 // createBeside creates a new file named ".BASE.tmp-N" in path's folder,
@@ -142,6 +161,49 @@ func (p *progress) done() {
 	}
 	fmt.Fprintf(p.w, "\r%s\r", strings.Repeat(" ", p.width))
 	p.width = 0
+}
+
+// newProgress shows the run's progress on stderr when it is a terminal
+// and quiet is not set, by setting cfg.Progress; done on the result clears
+// the line.
+func newProgress(cfg *scan.Config, quiet bool, stderr io.Writer) *progress {
+	if quiet || !isTerminal(stderr) {
+		return nil
+	}
+	p := &progress{w: stderr}
+	cfg.Progress = stageCounter(p.show)
+	return p
+}
+
+// stageLabels name each stage in the progress line.
+var stageLabels = map[scan.Stage]string{
+	scan.StageRead:   "reading and splitting: documents read",
+	scan.StageCount:  "counting pairs among the documents",
+	scan.StageReread: "reading again the documents the report quotes",
+	scan.StageAlign:  "aligning pairs",
+}
+
+// stageCounter turns the run's progress reports into lines for show: one
+// counter per stage, with its estimate of the time left. It is safe from
+// several goroutines.
+func stageCounter(show func(format string, args ...any)) func(scan.Progress) {
+	var mu sync.Mutex
+	var stage scan.Stage
+	var c *counter
+	return func(p scan.Progress) {
+		mu.Lock()
+		if p.Stage != stage || c == nil {
+			stage = p.Stage
+			c = newCounter(show, stageLabels[p.Stage], p.Total)
+		}
+		cur := c
+		mu.Unlock()
+		if p.Detail != "" {
+			show("%s", p.Detail)
+			return
+		}
+		cur.at(p.Done, p.Total)
+	}
 }
 
 // counter reports the progress of one stage through show: done of total

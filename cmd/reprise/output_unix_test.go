@@ -3,6 +3,7 @@
 package main
 
 import (
+	"context"
 	"fmt"
 	"io"
 	"os"
@@ -37,7 +38,7 @@ func TestOutputModeIsTheReplacedFilesOrTheUmasks(t *testing.T) {
 				}
 			}
 			old := syscall.Umask(tc.umask)
-			err := writeOutput(out, nil, func(w io.Writer) error {
+			err := writeOutput(context.Background(), out, nil, func(w io.Writer) error {
 				_, err := fmt.Fprint(w, "new report")
 				return err
 			})

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -50,7 +51,7 @@ type reportFlags struct {
 	help      bool
 }
 
-func runReport(args []string, stdout, stderr io.Writer) int {
+func runReport(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 	var f reportFlags
 	fs := pflag.NewFlagSet("report", pflag.ContinueOnError)
 	fs.SetOutput(stderr)
@@ -111,7 +112,7 @@ func runReport(args []string, stdout, stderr io.Writer) int {
 	}
 	color := f.output == "" && isTerminal(stdout) && os.Getenv("NO_COLOR") == ""
 	opt := report.TextOptions{Top: f.top, Color: color, HTMLPairs: htmlPairsOption(f.htmlPairs)}
-	if err := writeOutput(f.output, stdout, func(w io.Writer) error { return report.Write(w, res, f.format, opt) }); err != nil {
+	if err := writeOutput(ctx, f.output, stdout, func(w io.Writer) error { return report.Write(w, res, f.format, opt) }); err != nil {
 		return fail("%v", err)
 	}
 	return exitOK

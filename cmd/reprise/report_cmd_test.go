@@ -10,6 +10,7 @@ import (
 	"testing"
 
 	"reprise/report"
+	"reprise/scan"
 )
 
 // TestReportReadsDocumentsAgainAsTheScanDid: for the side-by-side view,
@@ -118,7 +119,7 @@ func TestReportReadOptionsAreTheRecordedOnes(t *testing.T) {
 			MaxContainerSize: 5 << 20, MaxMemberSize: 3 << 20, MaxMembers: 7, MaxRatio: 9, MaxDepth: 11,
 			PDFTimeoutSeconds: 2.5, FileTimeoutSeconds: 7, SkipQuotedReplies: true, JSONLID: "key", JSONLText: "body", MaxJSONLLine: 4096,
 		}}, func(t *testing.T, s report.Settings) {
-			got := readSettings(recordedReadOptions(s))
+			got := scan.ReadSettings(recordedReadOptions(s))
 			if *got != *s.Read {
 				t.Errorf("read with %+v, recorded %+v", *got, *s.Read)
 			}

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -11,14 +12,13 @@ import (
 	"path/filepath"
 	"slices"
 	"strings"
+	"sync"
 	"testing"
-	"time"
-	"unsafe"
 
-	"reprise/corpus"
 	"reprise/internal/brown"
 	"reprise/internal/plant"
 	"reprise/report"
+	"reprise/scan"
 	"reprise/shingle"
 )
 
@@ -48,9 +48,16 @@ func scanAtBytes(t *testing.T, memory string, memoryBytes int64, tmp string, pat
 		cfg.Memory = memoryBytes
 	}
 	var lines []string
-	cfg.Progress = func(format string, args ...any) { lines = append(lines, fmt.Sprintf(format, args...)) }
-	cfg.Pairs.TempDir = tmp
-	res, err := scan(cfg)
+	var mu sync.Mutex
+	cfg.Progress = func(p scan.Progress) {
+		mu.Lock()
+		defer mu.Unlock()
+		if p.Detail != "" {
+			lines = append(lines, p.Detail)
+		}
+	}
+	cfg.TempDir = tmp
+	res, err := scan.Run(context.Background(), cfg)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -196,125 +203,9 @@ func TestFilesFrom(t *testing.T) {
 	}
 }
 
-// TestTempGuard: the run's temporary folder is removed when the run ends,
-// and on an interrupt, which also exits with status 130.
-func TestTempGuard(t *testing.T) {
-	parent := t.TempDir()
-	t.Run("removed on close", func(t *testing.T) {
-		g, err := newTempGuard(parent, &bytes.Buffer{}, func(int) { t.Error("exit called") })
-		if err != nil {
-			t.Fatal(err)
-		}
-		writeFile(t, filepath.Join(g.dir, "run-000001"), "x")
-		g.Close()
-		if _, err := os.Stat(g.dir); !os.IsNotExist(err) {
-			t.Fatalf("%s still there after Close: %v", g.dir, err)
-		}
-	})
-	t.Run("removed on interrupt", func(t *testing.T) {
-		codes := make(chan int, 1)
-		var msg bytes.Buffer
-		g, err := newTempGuard(parent, &msg, func(code int) { codes <- code })
-		if err != nil {
-			t.Fatal(err)
-		}
-		writeFile(t, filepath.Join(g.dir, "baskets"), "x")
-		g.sigs <- os.Interrupt
-		select {
-		case code := <-codes:
-			if code != 130 {
-				t.Fatalf("exit %d, want 130", code)
-			}
-		case <-time.After(10 * time.Second):
-			t.Fatal("no exit after the interrupt")
-		}
-		if _, err := os.Stat(g.dir); !os.IsNotExist(err) {
-			t.Fatalf("%s still there after the interrupt: %v", g.dir, err)
-		}
-		if !strings.Contains(msg.String(), "interrupted") {
-			t.Fatalf("message %q", msg.String())
-		}
-	})
-	if left, _ := os.ReadDir(parent); len(left) != 0 {
-		t.Fatalf("left in --temp: %v", left)
-	}
-}
-
-// TestEngineBudget: the engine gets what --memory leaves after the
-// pipeline's own holdings, never less than the floor, and no bound stays
-// no bound.
-func TestEngineBudget(t *testing.T) {
-	tests := []struct {
-		name         string
-		memory, held int64
-		want         int64
-	}{
-		{"no bound", 0, 1 << 30, 0},
-		{"the rest of the budget", 64 << 20, 16 << 20, 48 << 20},
-		{"the floor when the documents take it all", 8 << 20, 9 << 20, minEngineBudget},
-	}
-	for _, tc := range tests {
-		t.Run(tc.name, func(t *testing.T) {
-			if got := engineBudget(tc.memory, tc.held); got != tc.want {
-				t.Fatalf("got %d, want %d", got, tc.want)
-			}
-		})
-	}
-}
-
-// TestScanRunFolderHoldsPDFMemberCopies: the corpus writes the copy of a
-// PDF inside a ZIP into the run's private folder, the one the guard makes
-// under --temp and removes (on Ctrl-C too), not into the system
-// temporary folder; the engine spills there too.
-func TestScanRunFolderHoldsPDFMemberCopies(t *testing.T) {
-	parent := t.TempDir()
-	tests := []struct {
-		name  string
-		flags []string
-		under string
-	}{
-		{"under --temp", []string{"--temp", parent}, parent},
-		{"under the system temporary folder without --temp", nil, os.TempDir()},
-	}
-	for _, tc := range tests {
-		t.Run(tc.name, func(t *testing.T) {
-			var f scanFlags
-			fs := newScanFlagSet(&f, &bytes.Buffer{})
-			if err := fs.Parse(append(tc.flags, "docs")); err != nil {
-				t.Fatal(err)
-			}
-			cfg, _, err := f.config(fs.Args())
-			if err != nil {
-				t.Fatal(err)
-			}
-			g, err := newTempGuard(cfg.Temp, &bytes.Buffer{}, func(int) { t.Error("exit called") })
-			if err != nil {
-				t.Fatal(err)
-			}
-			useTempDir(&cfg, g)
-			if filepath.Dir(g.dir) != filepath.Clean(tc.under) {
-				t.Errorf("guard's folder %s is not in %s", g.dir, tc.under)
-			}
-			if cfg.Corpus.TempDir != g.dir || cfg.Pairs.TempDir != g.dir {
-				t.Fatalf("corpus TempDir %q, engine TempDir %q, want the guard's folder %s", cfg.Corpus.TempDir, cfg.Pairs.TempDir, g.dir)
-			}
-			if fi, err := os.Stat(g.dir); err != nil || !fi.IsDir() || fi.Mode().Perm() != 0o700 {
-				t.Fatalf("run folder: %v, %v", fi, err)
-			}
-			g.Close()
-			if _, err := os.Stat(g.dir); !os.IsNotExist(err) {
-				t.Fatalf("%s still there after Close: %v", g.dir, err)
-			}
-		})
-	}
-	if left, _ := os.ReadDir(parent); len(left) != 0 {
-		t.Fatalf("left in --temp: %v", left)
-	}
-}
-
-// TestInterruptRemovesTheOutputTempFile: Ctrl-C while the report is being
-// written removes the temporary file beside -o, which the exit would
-// otherwise leave (deferred clean-ups do not run on os.Exit).
+// TestInterruptRemovesTheOutputTempFile: Ctrl-C (a cancelled context)
+// while the report is being written fails the next write, removes the
+// temporary file beside -o and leaves an earlier report as it was.
 func TestInterruptRemovesTheOutputTempFile(t *testing.T) {
 	tests := []struct {
 		name     string
@@ -330,34 +221,27 @@ func TestInterruptRemovesTheOutputTempFile(t *testing.T) {
 			if tc.existing {
 				writeFile(t, out, "old report")
 			}
-			codes := make(chan int, 1)
-			g, err := newTempGuard(t.TempDir(), &bytes.Buffer{}, func(code int) { codes <- code })
-			if err != nil {
-				t.Fatal(err)
-			}
-			defer g.Close()
+			ctx, cancel := context.WithCancel(context.Background())
+			defer cancel()
 			pending := func() []string {
 				m, _ := filepath.Glob(filepath.Join(dir, ".review.html.tmp-*"))
 				return m
 			}
-			err = writeOutput(out, nil, func(w io.Writer) error {
+			err := writeOutput(ctx, out, nil, func(w io.Writer) error {
 				fmt.Fprint(w, "half a report")
 				if len(pending()) != 1 {
 					t.Fatalf("no temporary file beside -o while writing: %v", pending())
 				}
-				g.sigs <- os.Interrupt
-				select {
-				case <-codes:
-				case <-time.After(10 * time.Second):
-					t.Fatal("no exit after the interrupt")
-				}
-				if left := pending(); len(left) != 0 {
-					t.Errorf("left after the interrupt: %v", left)
-				}
-				return errors.New("interrupted")
+				cancel()
+				// More than the output's buffer, so that it reaches the file.
+				_, err := w.Write(make([]byte, 1<<20))
+				return err
 			})
-			if err == nil {
-				t.Fatal("writeOutput did not fail")
+			if !errors.Is(err, context.Canceled) {
+				t.Fatalf("writeOutput after the interrupt: %v, want context.Canceled", err)
+			}
+			if left := pending(); len(left) != 0 {
+				t.Errorf("left after the interrupt: %v", left)
 			}
 			if tc.existing {
 				if b, _ := os.ReadFile(out); string(b) != "old report" {
@@ -366,15 +250,4 @@ func TestInterruptRemovesTheOutputTempFile(t *testing.T) {
 			}
 		})
 	}
-}
-
-// TestHeldPerDocumentCoversTheStructs: the fixed cost charged per document
-// is at least what its corpus.Document and digest take, with their two
-// slices of results (ReadEach's docs and digests) holding one each.
-func TestHeldPerDocumentCoversTheStructs(t *testing.T) {
-	structs := unsafe.Sizeof(corpus.Document{}) + unsafe.Sizeof(docDigest{})
-	if structs > heldPerDocument {
-		t.Errorf("a document's structs take %d bytes, more than heldPerDocument %d", structs, heldPerDocument)
-	}
-	t.Logf("corpus.Document %d bytes, docDigest %d bytes, charged %d", unsafe.Sizeof(corpus.Document{}), unsafe.Sizeof(docDigest{}), heldPerDocument)
 }

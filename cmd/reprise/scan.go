@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"io"
@@ -17,6 +18,7 @@ import (
 	"reprise/corpus"
 	"reprise/pairs"
 	"reprise/report"
+	"reprise/scan"
 	"reprise/shingle"
 )
 
@@ -103,7 +105,7 @@ func newScanFlagSet(f *scanFlags, stderr io.Writer) *pflag.FlagSet {
 	return fs
 }
 
-func runScan(args []string, stdout, stderr io.Writer) int {
+func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 	var f scanFlags
 	fs := newScanFlagSet(&f, stderr)
 	fs.Usage = func() {}
@@ -124,13 +126,6 @@ func runScan(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "reprise scan: %v\nRun 'reprise scan --help' for usage.\n", err)
 		return exitUsage
 	}
-	guard, err := newTempGuard(cfg.Temp, stderr, os.Exit)
-	if err != nil {
-		fmt.Fprintf(stderr, "reprise scan: %v\n", err)
-		return exitUsage
-	}
-	defer guard.Close()
-	useTempDir(&cfg, guard)
 	defer setMemoryLimit(cfg.Memory)()
 	warn := func(format string, args ...any) {
 		if !f.quiet {
@@ -138,22 +133,12 @@ func runScan(args []string, stdout, stderr io.Writer) int {
 		}
 	}
 	cfg.Warn = warn
-	var prog *progress
-	if !f.quiet && isTerminal(stderr) {
-		prog = &progress{w: stderr}
-		cfg.Progress = prog.show
-	}
-
+	prog := newProgress(&cfg, f.quiet, stderr)
 	cfg.TextPairs = sideBySidePairs(f.format, f.htmlPairs)
-	res, err := scan(cfg)
+	res, err := scan.Run(ctx, cfg)
 	prog.done()
 	if err != nil {
-		if errors.Is(err, errNoDocuments) {
-			fmt.Fprintf(stderr, "reprise scan: %v\n", noDocumentError("document", cfg.Paths, cfg.Corpus.Include))
-			return exitUsage
-		}
-		fmt.Fprintf(stderr, "reprise scan: %v\n", err)
-		return exitUsage
+		return runError(ctx, stderr, "scan", err, cfg.Corpus.Include)
 	}
 	if len(res.Documents) == 1 {
 		warn("only one document was read: nothing to compare it with")
@@ -161,15 +146,35 @@ func runScan(args []string, stdout, stderr io.Writer) int {
 
 	color := f.output == "" && isTerminal(stdout) && os.Getenv("NO_COLOR") == ""
 	opt := report.TextOptions{Top: f.top, Color: color, HTMLPairs: htmlPairsOption(f.htmlPairs)}
-	if err := writeOutput(f.output, stdout, func(w io.Writer) error { return report.Write(w, res, f.format, opt) }); err != nil {
-		fmt.Fprintf(stderr, "reprise scan: %v\n", err)
-		return exitUsage
+	if err := writeOutput(ctx, f.output, stdout, func(w io.Writer) error { return report.Write(w, res, f.format, opt) }); err != nil {
+		return runError(ctx, stderr, "scan", err, nil)
 	}
 	if p := firstAtOrAbove(res, failOn); p != nil {
 		warn("pair %s ~ %s has score %.4f, at or above --fail-on %s", p.A, p.B, p.Score, f.failOn)
 		return exitFailOn
 	}
 	return exitOK
+}
+
+// runError prints err for the command cmd and returns its exit code:
+// exitInterrupted when ctx was cancelled (the temporary files are gone by
+// then), exitUsage otherwise; a set of inputs that gave no document is
+// explained (include: the --include globs).
+func runError(ctx context.Context, stderr io.Writer, cmd string, err error, include []string) int {
+	if ctx.Err() != nil && errors.Is(err, ctx.Err()) {
+		fmt.Fprintln(stderr, "reprise: interrupted; temporary files removed")
+		return exitInterrupted
+	}
+	var none *scan.NoDocumentsError
+	switch {
+	case errors.As(err, &none):
+		prefix, _, _ := strings.Cut(err.Error(), none.Error())
+		err = fmt.Errorf("%s%w", prefix, noDocumentError(none.What, none.Paths, include))
+	case errors.Is(err, scan.ErrNoDocuments):
+		err = noDocumentError("document", nil, include)
+	}
+	fmt.Fprintf(stderr, "reprise %s: %v\n", cmd, err)
+	return exitUsage
 }
 
 // firstAtOrAbove returns the best-ranked pair whose score reaches failOn,
@@ -194,7 +199,7 @@ func printScanHelp(w io.Writer, fs *pflag.FlagSet) {
 
 // config checks the flags and builds the scan configuration; failOn is -1
 // when --fail-on is not set.
-func (f *scanFlags) config(paths []string) (cfg scanConfig, failOn float64, err error) {
+func (f *scanFlags) config(paths []string) (cfg scan.Config, failOn float64, err error) {
 	failOn = -1
 	if err := checkOutputDir(f.output); err != nil {
 		return cfg, failOn, err
@@ -261,16 +266,17 @@ func (f *scanFlags) config(paths []string) (cfg scanConfig, failOn float64, err 
 	if f.maxDocs > 0 {
 		rule = "set by --max-docs"
 	}
-	cfg = scanConfig{
-		Paths:       paths,
-		Exclude:     f.exclude,
-		Corpus:      formats,
-		Shingle:     shingle.Options{MinWords: f.minWords},
-		Pairs:       pairs.Options{MinShared: f.minShared, MaxDocs: f.maxDocs},
-		Jobs:        f.jobs,
-		MaxDocsBy:   rule,
-		NearPairs:   nearCopyPairsOption(f.nearPairs),
-		PassageText: nearCopyPairsOption(f.passageText),
+	cfg = scan.Config{
+		Paths:         paths,
+		Exclude:       f.exclude,
+		Corpus:        formats,
+		Shingle:       shingle.Options{MinWords: f.minWords},
+		Pairs:         pairs.Options{MinShared: f.minShared, MaxDocs: f.maxDocs},
+		Jobs:          f.jobs,
+		MaxDocsRule:   rule,
+		NearCopyPairs: nearCopyPairsOption(f.nearPairs),
+		PassageText:   nearCopyPairsOption(f.passageText),
+		Version:       version,
 	}
 	f.units.apply(&cfg)
 	if err := f.scale.apply(&cfg); err != nil {

@@ -2,11 +2,11 @@ package main
 
 import (
 	"fmt"
-	"strings"
 
 	"github.com/spf13/pflag"
 
 	"reprise/report"
+	"reprise/scan"
 	"reprise/shingle"
 )
 
@@ -87,7 +87,7 @@ func (u *unitFlags) resolve(f *scanFlags) error {
 }
 
 // apply puts the unit choice into the scan configuration.
-func (u *unitFlags) apply(cfg *scanConfig) {
+func (u *unitFlags) apply(cfg *scan.Config) {
 	cfg.Shingle.SkipQuoted = u.skipQuoted
 	cfg.Shingle.SkipReferences = u.skipReferences
 	if u.unit != "words" {
@@ -97,29 +97,4 @@ func (u *unitFlags) apply(cfg *scanConfig) {
 	cfg.Shingle.ShingleWords = u.words
 	cfg.Shingle.Winnow = u.winnow
 	cfg.Chaining = &report.Chaining{Gap: u.gap, MinWords: u.minPassage}
-}
-
-// unitSettings records the unit's effective settings in the report.
-func unitSettings(s *report.Settings, opt shingle.Options, ch *report.Chaining) {
-	s.Unit = opt.Unit.String()
-	s.SkipQuoted = opt.SkipQuoted
-	s.SkipReferences = opt.SkipReferences
-	if opt.Unit == shingle.UnitWords {
-		s.MinWords = opt.ShingleWords // every shingle has K words
-		s.Shingles = &report.ShingleSettings{Words: opt.ShingleWords, Winnow: opt.Winnow, Gap: ch.Gap, MinPassage: ch.MinWords}
-	}
-}
-
-// skipNotes says, for one document, what --skip-quoted and
-// --skip-references left out.
-func skipNotes(st shingle.Stats, text string) []string {
-	var notes []string
-	if st.QuotedWords > 0 {
-		notes = append(notes, fmt.Sprintf("%d words inside quotation marks not compared (--skip-quoted)", st.QuotedWords))
-	}
-	if st.References {
-		line := strings.Count(text[:st.ReferencesStart], "\n") + 1
-		notes = append(notes, fmt.Sprintf("references section from line %d (%d words) not compared (--skip-references)", line, st.ReferencesWords))
-	}
-	return notes
 }

@@ -1,12 +1,14 @@
-package main
+package scan
 
 import (
+	"context"
 	"errors"
 	"fmt"
-	"path/filepath"
+	"os"
 	"slices"
 	"strings"
 	"sync"
+	"sync/atomic"
 
 	"github.com/cespare/xxhash/v2"
 
@@ -16,41 +18,69 @@ import (
 	"reprise/shingle"
 )
 
-// scanConfig is everything one scan needs, after flag parsing.
-type scanConfig struct {
-	Paths       []string
-	Exclude     []string // template documents: their units never count
-	Corpus      corpus.Options
-	Shingle     shingle.Options
-	Pairs       pairs.Options
-	Jobs        int
-	Progress    func(format string, args ...any) // nil: silent
-	MaxDocsBy   string                           // how MaxDocs was chosen, for the report
-	NearPairs   int                              // report.Input.NearCopyPairs
-	PassageText int                              // report.Input.PassageText
-	Memory      int64                            // --memory in bytes, 0: no bound (scale.go)
-	Temp        string                           // --temp: parent of the run's temporary folder
-	Warn        func(format string, args ...any) // nil: silent (scale.go's budget warning)
-	Chaining    *report.Chaining                 // word units: passage chaining (units.go); nil for sentences
-	// KeepText, when set, names the documents whose text stays in the
-	// corpus.Document handed to KeepPairs (compare's masters); the others'
-	// texts are dropped once split.
-	KeepText func(path string) bool
-	// SideA, when set, names the documents that are side A of their pairs
-	// with documents it does not name (compare's references).
-	SideA func(path string) bool
+// Config is everything one run needs. Zero values mean the defaults of
+// the stages (corpus, shingle, pairs, report).
+type Config struct {
+	Paths   []string       // files and folders to read
+	Exclude []string       // template documents: their units never count
+	Corpus  corpus.Options // how files are read (Jobs and TempDir are set by the run)
+	Shingle shingle.Options
+	Pairs   pairs.Options // the engine (Jobs, TempDir and MemoryBudget are set by the run)
+	// Chaining joins word units into passages (nil for sentences).
+	Chaining *report.Chaining
+	Jobs     int   // documents read and split at once, pair ranges counted at once (0: 1)
+	Memory   int64 // bound on what the run holds, in bytes; 0: no bound
+	// TempDir is the parent of the run's own temporary folder ("" for the
+	// system's); the run removes its folder when it returns, cancelled or not.
+	TempDir string
+	// MaxDocsRule says how Pairs.MaxDocs was chosen, for the report's settings.
+	MaxDocsRule   string
+	NearCopyPairs int // report.Input.NearCopyPairs
+	PassageText   int // report.Input.PassageText
 	// TextPairs: the texts of the documents of the first TextPairs ranked
 	// pairs are given in the Result (the HTML page's side-by-side views).
 	TextPairs int
-	// KeepPairs, when set, may drop pairs, groups and clusters from the
-	// engine's result before the report is built (compare.go).
-	KeepPairs func(docs []corpus.Document, eng *pairs.Result)
+	Version   string // recorded in the report's settings
+	// Progress, when set, is told how each stage goes; it may be called
+	// from several goroutines at once.
+	Progress func(Progress)
+	// Warn, when set, is told what the caller should know but does not
+	// stop the run (a bound that cannot hold).
+	Warn func(format string, args ...any)
+
+	// Set by Compare: keepText names the documents whose text stays in
+	// the corpus.Document handed to keepPairs (the masters); sideA names
+	// the documents that are side A of their pairs with documents it does
+	// not name (the references); keepPairs may drop pairs, groups and
+	// clusters from the engine's result before the report is built.
+	keepText  func(path string) bool
+	sideA     func(path string) bool
+	keepPairs func(docs []corpus.Document, eng *pairs.Result)
 }
 
-// errNoDocuments means no input gave a readable document.
-var errNoDocuments = errors.New("no readable document")
+// Stage names a step of a run, as Progress reports it.
+type Stage string
 
-// scan runs the whole pipeline: corpus → shingle → pairs → report.
+// The stages of a run, in order.
+const (
+	StageRead   Stage = "read"   // reading and splitting documents; Total is not known (0)
+	StageCount  Stage = "count"  // counting pairs; Total is the number of documents
+	StageReread Stage = "reread" // reading again the documents the report quotes
+	StageAlign  Stage = "align"  // aligning pairs into passages; Done of Total pairs
+)
+
+// Progress is one report of how a stage goes.
+type Progress struct {
+	Stage       Stage
+	Done, Total int    // Total 0: not known
+	Detail      string // a fact about the stage worth showing, or ""
+}
+
+// ErrNoDocuments means no input gave a readable document.
+var ErrNoDocuments = errors.New("no readable document")
+
+// Run reads, splits and counts the documents under cfg.Paths and builds
+// the report: corpus → shingle → pairs → report.
 //
 // Documents are split as they are read, and of each only its digest is
 // kept (its distinct fingerprints for the engine, its counts and notes),
@@ -59,25 +89,47 @@ var errNoDocuments = errors.New("no readable document")
 // report quotes (those in a pair, and the first holder of each common
 // unit) are read again for their texts; a text that is not the one first
 // read stops the run rather than misplace a passage.
-func scan(cfg scanConfig) (*report.Result, error) {
+//
+// Cancelling ctx stops the run at the next file read, merge step of the
+// engine or pair aligned; Run then returns ctx's error, having removed
+// every temporary file it made.
+func Run(ctx context.Context, cfg Config) (*report.Result, error) {
+	tmp, err := os.MkdirTemp(cfg.TempDir, "reprise-")
+	if err != nil {
+		return nil, fmt.Errorf("temporary folder: %w", err)
+	}
+	defer os.RemoveAll(tmp)
+	cfg.Pairs.TempDir, cfg.Corpus.TempDir = tmp, tmp
+	res, err := run(ctx, cfg)
+	if err == nil {
+		err = ctx.Err()
+	}
+	if err != nil {
+		return nil, err
+	}
+	return res, nil
+}
+
+func run(ctx context.Context, cfg Config) (*report.Result, error) {
 	progress := cfg.Progress
 	if progress == nil {
-		progress = func(string, ...any) {}
+		progress = func(Progress) {}
 	}
+	cfg.Jobs = max(cfg.Jobs, 1)
 	cfg.Corpus.Jobs = cfg.Jobs
 	splitOpt := cfg.Shingle
 	effective := shingle.New(splitOpt).Options()
 
-	read := newCounter(progress, "reading and splitting: documents read", 0)
+	var read atomic.Int64
 	splitters := newSplitterPool(splitOpt)
 	spool, err := newUnitSpool(cfg.Pairs.TempDir)
 	if err != nil {
 		return nil, err
 	}
 	defer spool.close()
-	docs, digests, skipped, err := corpus.ReadEach(cfg.Paths, cfg.Corpus, func(d *corpus.Document) docDigest {
-		g := splitters.digest(d, effective, cfg.KeepText, spool)
-		read.add(1)
+	docs, digests, skipped, err := corpus.ReadEachContext(ctx, cfg.Paths, cfg.Corpus, func(d *corpus.Document) docDigest {
+		g := splitters.digest(d, effective, cfg.keepText, spool)
+		progress(Progress{Stage: StageRead, Done: int(read.Add(1))})
 		return g
 	})
 	if err != nil {
@@ -90,17 +142,13 @@ func scan(cfg scanConfig) (*report.Result, error) {
 
 	var templates []corpus.Document
 	if len(cfg.Exclude) > 0 {
-		var bad []corpus.Skipped
 		// Templates are read with the scan's limits and format options, but
 		// every one named is read: --include and --skip choose documents.
 		topt := cfg.Corpus
 		topt.Include, topt.Skip = nil, nil
-		templates, bad, err = corpus.Read(cfg.Exclude, topt)
+		templates, err = ReadTemplates(ctx, cfg.Exclude, topt)
 		if err != nil {
 			return nil, err
-		}
-		if len(bad) > 0 {
-			return nil, fmt.Errorf("template %s: %s", bad[0].Path, bad[0].Reason)
 		}
 		var kept []int
 		docs, skipped, kept = setTemplatesAside(docs, skipped, templates)
@@ -110,28 +158,18 @@ func scan(cfg scanConfig) (*report.Result, error) {
 		digests = digests[:len(kept)]
 	}
 	if len(docs) == 0 {
-		return nil, errNoDocuments
+		return nil, &NoDocumentsError{What: "document", Paths: cfg.Paths}
 	}
 
 	// The engine gets what --memory leaves after the documents' digests.
 	held := heldBytes(docs, digests)
 	cfg.Pairs.MemoryBudget = engineBudget(cfg.Memory, held)
 	if cfg.Memory > 0 && held > cfg.Memory && cfg.Warn != nil {
-		cfg.Warn("the documents' names and fingerprints take about %d MiB, more than --memory %d MiB; the counting spills to disk, but the run holds more than the bound", held>>20, cfg.Memory>>20)
+		cfg.Warn("the documents' names and fingerprints take about %d MiB, more than the memory bound of %d MiB; the counting spills to disk, but the run holds more than the bound", held>>20, cfg.Memory>>20)
 	}
 	cfg.Pairs.Jobs = cfg.Jobs
 
-	var excluded []uint64
-	if len(templates) > 0 {
-		tu, _ := shingleAll(templates, splitOpt, cfg.Jobs)
-		for _, us := range tu {
-			for _, u := range us {
-				excluded = append(excluded, u.Hash)
-			}
-		}
-		slices.Sort(excluded)
-		excluded = slices.Compact(excluded)
-	}
+	excluded := TemplateUnits(templates, splitOpt, cfg.Jobs)
 	templateCount := len(templates)
 	templates = nil // their fingerprints are all the run needs of them
 
@@ -140,13 +178,13 @@ func scan(cfg scanConfig) (*report.Result, error) {
 		in.Docs[i] = digests[i].set
 	}
 
-	progress("counting pairs among %d documents", len(docs))
-	eng, err := pairs.Count(in, cfg.Pairs)
+	progress(Progress{Stage: StageCount, Total: len(docs)})
+	eng, err := pairs.CountContext(ctx, in, cfg.Pairs)
 	if err != nil {
 		return nil, err
 	}
-	if cfg.KeepPairs != nil {
-		cfg.KeepPairs(docs, eng)
+	if cfg.keepPairs != nil {
+		cfg.keepPairs(docs, eng)
 		eng.NearCopies = pairs.NearCopiesOf(in, eng, cfg.Pairs.NearCopy)
 	}
 	in = pairs.Input{}
@@ -154,21 +192,21 @@ func scan(cfg scanConfig) (*report.Result, error) {
 		digests[i].set = nil // the engine's view is no longer needed
 	}
 	if eng.Spill.Runs > 0 {
-		progress("counted in %d sorted runs on disk (%d MiB written), %d ranges of pairs", eng.Spill.Runs, eng.Spill.BytesWritten>>20, eng.Spill.Ranges)
+		progress(Progress{Stage: StageCount, Done: len(docs), Total: len(docs),
+			Detail: fmt.Sprintf("counted in %d sorted runs on disk (%d MiB written), %d ranges of pairs", eng.Spill.Runs, eng.Spill.BytesWritten>>20, eng.Spill.Ranges)})
 	}
 
-	quoted := quotedDocuments(eng, len(docs), cfg.NearPairs)
-	progress("reading again the %d documents the report quotes", len(quoted))
+	quoted := quotedDocuments(eng, len(docs), cfg.NearCopyPairs)
+	progress(Progress{Stage: StageReread, Total: len(quoted)})
 	store, err := newQuotedStore(cfg.Pairs.TempDir, quotedFit(cfg.Memory, held, digests, quoted))
 	if err != nil {
 		return nil, err
 	}
 	defer store.close()
-	if err := readAgain(cfg, docs, digests, quoted, spool, store); err != nil {
+	if err := readAgain(ctx, cfg, docs, digests, quoted, spool, store); err != nil {
 		return nil, err
 	}
 
-	aligned := newCounter(progress, "aligning pairs", 0)
 	rin := report.Input{
 		Docs:          make([]report.Doc, len(docs)),
 		Skipped:       make([]report.Skipped, len(skipped)),
@@ -178,26 +216,26 @@ func scan(cfg scanConfig) (*report.Result, error) {
 		Chaining:      cfg.Chaining,
 		Jobs:          cfg.Jobs,
 		Load:          store.load,
-		NearCopyPairs: cfg.NearPairs,
-		Progress:      aligned.at,
+		NearCopyPairs: cfg.NearCopyPairs,
+		Progress:      func(done, total int) { progress(Progress{Stage: StageAlign, Done: done, Total: total}) },
 		PassageText:   cfg.PassageText,
-		SideA:         sideA(cfg.SideA, docs),
+		SideA:         sideA(cfg.sideA, docs),
 		Settings: report.Settings{
-			Version:      version,
+			Version:      cfg.Version,
 			Unit:         "sentence",
 			MinShared:    eng.MinShared,
 			MinWords:     effective.MinWords,
 			MaxDocs:      eng.MaxDocs,
-			MaxDocsRule:  cfg.MaxDocsBy,
+			MaxDocsRule:  cfg.MaxDocsRule,
 			MaxUnitBytes: effective.MaxUnitBytes,
 			Exclude:      slices.Clone(cfg.Exclude),
 			Include:      slices.Clone(cfg.Corpus.Include),
 			Skip:         slices.Clone(cfg.Corpus.Skip),
 			MaxFileSize:  cfg.Corpus.MaxFileSize,
-			Read:         readSettings(cfg.Corpus),
+			Read:         ReadSettings(cfg.Corpus),
 		},
 	}
-	unitSettings(&rin.Settings, effective, cfg.Chaining)
+	UnitSettings(&rin.Settings, effective, cfg.Chaining)
 	for i, d := range docs {
 		g := &digests[i]
 		rin.Docs[i] = report.Doc{
@@ -209,7 +247,7 @@ func scan(cfg scanConfig) (*report.Result, error) {
 	for i, s := range skipped {
 		rin.Skipped[i] = report.Skipped{Path: s.Path, Reason: s.Reason}
 	}
-	res, err := report.Build(rin)
+	res, err := report.BuildContext(ctx, rin)
 	if err != nil {
 		return nil, err
 	}
@@ -308,7 +346,7 @@ func (p *splitterPool) digest(d *corpus.Document, effective shingle.Options, kee
 		report: isRepriseReport(d.Text),
 		set:    set, sum: xxhash.Sum64String(d.Text), size: len(d.Text),
 		words: int32(st.Words), units: int32(len(units)), spool: at,
-		notes: splitNotes(d.Notes, st, d.Text, effective),
+		notes: SplitNotes(d.Notes, st, d.Text, effective),
 	}
 	if keepText == nil || !keepText(d.Path) {
 		// Only the quoted documents need their text and marks, and
@@ -340,27 +378,12 @@ func quotedDocuments(eng *pairs.Result, n, nearCopyPairs int) []int {
 	return ids
 }
 
-// quotedFit reports whether the quoted documents ids may be held in
-// memory: with no --memory bound, or when their texts and units take at
-// most half of what the bound leaves after the held bytes (the engine has
-// let go of its memory by then; the other half is for the report).
-func quotedFit(memory, held int64, digests []docDigest, ids []int) bool {
-	if memory == 0 {
-		return true
-	}
-	var need int64
-	for _, i := range ids {
-		need += quotedBytes(digests[i].size, int(digests[i].units))
-	}
-	return need <= (memory-held)/2
-}
-
 // readAgain reads the files of the documents ids once more, with the
 // scan's options, and puts their texts in store with the units the first
 // reading wrote to spool. A document whose text is not the one first read
 // (it changed, vanished or became unreadable during the run) is an error:
 // its passages' offsets would point into another text.
-func readAgain(cfg scanConfig, docs []corpus.Document, digests []docDigest, ids []int, spool *unitSpool, store *quotedStore) error {
+func readAgain(ctx context.Context, cfg Config, docs []corpus.Document, digests []docDigest, ids []int, spool *unitSpool, store *quotedStore) error {
 	if len(ids) == 0 {
 		return store.done()
 	}
@@ -379,7 +402,7 @@ func readAgain(cfg scanConfig, docs []corpus.Document, digests []docDigest, ids 
 	var mu sync.Mutex
 	differs := map[string]bool{} // read again, but not the text first read
 	var failed []error
-	_, _, skipped, err := corpus.ReadEach(files, cfg.Corpus, func(d *corpus.Document) struct{} {
+	_, _, skipped, err := corpus.ReadEachContext(ctx, files, cfg.Corpus, func(d *corpus.Document) struct{} {
 		i, ok := byName[name{d.File, d.Path}]
 		text := d.Text
 		d.Text = ""
@@ -442,21 +465,6 @@ func readAgain(cfg scanConfig, docs []corpus.Document, digests []docDigest, ids 
 	return fmt.Errorf("%s changed, moved or became unreadable while it was being scanned (%s; %d such documents in all): its passages cannot be shown; run the scan again", first, why, len(changed))
 }
 
-// fingerprintSets gives the engine's view of each document: its distinct
-// unit fingerprints, sorted (used by scan, compare and archive check).
-func fingerprintSets(units [][]shingle.Unit) [][]uint64 {
-	sets := make([][]uint64, len(units))
-	for i, us := range units {
-		set := make([]uint64, len(us))
-		for k, u := range us {
-			set[k] = u.Hash
-		}
-		slices.Sort(set)
-		sets[i] = slices.Compact(set)
-	}
-	return sets
-}
-
 // sideA turns a test on paths into report.Input.SideA (nil for nil).
 func sideA(byPath func(string) bool, docs []corpus.Document) func(int) bool {
 	if byPath == nil {
@@ -465,33 +473,6 @@ func sideA(byPath func(string) bool, docs []corpus.Document) func(int) bool {
 	return func(id int) bool { return byPath(docs[id].Path) }
 }
 
-// reportDoc is a document as the report needs it, with the notes on how it
-// was split (used by compare's master coverage and archive check).
-func reportDoc(d corpus.Document, units []shingle.Unit, st shingle.Stats, effective shingle.Options) report.Doc {
-	return report.Doc{
-		Path: d.Path, Format: d.Format, Encoding: d.Encoding, Notes: splitNotes(d.Notes, st, d.Text, effective),
-		Text: d.Text, Words: st.Words, Units: units, Marks: d.Marks,
-		Digest: xxhash.Sum64String(d.Text), Size: len(d.Text),
-	}
-}
-
-// splitNotes are a document's reading notes followed by what splitting it
-// set aside or had to do.
-func splitNotes(readNotes []string, st shingle.Stats, text string, effective shingle.Options) []string {
-	notes := slices.Clone(readNotes)
-	notes = append(notes, skipNotes(st, text)...)
-	if st.LineBreaks {
-		notes = append(notes, "no sentence punctuation: split at line breaks")
-	}
-	if st.Cut > 0 {
-		notes = append(notes, fmt.Sprintf("%d sentences longer than %d bytes were cut", st.Cut, effective.MaxUnitBytes))
-	}
-	return notes
-}
-
-// setTemplatesAside removes from docs every file that is also a template,
-// listing it as skipped, so a prompt kept beside the essays is not compared
-// with them. kept lists the original index of each document kept.
 // isRepriseReport reports whether text holds the caution that every report
 // of reprise carries, in any format, with any line wrapping (the text
 // report folds it): near the start of JSON, NDJSON, text reports and of
@@ -531,91 +512,4 @@ func setReportsAside(docs []corpus.Document, digests []docDigest, skipped []corp
 	}
 	slices.SortStableFunc(skipped, func(a, b corpus.Skipped) int { return strings.Compare(a.Path, b.Path) })
 	return docs[:k], digests[:k], skipped
-}
-
-func setTemplatesAside(docs []corpus.Document, skipped []corpus.Skipped, templates []corpus.Document) (_ []corpus.Document, _ []corpus.Skipped, kept []int) {
-	isTemplate := make(map[string]bool, len(templates))
-	for _, t := range templates {
-		isTemplate[absPath(t.Path)] = true
-	}
-	out := docs[:0:0]
-	for i, d := range docs {
-		if isTemplate[absPath(d.Path)] {
-			skipped = append(skipped, corpus.Skipped{Path: d.Path, Reason: "template (--exclude): not compared"})
-			continue
-		}
-		out = append(out, d)
-		kept = append(kept, i)
-	}
-	slices.SortStableFunc(skipped, func(a, b corpus.Skipped) int {
-		switch {
-		case a.Path < b.Path:
-			return -1
-		case a.Path > b.Path:
-			return 1
-		}
-		return 0
-	})
-	for i := range out {
-		out[i].ID = i
-	}
-	return out, skipped, kept
-}
-
-func absPath(p string) string {
-	a, err := filepath.Abs(filepath.FromSlash(p))
-	if err != nil {
-		return p
-	}
-	return a
-}
-
-// shingleAll splits every document with jobs workers, one Splitter each.
-// Results land at their document's index, so the order never depends on
-// scheduling.
-func shingleAll(docs []corpus.Document, opt shingle.Options, jobs int) ([][]shingle.Unit, []shingle.Stats) {
-	units := make([][]shingle.Unit, len(docs))
-	stats := make([]shingle.Stats, len(docs))
-	jobs = max(1, min(jobs, len(docs)))
-	next := make(chan int)
-	var wg sync.WaitGroup
-	for range jobs {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			sp := shingle.New(opt)
-			for i := range next {
-				units[i], stats[i] = sp.Units(docs[i].Text, nil)
-			}
-		}()
-	}
-	for i := range docs {
-		next <- i
-	}
-	close(next)
-	wg.Wait()
-	return units, stats
-}
-
-// readSettings records the limits and options the documents were read
-// with, defaults applied; nil if the options are invalid (Read has
-// refused them before a report is built).
-func readSettings(o corpus.Options) *report.ReadSettings {
-	e, err := o.Effective()
-	if err != nil {
-		return nil
-	}
-	return &report.ReadSettings{
-		MaxContainerSize:   e.MaxContainerBytes,
-		MaxMemberSize:      e.MaxMemberBytes,
-		MaxMembers:         e.MaxMembers,
-		MaxRatio:           e.MaxRatio,
-		MaxDepth:           e.MaxDepth,
-		PDFTimeoutSeconds:  e.PDFTimeout.Seconds(),
-		FileTimeoutSeconds: e.FileTimeout.Seconds(),
-		SkipQuotedReplies:  e.SkipQuotedReplies,
-		JSONLID:            e.JSONLID,
-		JSONLText:          e.JSONLText,
-		MaxJSONLLine:       e.MaxJSONLLine,
-	}
 }

@@ -1,8 +1,7 @@
-package main
+package scan
 
 import (
-	"archive/zip"
-	"bytes"
+	"context"
 	"os"
 	"path/filepath"
 	"strings"
@@ -16,7 +15,7 @@ import (
 func demoCopy(t *testing.T) string {
 	t.Helper()
 	dir := t.TempDir()
-	entries, err := os.ReadDir("../../testdata/demo")
+	entries, err := os.ReadDir("../testdata/demo")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -24,7 +23,7 @@ func demoCopy(t *testing.T) string {
 		if e.IsDir() {
 			continue
 		}
-		b, err := os.ReadFile(filepath.Join("../../testdata/demo", e.Name()))
+		b, err := os.ReadFile(filepath.Join("../testdata/demo", e.Name()))
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -33,18 +32,21 @@ func demoCopy(t *testing.T) string {
 	return dir
 }
 
-func demoConfig(t *testing.T, dir string) scanConfig {
+// demoConfig is a run over dir at the defaults, with its temporary folder
+// in a test folder of its own.
+func demoConfig(t *testing.T, dir string) Config {
 	t.Helper()
-	var f scanFlags
-	fs := newScanFlagSet(&f, &bytes.Buffer{})
-	if err := fs.Parse([]string{dir}); err != nil {
+	return Config{Paths: []string{dir}, Jobs: 2, TempDir: t.TempDir()}
+}
+
+func writeFile(t *testing.T, path, text string) {
+	t.Helper()
+	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
 		t.Fatal(err)
 	}
-	cfg, _, err := f.config(fs.Args())
-	if err != nil {
+	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	return cfg
 }
 
 // TestScanHoldsNoTextWhileCounting: once split, a document keeps no text;
@@ -54,7 +56,7 @@ func TestScanHoldsNoTextWhileCounting(t *testing.T) {
 	dir := demoCopy(t)
 	cfg := demoConfig(t, dir)
 	var seen, withText int
-	cfg.KeepPairs = func(docs []corpus.Document, eng *pairs.Result) {
+	cfg.keepPairs = func(docs []corpus.Document, eng *pairs.Result) {
 		seen = len(docs)
 		for _, d := range docs {
 			if d.Text != "" {
@@ -62,7 +64,7 @@ func TestScanHoldsNoTextWhileCounting(t *testing.T) {
 			}
 		}
 	}
-	res, err := scan(cfg)
+	res, err := Run(context.Background(), cfg)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -83,7 +85,7 @@ func TestScanHoldsNoTextWhileCounting(t *testing.T) {
 	// renderers (HTML), and only those.
 	cfg = demoConfig(t, dir)
 	cfg.TextPairs = 2
-	res, err = scan(cfg)
+	res, err = Run(context.Background(), cfg)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -111,7 +113,7 @@ func TestScanHoldsNoTextWhileCounting(t *testing.T) {
 			}
 		}
 	}
-	if left, _ := os.ReadDir(cfg.Pairs.TempDir); cfg.Pairs.TempDir != "" && len(left) != 0 {
+	if left, _ := os.ReadDir(cfg.TempDir); len(left) != 0 {
 		t.Errorf("temporary files left behind: %v", left)
 	}
 }
@@ -123,7 +125,7 @@ func TestScanRefusesATextChangedMidRun(t *testing.T) {
 	dir := demoCopy(t)
 	cfg := demoConfig(t, dir)
 	var victim string
-	cfg.KeepPairs = func(docs []corpus.Document, eng *pairs.Result) {
+	cfg.keepPairs = func(docs []corpus.Document, eng *pairs.Result) {
 		if len(eng.Pairs) == 0 {
 			t.Fatal("the demo gave no pair")
 		}
@@ -134,7 +136,7 @@ func TestScanRefusesATextChangedMidRun(t *testing.T) {
 		}
 		writeFile(t, victim, "A new first line.\n"+string(b))
 	}
-	_, err := scan(cfg)
+	_, err := Run(context.Background(), cfg)
 	if err == nil || !strings.Contains(err.Error(), victim) || !strings.Contains(err.Error(), "not the one first read") {
 		t.Fatalf("scan after %s changed: error %v, want one naming it as changed", victim, err)
 	}
@@ -142,48 +144,13 @@ func TestScanRefusesATextChangedMidRun(t *testing.T) {
 	// A paired document removed mid-run is refused the same way.
 	dir = demoCopy(t)
 	cfg = demoConfig(t, dir)
-	cfg.KeepPairs = func(docs []corpus.Document, eng *pairs.Result) {
+	cfg.keepPairs = func(docs []corpus.Document, eng *pairs.Result) {
 		victim = docs[eng.Pairs[0].B].Path
 		if err := os.Remove(victim); err != nil {
 			t.Fatal(err)
 		}
 	}
-	if _, err := scan(cfg); err == nil || !strings.Contains(err.Error(), victim) || !strings.Contains(err.Error(), "reading it again: no such file") {
+	if _, err := Run(context.Background(), cfg); err == nil || !strings.Contains(err.Error(), victim) || !strings.Contains(err.Error(), "reading it again: no such file") {
 		t.Fatalf("scan after %s was removed: error %v, want one naming it", victim, err)
-	}
-}
-
-// TestReadAgainKeepsIncludeForMembers: --include also chooses a ZIP
-// archive's members, so reading a quoted member again must apply it as
-// the first read did; otherwise the members left out the first time use
-// up --max-container-size and the quoted one is refused.
-func TestReadAgainKeepsIncludeForMembers(t *testing.T) {
-	dir := t.TempDir()
-	essay := strings.Join(masterSentences, " ") + "\n"
-	var buf bytes.Buffer
-	zw := zip.NewWriter(&buf)
-	for _, m := range []struct {
-		name string
-		data []byte
-	}{
-		{"a.dat", bytes.Repeat([]byte("0123456789abcdef"), 1<<16-4)}, // 64 bytes under 1 MiB, not a file the scan wants
-		{"b.txt", []byte(essay)},
-	} {
-		w, err := zw.CreateHeader(&zip.FileHeader{Name: m.name, Method: zip.Store})
-		if err != nil {
-			t.Fatal(err)
-		}
-		if _, err := w.Write(m.data); err != nil {
-			t.Fatal(err)
-		}
-	}
-	if err := zw.Close(); err != nil {
-		t.Fatal(err)
-	}
-	writeFile(t, filepath.Join(dir, "a.zip"), buf.String())
-	writeFile(t, filepath.Join(dir, "c.txt"), essay)
-	res := scanJSON(t, exitOK, "--include", "*.txt", "--include", "*.zip", "--max-container-size", "1MiB", dir)
-	if len(res.Pairs) != 1 || !strings.HasSuffix(res.Pairs[0].A, "a.zip!/b.txt") {
-		t.Fatalf("pairs %+v, want the member and its copy", res.Pairs)
 	}
 }
