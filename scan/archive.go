@@ -3,8 +3,10 @@ package scan
 import (
 	"cmp"
 	"context"
+	"errors"
 	"fmt"
 	"slices"
+	"strconv"
 	"strings"
 	"time"
 
@@ -407,4 +409,89 @@ func countHits(sets [][]uint64, excluded []uint64) int {
 		}
 	}
 	return len(hit)
+}
+
+// RemoveFromArchive removes documents named by archived path or by ID,
+// then compacts the store so that their text leaves every file of the
+// folder. Every target is resolved first: when one names no archived
+// document, all such targets are reported and nothing is removed. A
+// document named twice (by path and by ID, say) is removed once. Once one
+// removal has succeeded the compaction always runs, even when a later
+// removal fails or ctx is done, so no removed document stays in the
+// folder's files; the error is still returned. removed, when set, is told
+// each document removed, and then (id 0, path "") that the store was
+// compacted.
+func RemoveFromArchive(ctx context.Context, ar *archive.Archive, targets []string, removed func(id uint64, path string)) error {
+	return removeFrom(ctx, ar, targets, (*archive.Archive).Remove, removed)
+}
+
+// removeFrom is RemoveFromArchive with the removal of one document given
+// (tests make it fail).
+func removeFrom(ctx context.Context, ar *archive.Archive, targets []string, removeOne func(*archive.Archive, uint64) error, removed func(id uint64, path string)) (err error) {
+	if removed == nil {
+		removed = func(uint64, string) {}
+	}
+	var ids []uint64
+	seen := map[uint64]bool{}
+	var unknown []string
+	for _, t := range targets {
+		id, ok, err := ar.FindPath(t)
+		if err != nil {
+			return err
+		}
+		if !ok {
+			n, perr := strconv.ParseUint(t, 10, 64)
+			if perr == nil {
+				if _, merr := ar.Meta(n); merr == nil {
+					id, ok = n, true
+				}
+			}
+		}
+		switch {
+		case !ok:
+			if !slices.Contains(unknown, t) {
+				unknown = append(unknown, t)
+			}
+		case !seen[id]:
+			seen[id] = true
+			ids = append(ids, id)
+		}
+	}
+	if len(unknown) > 0 {
+		q := make([]string, len(unknown))
+		for i, x := range unknown {
+			q[i] = strconv.Quote(x)
+		}
+		return fmt.Errorf("no archived document has the path or ID %s (see 'reprise archive list'); nothing was removed", strings.Join(q, ", "))
+	}
+	done := 0
+	defer func() {
+		if done == 0 {
+			return
+		}
+		// Not under ctx: the removed text must leave the files.
+		if eerr := ar.Erase(context.WithoutCancel(ctx)); eerr != nil {
+			err = errors.Join(err, eerr)
+			return
+		}
+		removed(0, "")
+	}()
+	var errs []error
+	for _, id := range ids {
+		if err := ctx.Err(); err != nil {
+			errs = append(errs, err)
+			break
+		}
+		d, err := ar.Meta(id)
+		if err == nil {
+			err = removeOne(ar, id)
+		}
+		if err != nil {
+			errs = append(errs, fmt.Errorf("document %d: %w", id, err))
+			continue
+		}
+		done++
+		removed(id, d.Path)
+	}
+	return errors.Join(errs...)
 }

@@ -60,4 +60,3 @@ func TestReportOuterFile(t *testing.T) {
 		})
 	}
 }
-

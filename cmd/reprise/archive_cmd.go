@@ -9,7 +9,6 @@ import (
 	"os"
 	"runtime"
 	"slices"
-	"strconv"
 	"strings"
 	"text/tabwriter"
 
@@ -207,7 +206,7 @@ func runArchive(ctx context.Context, args []string, stdout, stderr io.Writer) in
 	case "stats":
 		err = archiveStats(ar, f.format, stdout)
 	case "remove":
-		err = archiveRemove(ar, paths, stdout)
+		err = archiveRemove(ctx, ar, paths, stdout)
 	case "verify":
 		var problems []string
 		problems, err = ar.Verify(f.resplit)
@@ -418,74 +417,16 @@ func archiveStats(ar *archive.Archive, format string, stdout io.Writer) error {
 	return nil
 }
 
-// removeOne removes one archived document; tests replace it to make a
-// removal fail.
-var removeOne = (*archive.Archive).Remove
-
-// archiveRemove removes documents named by archived path or by ID, then
-// compacts the store so that their text leaves every file of the folder.
-// Every target is resolved first: when one names no archived document,
-// all such targets are reported and nothing is removed. A document named
-// twice (by path and by ID, say) is removed once. Once one removal has
-// succeeded the compaction always runs, even when a later removal fails,
-// so no removed document stays in the folder's files; the error is still
-// returned.
-func archiveRemove(ar *archive.Archive, targets []string, stdout io.Writer) (err error) {
-	var ids []uint64
-	seen := map[uint64]bool{}
-	var unknown []string
-	for _, t := range targets {
-		id, ok, err := ar.FindPath(t)
-		if err != nil {
-			return err
-		}
-		if !ok {
-			n, perr := strconv.ParseUint(t, 10, 64)
-			if perr == nil {
-				if _, merr := ar.Meta(n); merr == nil {
-					id, ok = n, true
-				}
-			}
-		}
-		switch {
-		case !ok:
-			if !slices.Contains(unknown, t) {
-				unknown = append(unknown, t)
-			}
-		case !seen[id]:
-			seen[id] = true
-			ids = append(ids, id)
-		}
-	}
-	if len(unknown) > 0 {
-		return fmt.Errorf("no archived document has the path or ID %s (see 'reprise archive list'); nothing was removed",
-			quoteList(unknown))
-	}
-	removed := 0
-	defer func() {
-		if removed == 0 {
+// archiveRemove removes documents named by archived path or by ID (see
+// scan.RemoveFromArchive), a line for each on stdout.
+func archiveRemove(ctx context.Context, ar *archive.Archive, targets []string, stdout io.Writer) error {
+	return scan.RemoveFromArchive(ctx, ar, targets, func(id uint64, path string) {
+		if path == "" {
+			fmt.Fprintln(stdout, "compacted: the removed text is gone from the archive's files")
 			return
 		}
-		if eerr := ar.Erase(context.Background()); eerr != nil {
-			err = errors.Join(err, eerr)
-			return
-		}
-		fmt.Fprintln(stdout, "compacted: the removed text is gone from the archive's files")
-	}()
-	var errs []error
-	for _, id := range ids {
-		d, err := ar.Meta(id)
-		if err == nil {
-			err = removeOne(ar, id)
-		}
-		if err != nil {
-			errs = append(errs, fmt.Errorf("document %d: %w", id, err))
-			continue
-		}
-		removed++
-		fmt.Fprintf(stdout, "removed    %d\t%s\n", id, d.Path)
-	}
-	return errors.Join(errs...)
+		fmt.Fprintf(stdout, "removed    %d\t%s\n", id, path)
+	})
 }
 
 // writeJSON writes v as indented JSON.
@@ -494,13 +435,4 @@ func writeJSON(w io.Writer, v any) error {
 	enc.SetEscapeHTML(false)
 	enc.SetIndent("", "  ")
 	return enc.Encode(v)
-}
-
-// quoteList joins quoted strings with commas.
-func quoteList(s []string) string {
-	q := make([]string, len(s))
-	for i, x := range s {
-		q[i] = strconv.Quote(x)
-	}
-	return strings.Join(q, ", ")
 }
