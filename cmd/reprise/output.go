@@ -228,9 +228,6 @@ func newCounter(show func(string, ...any), label string, total int) *counter {
 	return c
 }
 
-// add counts n more done.
-func (c *counter) add(n int) { c.report(c.done.Add(int64(n))) }
-
 // at says that done of total are done.
 func (c *counter) at(done, total int) {
 	c.total.Store(int64(total))

@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
@@ -94,7 +93,7 @@ func runReport(ctx context.Context, args []string, stdout, stderr io.Writer) int
 	if f.htmlPairs < 0 {
 		return fail("--html-pairs must be 0 or more, not %d", f.htmlPairs)
 	}
-	res, err := readResult(fs.Arg(0))
+	res, err := report.ReadJSONFile(fs.Arg(0))
 	if err != nil {
 		return fail("%v", err)
 	}
@@ -138,24 +137,4 @@ func sideBySidePairs(format string, htmlPairs int) int {
 	default:
 		return n
 	}
-}
-
-// readResult decodes a saved JSON result and checks that it is one.
-func readResult(name string) (*report.Result, error) {
-	raw, err := os.ReadFile(name)
-	if err != nil {
-		return nil, err
-	}
-	var res report.Result
-	if err := json.Unmarshal(raw, &res); err != nil {
-		return nil, fmt.Errorf("%s: not a reprise JSON result: %w", name, err)
-	}
-	if res.Format != report.FormatVersion {
-		return nil, fmt.Errorf("%s: result format %d, this reprise reads format %d (is it a 'reprise scan --format json' file?)",
-			name, res.Format, report.FormatVersion)
-	}
-	if res.Caution == "" {
-		res.Caution = report.Caution
-	}
-	return &res, nil
 }

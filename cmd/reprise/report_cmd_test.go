@@ -9,6 +9,7 @@ import (
 	"strings"
 	"testing"
 
+	"reprise/report"
 	"reprise/scan"
 )
 
@@ -84,7 +85,7 @@ func TestReportReadsDocumentsAgainAsTheScanDid(t *testing.T) {
 			if code := run(args, &bytes.Buffer{}, &stderr); code != exitOK {
 				t.Fatalf("scan: exit %d: %s", code, stderr.String())
 			}
-			res, err := readResult(saved)
+			res, err := report.ReadJSONFile(saved)
 			if err != nil {
 				t.Fatal(err)
 			}
