@@ -25,7 +25,7 @@ func TestHelperChildProcess(t *testing.T) {
 	if args == "" {
 		return
 	}
-	os.Exit(run(strings.Split(args, "\x1f"), os.Stdout, os.Stderr))
+	os.Exit(runWithSignals(strings.Split(args, "\x1f"), os.Stdout, os.Stderr))
 }
 
 // startChild starts the test binary as reprise with args, and returns a

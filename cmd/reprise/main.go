@@ -46,6 +46,12 @@ Shared passages are leads for a human reviewer, not proof of misconduct.
 `
 
 func main() {
+	os.Exit(runWithSignals(os.Args[1:], os.Stdout, os.Stderr))
+}
+
+// runWithSignals runs one command line as main does: Ctrl-C or SIGTERM
+// cancels its context.
+func runWithSignals(args []string, stdout, stderr io.Writer) int {
 	// Ctrl-C or SIGTERM cancels ctx: the run stops at its next file, merge
 	// step or pair, the code that made each temporary file removes it, and
 	// the exit code is exitInterrupted. A second signal ends the process at
@@ -55,9 +61,8 @@ func main() {
 		<-ctx.Done()
 		stop()
 	}()
-	code := runContext(ctx, os.Args[1:], os.Stdout, os.Stderr)
-	stop()
-	os.Exit(code)
+	defer stop()
+	return runContext(ctx, args, stdout, stderr)
 }
 
 // run executes one command line, never cancelled, and returns the exit code.
