@@ -19,6 +19,7 @@ import (
 	"reprise/corpus"
 	"reprise/pairs"
 	"reprise/report"
+	"reprise/scan"
 	"reprise/shingle"
 )
 
@@ -27,8 +28,9 @@ import (
 // in-memory structures.
 const Counter = "beam-combine"
 
-// ErrNoDocuments means no input gave a readable document.
-var ErrNoDocuments = errors.New("no readable document")
+// ErrNoDocuments means no input gave a readable document (the driver's
+// error, so that one test serves both).
+var ErrNoDocuments = scan.ErrNoDocuments
 
 // Config is everything one run needs. Zero thresholds take the defaults
 // of reprise scan.
@@ -88,7 +90,7 @@ func Run(ctx context.Context, cfg Config) (*report.Result, error) {
 	}
 	splitOpt := shingle.Options{MinWords: cfg.MinWords}
 
-	templates, excluded, err := readTemplates(cfg, splitOpt)
+	templates, excluded, err := readTemplates(ctx, cfg, splitOpt)
 	if err != nil {
 		return nil, err
 	}
@@ -143,30 +145,17 @@ func build(cfg Config, files []string, excluded []uint64, opt shingle.Options) *
 	return p
 }
 
-// readTemplates reads and splits the template documents, returning them
-// and their fingerprints, sorted and distinct.
-func readTemplates(cfg Config, opt shingle.Options) ([]corpus.Document, []uint64, error) {
+// readTemplates reads the template documents as reprise scan does, and
+// returns them and their fingerprints, sorted and distinct.
+func readTemplates(ctx context.Context, cfg Config, opt shingle.Options) ([]corpus.Document, []uint64, error) {
 	if len(cfg.Exclude) == 0 {
 		return nil, nil, nil
 	}
-	templates, bad, err := corpus.Read(cfg.Exclude, corpus.Options{MaxFileSize: cfg.MaxFileSize})
+	templates, err := scan.ReadTemplates(ctx, cfg.Exclude, corpus.Options{MaxFileSize: cfg.MaxFileSize})
 	if err != nil {
 		return nil, nil, err
 	}
-	if len(bad) > 0 {
-		return nil, nil, fmt.Errorf("template %s: %s", bad[0].Path, bad[0].Reason)
-	}
-	sp := shingle.New(opt)
-	var excluded []uint64
-	var units []shingle.Unit
-	for _, t := range templates {
-		units, _ = sp.Sentences(t.Text, units)
-		for _, u := range units {
-			excluded = append(excluded, u.Hash)
-		}
-	}
-	slices.Sort(excluded)
-	return templates, slices.Compact(excluded), nil
+	return templates, scan.TemplateUnits(templates, opt, 1), nil
 }
 
 // listInputs expands the paths into the files to read, with exactly the
@@ -214,27 +203,16 @@ func listInputs(paths []string, work string) ([]string, []corpus.Skipped, error)
 // setTemplatesAside removes every file that is also a template, listing it
 // as skipped, as reprise scan does.
 func setTemplatesAside(files []string, skipped []corpus.Skipped, templates []corpus.Document) ([]string, []corpus.Skipped) {
-	isTemplate := make(map[string]bool, len(templates))
-	for _, t := range templates {
-		isTemplate[absPath(t.Path)] = true
-	}
+	isTemplate := scan.IsTemplate(templates)
 	kept := files[:0:0]
 	for _, f := range files {
-		if isTemplate[absPath(f)] {
-			skipped = append(skipped, corpus.Skipped{Path: f, Reason: "template (--exclude): not compared"})
+		if isTemplate(f) {
+			skipped = append(skipped, corpus.Skipped{Path: f, Reason: scan.TemplateReason})
 			continue
 		}
 		kept = append(kept, f)
 	}
 	return kept, skipped
-}
-
-func absPath(p string) string {
-	a, err := filepath.Abs(filepath.FromSlash(p))
-	if err != nil {
-		return p
-	}
-	return a
 }
 
 // readLines reads one stage output; a missing file is an empty output

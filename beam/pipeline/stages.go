@@ -10,6 +10,7 @@ import (
 
 	"reprise/corpus"
 	"reprise/pairs"
+	"reprise/scan"
 	"reprise/shingle"
 )
 
@@ -70,7 +71,7 @@ func (f *readFn) ProcessElement(ctx context.Context, path string, emitSkipped fu
 	var set []uint64
 	for _, d := range docs {
 		units, st := f.sp.Sentences(d.Text, nil)
-		notes := documentNotes(d.Notes, st, f.sp.Options())
+		notes := documentNotes(d.Notes, st, d.Text, f.sp.Options())
 		doc, err := encode(docRecord{Path: d.Path, Format: d.Format, Encoding: d.Encoding, Notes: notes,
 			Words: st.Words, Text: d.Text, Units: packUnits(units), Marks: d.Marks})
 		if err != nil {
@@ -100,21 +101,13 @@ func (f *readFn) ProcessElement(ctx context.Context, path string, emitSkipped fu
 	return nil
 }
 
-// documentNotes are the notes `reprise scan` gives a document: the
-// corpus's, then what splitting did (the same wording as
-// cmd/reprise/pipeline.go, which cannot be imported from here).
-func documentNotes(fromCorpus []string, st shingle.Stats, opt shingle.Options) []string {
-	notes := slices.Clone(fromCorpus)
-	if st.LineBreaks {
-		notes = append(notes, "no sentence punctuation: split at line breaks")
+// documentNotes are the notes reprise scan gives a document
+// (scan.SplitNotes), never nil so that the record holds a list.
+func documentNotes(fromCorpus []string, st shingle.Stats, text string, opt shingle.Options) []string {
+	if notes := scan.SplitNotes(fromCorpus, st, text, opt); notes != nil {
+		return notes
 	}
-	if st.Cut > 0 {
-		notes = append(notes, fmt.Sprintf("%d sentences longer than %d bytes were cut", st.Cut, opt.MaxUnitBytes))
-	}
-	if notes == nil {
-		notes = []string{}
-	}
-	return notes
+	return []string{}
 }
 
 // basketFn sees one fingerprint's basket: the paths of the documents that

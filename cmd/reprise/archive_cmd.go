@@ -16,6 +16,7 @@ import (
 
 	"reprise/archive"
 	"reprise/corpus"
+	"reprise/internal/outfile"
 	"reprise/report"
 	"reprise/scan"
 	"reprise/shingle"
@@ -321,7 +322,7 @@ func archiveCheck(ctx context.Context, ar *archive.Archive, f *archiveFlags, pat
 	if f.minShared < 1 || f.top < 1 || f.maxDocs < 0 || f.maxDocs == 1 {
 		return exitUsage, errors.New("--min-shared and --top must be at least 1, --max-docs at least 2")
 	}
-	if err := checkOutputDir(f.output); err != nil {
+	if err := outfile.CheckDir(f.output); err != nil {
 		return exitUsage, err
 	}
 	failOn := -1.0
@@ -349,7 +350,7 @@ func archiveCheck(ctx context.Context, ar *archive.Archive, f *archiveFlags, pat
 		return exitUsage, err
 	}
 	color := f.output == "" && isTerminal(stdout) && os.Getenv("NO_COLOR") == ""
-	if err := writeOutput(ctx, f.output, stdout, func(w io.Writer) error {
+	if err := outfile.Write(ctx, f.output, stdout, func(w io.Writer) error {
 		return report.Write(w, res, f.format, report.TextOptions{Top: f.top, Color: color})
 	}); err != nil {
 		return exitUsage, err

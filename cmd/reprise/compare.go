@@ -10,6 +10,7 @@ import (
 
 	"github.com/spf13/pflag"
 
+	"reprise/internal/outfile"
 	"reprise/report"
 	"reprise/scan"
 )
@@ -99,7 +100,7 @@ func runCompare(ctx context.Context, args []string, stdout, stderr io.Writer) in
 	}
 	color := f.output == "" && isTerminal(stdout) && os.Getenv("NO_COLOR") == ""
 	opt := report.TextOptions{Top: f.top, Color: color, HTMLPairs: htmlPairsOption(f.htmlPairs)}
-	err = writeOutput(ctx, f.output, stdout, func(w io.Writer) error { return report.Write(w, res, f.format, opt) })
+	err = outfile.Write(ctx, f.output, stdout, func(w io.Writer) error { return report.Write(w, res, f.format, opt) })
 	if err != nil {
 		return runError(ctx, stderr, "compare", err, nil)
 	}

@@ -1,16 +1,11 @@
 package main
 
 import (
-	"bufio"
-	"context"
-	"crypto/rand"
-	"encoding/hex"
 	"errors"
 	"fmt"
 	"io"
 	"io/fs"
 	"os"
-	"path/filepath"
 	"strings"
 	"sync"
 	"sync/atomic"
@@ -18,109 +13,6 @@ import (
 
 	"reprise/scan"
 )
-
-// writeOutput runs render into standard output, or into a temporary file
-// beside path that is renamed over path only when rendering succeeded, so a
-// reader never sees a half-written report and a failed run leaves the old
-// one in place. The temporary file is removed on failure, and when ctx is
-// cancelled (Ctrl-C) while the report is written.
-//
-// Reports quote the documents, so the file gets no wider permissions than
-// the user asked for: a report replacing a file keeps that file's mode,
-// and a new one gets 0666 less the umask, as a shell redirection would.
-func writeOutput(ctx context.Context, path string, stdout io.Writer, render func(io.Writer) error) error {
-	// Once ctx is done every write fails, so the rendering stops at its
-	// next write and the temporary file is removed.
-	inner := render
-	render = func(w io.Writer) error { return inner(ctxWriter{ctx, w}) }
-	if path == "" || path == "-" {
-		bw := bufio.NewWriter(stdout)
-		if err := render(bw); err != nil {
-			return err
-		}
-		return bw.Flush()
-	}
-	fi, err := os.Stat(path)
-	if err == nil && !fi.Mode().IsRegular() {
-		// Devices such as /dev/null cannot be replaced by a rename.
-		f, err := os.OpenFile(path, os.O_WRONLY, 0)
-		if err != nil {
-			return fmt.Errorf("output: %w", err)
-		}
-		bw := bufio.NewWriter(f)
-		err = render(bw)
-		if err == nil {
-			err = bw.Flush()
-		}
-		if cerr := f.Close(); err == nil {
-			err = cerr
-		}
-		return err
-	}
-	keepMode := err == nil
-	tmp, err := createBeside(path)
-	if err != nil {
-		return fmt.Errorf("output: %w", err)
-	}
-	ok := false
-	defer func() {
-		if !ok {
-			tmp.Close()
-			os.Remove(tmp.Name())
-		}
-	}()
-	bw := bufio.NewWriter(tmp)
-	if err := render(bw); err != nil {
-		return err
-	}
-	if err := bw.Flush(); err != nil {
-		return fmt.Errorf("output: %w", err)
-	}
-	if keepMode {
-		if err := tmp.Chmod(fi.Mode().Perm()); err != nil {
-			return fmt.Errorf("output: %w", err)
-		}
-	}
-	if err := tmp.Close(); err != nil {
-		return fmt.Errorf("output: %w", err)
-	}
-	if err := os.Rename(tmp.Name(), path); err != nil {
-		return fmt.Errorf("output: %w", err)
-	}
-	ok = true
-	return nil
-}
-
-// ctxWriter fails every write once its context is done.
-type ctxWriter struct {
-	ctx context.Context
-	w   io.Writer
-}
-
-func (c ctxWriter) Write(p []byte) (int, error) {
-	if err := c.ctx.Err(); err != nil {
-		return 0, err
-	}
-	return c.w.Write(p)
-}
-
-// createBeside creates a new file named ".BASE.tmp-N" in path's folder,
-// with mode 0666 less the umask (os.CreateTemp's 0600 would make every
-// report private, and reading the umask is not portable).
-func createBeside(path string) (*os.File, error) {
-	dir, base := filepath.Dir(path), filepath.Base(path)
-	for try := 0; ; try++ {
-		var b [6]byte
-		if _, err := rand.Read(b[:]); err != nil {
-			return nil, err
-		}
-		name := filepath.Join(dir, "."+base+".tmp-"+hex.EncodeToString(b[:]))
-		f, err := os.OpenFile(name, os.O_RDWR|os.O_CREATE|os.O_EXCL, 0o666)
-		if err == nil || !errors.Is(err, fs.ErrExist) || try == 100 {
-			return f, err
-		}
-	}
-}
 
 // isTerminal reports whether w is a character device such as a terminal.
 func isTerminal(w io.Writer) bool {
@@ -261,41 +153,16 @@ func (c *counter) line(done int64, elapsed time.Duration) string {
 	return line
 }
 
-// checkOutputDir fails when the folder of the -o FILE does not exist (or is
-// not a folder), before any work is done, naming the folder the user gave.
-func checkOutputDir(path string) error {
-	if path == "" || path == "-" {
-		return nil
-	}
-	dir := filepath.Dir(path)
-	fi, err := os.Stat(dir)
-	switch {
-	case err != nil:
-		return fmt.Errorf("-o %s: folder %s: %w", path, dir, unwrapPath(err))
-	case !fi.IsDir():
-		return fmt.Errorf("-o %s: %s is not a folder", path, dir)
-	}
-	return nil
-}
-
-// unwrapPath drops the *fs.PathError around err, whose path the message
-// already names.
-func unwrapPath(err error) error {
-	var pe *fs.PathError
-	if errors.As(err, &pe) {
-		return pe.Err
-	}
-	return err
-}
-
 // noDocumentError says why no document was read from paths: the first
 // path that does not exist, or a filter that matched no file, or else that
 // nothing readable was found (the skipped inputs say why in the report).
 func noDocumentError(what string, paths, include []string) error {
 	for _, p := range paths {
 		fi, err := os.Stat(p)
-		if err != nil {
-			return fmt.Errorf("%s: %w", p, unwrapPath(err))
+		if pe := (*fs.PathError)(nil); errors.As(err, &pe) {
+			return fmt.Errorf("%s: %w", p, pe.Err) // the path is named once
+		} else if err != nil {
+			return fmt.Errorf("%s: %w", p, err)
 		}
 		if fi.IsDir() {
 			if entries, err := os.ReadDir(p); err == nil && len(entries) == 0 {

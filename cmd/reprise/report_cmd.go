@@ -11,6 +11,7 @@ import (
 
 	"github.com/spf13/pflag"
 
+	"reprise/internal/outfile"
 	"reprise/report"
 	"reprise/scan"
 )
@@ -81,7 +82,7 @@ func runReport(ctx context.Context, args []string, stdout, stderr io.Writer) int
 	if fs.NArg() != 1 {
 		return fail("want one RESULT.json, got %d arguments\nRun 'reprise report --help' for usage.", fs.NArg())
 	}
-	if err := checkOutputDir(f.output); err != nil {
+	if err := outfile.CheckDir(f.output); err != nil {
 		return fail("%v", err)
 	}
 	if !slices.Contains(report.Formats, f.format) {
@@ -107,7 +108,7 @@ func runReport(ctx context.Context, args []string, stdout, stderr io.Writer) int
 	}
 	color := f.output == "" && isTerminal(stdout) && os.Getenv("NO_COLOR") == ""
 	opt := report.TextOptions{Top: f.top, Color: color, HTMLPairs: htmlPairsOption(f.htmlPairs)}
-	if err := writeOutput(ctx, f.output, stdout, func(w io.Writer) error { return report.Write(w, res, f.format, opt) }); err != nil {
+	if err := outfile.Write(ctx, f.output, stdout, func(w io.Writer) error { return report.Write(w, res, f.format, opt) }); err != nil {
 		return fail("%v", err)
 	}
 	return exitOK

@@ -16,6 +16,7 @@ import (
 	"github.com/spf13/pflag"
 
 	"reprise/corpus"
+	"reprise/internal/outfile"
 	"reprise/pairs"
 	"reprise/report"
 	"reprise/scan"
@@ -146,7 +147,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 
 	color := f.output == "" && isTerminal(stdout) && os.Getenv("NO_COLOR") == ""
 	opt := report.TextOptions{Top: f.top, Color: color, HTMLPairs: htmlPairsOption(f.htmlPairs)}
-	if err := writeOutput(ctx, f.output, stdout, func(w io.Writer) error { return report.Write(w, res, f.format, opt) }); err != nil {
+	if err := outfile.Write(ctx, f.output, stdout, func(w io.Writer) error { return report.Write(w, res, f.format, opt) }); err != nil {
 		return runError(ctx, stderr, "scan", err, nil)
 	}
 	if p := firstAtOrAbove(res, failOn); p != nil {
@@ -201,7 +202,7 @@ func printScanHelp(w io.Writer, fs *pflag.FlagSet) {
 // when --fail-on is not set.
 func (f *scanFlags) config(paths []string) (cfg scan.Config, failOn float64, err error) {
 	failOn = -1
-	if err := checkOutputDir(f.output); err != nil {
+	if err := outfile.CheckDir(f.output); err != nil {
 		return cfg, failOn, err
 	}
 	if paths, err = f.scale.paths(paths, os.Stdin); err != nil {

@@ -12,7 +12,6 @@ import (
 	"io"
 	"log/slog"
 	"os"
-	"path/filepath"
 	"slices"
 	"strings"
 
@@ -27,6 +26,7 @@ import (
 	_ "github.com/apache/beam/sdks/v2/go/pkg/beam/runners/universal"
 
 	"reprise/beam/pipeline"
+	"reprise/internal/outfile"
 	"reprise/report"
 )
 
@@ -139,7 +139,7 @@ func run(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "reprise-beam: %v\n", err)
 		return 2
 	}
-	if err := writeOutput(output, stdout, func(w io.Writer) error {
+	if err := outfile.Write(context.Background(), output, stdout, func(w io.Writer) error {
 		return report.Write(w, res, format, report.TextOptions{Top: top})
 	}); err != nil {
 		fmt.Fprintf(stderr, "reprise-beam: %v\n", err)
@@ -166,33 +166,4 @@ func readList(name string) ([]string, error) {
 		return nil, fmt.Errorf("--files-from %s: %w", name, err)
 	}
 	return out, nil
-}
-
-// writeOutput writes to standard output, or to name through a temporary
-// file in the same folder renamed into place.
-func writeOutput(name string, stdout io.Writer, write func(io.Writer) error) error {
-	if name == "" || name == "-" {
-		return write(stdout)
-	}
-	tmp, err := os.CreateTemp(filepath.Dir(name), ".reprise-beam-*")
-	if err != nil {
-		return fmt.Errorf("output: %w", err)
-	}
-	defer os.Remove(tmp.Name())
-	bw := bufio.NewWriter(tmp)
-	if err := write(bw); err != nil {
-		tmp.Close()
-		return err
-	}
-	if err := bw.Flush(); err != nil {
-		tmp.Close()
-		return fmt.Errorf("output: %w", err)
-	}
-	if err := tmp.Close(); err != nil {
-		return fmt.Errorf("output: %w", err)
-	}
-	if err := os.Rename(tmp.Name(), name); err != nil {
-		return fmt.Errorf("output: %w", err)
-	}
-	return nil
 }

@@ -1,6 +1,6 @@
 //go:build unix
 
-package main
+package outfile
 
 import (
 	"context"
@@ -38,7 +38,7 @@ func TestOutputModeIsTheReplacedFilesOrTheUmasks(t *testing.T) {
 				}
 			}
 			old := syscall.Umask(tc.umask)
-			err := writeOutput(context.Background(), out, nil, func(w io.Writer) error {
+			err := Write(context.Background(), out, nil, func(w io.Writer) error {
 				_, err := fmt.Fprint(w, "new report")
 				return err
 			})
