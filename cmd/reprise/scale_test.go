@@ -199,4 +199,3 @@ func TestFilesFrom(t *testing.T) {
 		})
 	}
 }
-

@@ -148,4 +148,3 @@ func unwrapPath(err error) error {
 	}
 	return err
 }
-
