@@ -21,3 +21,17 @@ func threadTime() (time.Duration, bool) {
 	}
 	return time.Duration(ts.Nano()), true
 }
+
+// rusageThread is RUSAGE_THREAD (Linux, <sys/resource.h>).
+const rusageThread = 1
+
+// threadFaults returns the page faults (minor and major) the calling
+// thread has taken so far, 0 when they cannot be read. The caller locks
+// its goroutine to its thread.
+func threadFaults() int64 {
+	var ru syscall.Rusage
+	if err := syscall.Getrusage(rusageThread, &ru); err != nil {
+		return 0
+	}
+	return ru.Minflt + ru.Majflt
+}

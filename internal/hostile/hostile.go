@@ -34,14 +34,16 @@ type Shape struct {
 	Format string // the extractor it aims at, as corpus names formats ("markdown", "zip", ...)
 	Ext    string // the file name extension that makes reprise read it as Format
 	About  string // what the file holds, in a few words
-	// Base is the n of the smallest file of the growth check (n, 2n,
-	// 4n): large enough that even the smallest file is past the
-	// processor's caches (about 0.5 to 2 MiB of input; below that a
-	// doubling also moves the work from cache to memory, and the time
-	// grows by up to 3.5x for that reason alone), small enough that the
-	// largest stays under the default limits (members, MIME parts, file
-	// size) unless the shape is about a limit. Tests read the shapes at
-	// Base/64.
+	// Base is the n of the smallest file of the growth check's "big"
+	// scale (n, 2n, 4n): about 0.5 to 2.5 MiB of input, so that even the
+	// smallest read is past the processor's second-level cache, small
+	// enough that the largest stays under the default limits (members,
+	// MIME parts, file size) unless the shape is about a limit. Past the
+	// caches a doubling can still cost more than twice the time where a
+	// read builds a map or a slice of one entry per element (BENCHMARKS.md
+	// gives the figures); the check's "cache" scale takes Base/2^k, small
+	// enough for the whole 4n read to stay in the cache. Tests read the
+	// shapes at Base/64.
 	Base int
 	// Refused: the file is refused (skipped with a reason) at the default
 	// limits, for every n from Base on; the growth check then measures
