@@ -152,14 +152,23 @@ type tailItem struct {
 	sup  int
 }
 
-// searchGroups runs the search over the items with support threshold s and
-// at most limit steps.
+// searchGroups finds the maximal sets of items with support threshold s in
+// at most limit steps: first by shared units (searchByUnits, with half of
+// the steps), and when that does not finish, by documents (expand) with
+// the steps left.
 func searchGroups(items groupItems, s, limit int) *groupSearch {
 	g := &groupSearch{groupItems: items, s: s, limit: limit}
 	k := len(g.tids)
 	if k == 0 {
 		return g
 	}
+	g.limit = max(limit/2, 1)
+	if g.searchByUnits() {
+		g.limit = limit
+		return g
+	}
+	g.limit, g.truncated = limit, false
+	g.sets, g.support = nil, nil
 	g.holding = make([][]int32, k)
 	g.mark = make([]int, k)
 	g.rootPos = make([]int, k)
@@ -175,6 +184,200 @@ func searchGroups(items groupItems, s, limit int) *groupSearch {
 	}
 	g.expand(nil, nil, order, nil)
 	return g
+}
+
+// searchByUnits finds the maximal sets by their shared units: a set of
+// items is frequent exactly when it lies inside the items holding some s
+// units, so the maximal sets are the largest among the item sets of the
+// closed unit sets (those equal to the units all their items share) of s
+// or more units whose every closed subset has fewer. It walks the closed
+// unit sets in prefix-preserving order (each reached once, from the one
+// closed set it extends), never past one of s units, keeps those, then
+// drops any inside another. It fills g.sets and g.support and returns
+// true, or returns false when the bound stopped it.
+func (g *groupSearch) searchByUnits() bool {
+	k := len(g.tids)
+	rows := 0
+	for _, t := range g.tids {
+		if len(t) > 0 {
+			rows = max(rows, int(t[len(t)-1])+1)
+		}
+	}
+	// The items holding each row, ascending.
+	at := make([]int, rows+1)
+	for _, t := range g.tids {
+		for _, r := range t {
+			at[r+1]++
+		}
+	}
+	for r := range rows {
+		at[r+1] += at[r]
+	}
+	flat := make([]int32, at[rows])
+	fill := slices.Clone(at[:rows])
+	for i, t := range g.tids {
+		for _, r := range t {
+			flat[fill[r]] = int32(i)
+			fill[r]++
+		}
+	}
+	rowItems := func(r uint32) []int32 { return flat[at[r]:at[r+1]] }
+	weight := func(items []int32) int {
+		n := 0
+		for _, i := range items {
+			n += len(g.docs[i])
+		}
+		return n
+	}
+	all := make([]int32, k)
+	for i := range all {
+		all[i] = int32(i)
+	}
+	// closure is the units all of items hold.
+	closure := func(items []int32) ([]uint32, bool) {
+		c := slices.Clone(g.tids[items[0]])
+		for _, i := range items[1:] {
+			if !g.step() {
+				return nil, false
+			}
+			c = intersect(c[:0], c, g.tids[i])
+		}
+		return c, true
+	}
+	type found struct {
+		items []int32
+		sup   int
+	}
+	var cands []found
+	var walk func(c []uint32, items []int32, from uint32) bool
+	walk = func(c []uint32, items []int32, from uint32) bool {
+		for e := from; e < uint32(rows); e++ {
+			if _, in := slices.BinarySearch(c, e); in {
+				continue
+			}
+			if !g.step() {
+				return false
+			}
+			next := intersectItems(items, rowItems(e))
+			if weight(next) < 3 {
+				continue
+			}
+			cl, ok := closure(next)
+			if !ok {
+				return false
+			}
+			// Prefix-preserving: the closure adds no unit before e
+			// (else this closed set is reached from another).
+			if prefixChanged(c, cl, e) {
+				continue
+			}
+			if len(cl) >= g.s {
+				cands = append(cands, found{next, len(cl)})
+				continue
+			}
+			if !walk(cl, next, e+1) {
+				return false
+			}
+		}
+		return true
+	}
+	root, ok := closure(all)
+	if !ok {
+		return false
+	}
+	if len(root) >= g.s {
+		cands = append(cands, found{all, len(root)})
+	} else if !walk(root, all, 0) {
+		return false
+	}
+	// Keep the largest: a set inside another candidate is not maximal.
+	slices.SortFunc(cands, func(x, y found) int {
+		return cmp.Or(cmp.Compare(weight(y.items), weight(x.items)), slices.Compare(x.items, y.items))
+	})
+	holding := make([][]int32, k)
+	for _, c := range cands {
+		rare := c.items[0]
+		for _, i := range c.items[1:] {
+			if len(holding[i]) < len(holding[rare]) {
+				rare = i
+			}
+		}
+		inside := false
+		for _, x := range holding[rare] {
+			if !g.step() {
+				return false
+			}
+			if isSubset(c.items, g.sets[x]) {
+				inside = true
+				break
+			}
+		}
+		if inside {
+			continue
+		}
+		x := int32(len(g.sets))
+		g.sets = append(g.sets, c.items)
+		g.support = append(g.support, uint32(c.sup))
+		for _, i := range c.items {
+			holding[i] = append(holding[i], x)
+		}
+	}
+	return true
+}
+
+// intersectItems is the items in both ascending lists.
+func intersectItems(x, y []int32) []int32 {
+	var out []int32
+	i, j := 0, 0
+	for i < len(x) && j < len(y) {
+		switch {
+		case x[i] < y[j]:
+			i++
+		case x[i] > y[j]:
+			j++
+		default:
+			out = append(out, x[i])
+			i++
+			j++
+		}
+	}
+	return out
+}
+
+// prefixChanged says whether cl (a superset of c, both ascending) holds a
+// unit below e that c does not.
+func prefixChanged(c, cl []uint32, e uint32) bool {
+	i := 0
+	for _, r := range cl {
+		if r >= e {
+			return false
+		}
+		for i < len(c) && c[i] < r {
+			i++
+		}
+		if i == len(c) || c[i] != r {
+			return true
+		}
+	}
+	return false
+}
+
+// isSubset says whether every value of x (ascending) is in y (ascending).
+func isSubset(x, y []int32) bool {
+	if len(x) > len(y) {
+		return false
+	}
+	j := 0
+	for _, v := range x {
+		for j < len(y) && y[j] < v {
+			j++
+		}
+		if j == len(y) || y[j] != v {
+			return false
+		}
+		j++
+	}
+	return true
 }
 
 // step takes one step of the search, or says that the bound is reached.

@@ -406,7 +406,6 @@ func TestAutoCounterFollowsDensity(t *testing.T) {
 	}
 }
 
-
 func TestSparseTableGrowsAndCountsExactly(t *testing.T) {
 	// Start at the smallest table and insert far more keys than it holds.
 	tab := newSparseTable(0)
