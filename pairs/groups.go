@@ -157,18 +157,21 @@ type tailItem struct {
 // the steps), and when that does not finish, by documents (expand) with
 // the steps left.
 func searchGroups(items groupItems, s, limit int) *groupSearch {
-	g := &groupSearch{groupItems: items, s: s, limit: limit}
-	k := len(g.tids)
-	if k == 0 {
-		return g
-	}
-	g.limit = max(limit/2, 1)
-	if g.searchByUnits() {
+	g := &groupSearch{groupItems: items, s: s, limit: max(limit/2, 1)}
+	if len(g.tids) == 0 || g.searchByUnits() {
 		g.limit = limit
 		return g
 	}
 	g.limit, g.truncated = limit, false
 	g.sets, g.support = nil, nil
+	g.searchByDocs()
+	return g
+}
+
+// searchByDocs finds the maximal sets by extending sets of items one item
+// at a time (expand), from the empty set.
+func (g *groupSearch) searchByDocs() {
+	k := len(g.tids)
 	g.holding = make([][]int32, k)
 	g.mark = make([]int, k)
 	g.rootPos = make([]int, k)
@@ -183,7 +186,6 @@ func searchGroups(items groupItems, s, limit int) *groupSearch {
 		g.rootPos[t.item] = x
 	}
 	g.expand(nil, nil, order, nil)
-	return g
 }
 
 // searchByUnits finds the maximal sets by their shared units: a set of
@@ -197,6 +199,9 @@ func searchGroups(items groupItems, s, limit int) *groupSearch {
 // true, or returns false when the bound stopped it.
 func (g *groupSearch) searchByUnits() bool {
 	k := len(g.tids)
+	if k == 0 {
+		return true
+	}
 	rows := 0
 	for _, t := range g.tids {
 		if len(t) > 0 {
