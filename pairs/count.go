@@ -136,7 +136,7 @@ func Count(in Input, opt Options) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
-	res := &Result{MaxDocs: cfg.maxDocs, MinShared: cfg.s}
+	res := &Result{MaxDocs: cfg.maxDocs, MinShared: cfg.s, GroupStepLimit: cfg.maxSteps}
 	var entries int64
 	for _, fps := range in.Docs {
 		entries += int64(len(fps))

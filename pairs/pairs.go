@@ -154,6 +154,7 @@ type Result struct {
 	MinShared       int         // the effective support threshold
 	Counter         CounterKind // the structure that counted
 	GroupsTruncated bool
+	GroupStepLimit  int // the effective Options.MaxGroupSteps
 	Stats           Stats
 	// Spill describes how the work was split; unlike everything else in
 	// the Result it depends on MemoryBudget and Jobs.
