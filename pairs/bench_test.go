@@ -136,3 +136,111 @@ func gatherUnsorted(docs [][]uint64) []entry {
 	}
 	return ents
 }
+
+// templateCorpus builds n documents from a few shared texts, as a folder of
+// package copyright files is made of a few license texts: there are
+// templates texts of units units each; each document holds one to three of
+// them (the first template far more often than the others), keeps each of
+// their units with probability keep (edits drop the rest), and has own
+// units of its own. Deterministic from seed.
+func templateCorpus(n, templates, units, own int, keep float64, seed uint64) Input {
+	r := rand.New(rand.NewPCG(seed, 99))
+	texts := make([][]uint64, templates)
+	for t := range texts {
+		texts[t] = make([]uint64, units)
+		for u := range texts[t] {
+			texts[t][u] = r.Uint64()
+		}
+	}
+	docs := make([][]uint64, n)
+	for d := range docs {
+		var fps []uint64
+		held := 1 + r.IntN(3)
+		for range held {
+			t := 0
+			if r.IntN(2) == 0 {
+				t = r.IntN(templates)
+			}
+			for _, fp := range texts[t] {
+				if r.Float64() < keep {
+					fps = append(fps, fp)
+				}
+			}
+		}
+		for range own {
+			fps = append(fps, r.Uint64())
+		}
+		slices.Sort(fps)
+		docs[d] = slices.Compact(fps)
+	}
+	return Input{Docs: docs}
+}
+
+// groupBaskets runs Count's steps up to the group search and returns what
+// the search starts from, so that a benchmark can time the search alone.
+func groupBaskets(b *testing.B, in Input, opt Options) (baskets, int, []countedPair, int) {
+	b.Helper()
+	cfg, err := resolve(in, opt)
+	if err != nil {
+		b.Fatal(err)
+	}
+	ents := gather(in.Docs, 1)
+	bk, _, _, _ := formBaskets(ents, in.Excluded, cfg.maxDocs, in.Docs, cfg.auto)
+	bk.prune(cfg.documents, cfg.s)
+	orig := bk.compact(cfg.documents)
+	m := len(orig)
+	found := countSparse(&bk, bk.increments(), uint32(cfg.s))
+	return bk, m, found, cfg.s
+}
+
+// BenchmarkGroups times the group step alone on corpora of near-identical
+// documents (templateCorpus), the level-wise search this package used
+// before (bounded by 200,000 candidates, its default) against the
+// maximal-set search, on the same baskets in the same run. Metrics: groups
+// listed, steps (candidates for the level-wise search), and 1 when the
+// search stopped at its bound.
+func BenchmarkGroups(b *testing.B) {
+	for _, c := range []struct {
+		name string
+		in   Input
+	}{
+		{"copies-200", templateCorpus(200, 4, 30, 5, 0.97, 1)},
+		{"copies-700", templateCorpus(700, 8, 40, 5, 0.97, 2)},
+		{"identical-300", templateCorpus(300, 3, 30, 0, 1, 3)},
+	} {
+		bk, m, found, s := groupBaskets(b, c.in, Options{})
+		orig := make([]uint32, m)
+		for i := range orig {
+			orig[i] = uint32(i)
+		}
+		b.Run(c.name+"/levelwise", func(b *testing.B) {
+			var g lwGrowth
+			var groups []Group
+			for b.Loop() {
+				g = levelwiseGroups(&bk, m, found, s, 200000)
+				groups = g.groups(orig)
+			}
+			b.ReportMetric(float64(len(groups)), "groups")
+			b.ReportMetric(float64(g.examined), "steps")
+			b.ReportMetric(float64(b2i(g.truncated)), "truncated")
+		})
+		b.Run(c.name+"/maximal", func(b *testing.B) {
+			var g *groupSearch
+			var groups []Group
+			for b.Loop() {
+				g = searchGroups(makeGroupItems(&bk, m, found, s), s, defaultMaxGroupSteps)
+				groups = g.groups(orig)
+			}
+			b.ReportMetric(float64(len(groups)), "groups")
+			b.ReportMetric(float64(g.steps), "steps")
+			b.ReportMetric(float64(b2i(g.truncated)), "truncated")
+		})
+	}
+}
+
+func b2i(v bool) int {
+	if v {
+		return 1
+	}
+	return 0
+}

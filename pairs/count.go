@@ -17,9 +17,9 @@ var (
 )
 
 const (
-	defaultMinShared          = 3
-	defaultMaxGroupCandidates = 200000
-	defaultNearCopy           = 0.7
+	defaultMinShared     = 3
+	defaultMaxGroupSteps = 20000000
+	defaultNearCopy      = 0.7
 )
 
 // DefaultMaxDocs is the common-text cap used when Options.MaxDocs is 0: a
@@ -45,7 +45,7 @@ type config struct {
 	maxDocs   int
 	auto      bool    // maxDocs is the automatic cap: the mostly-common rule applies
 	nearCopy  float64 // Options.NearCopy
-	maxCand   int
+	maxSteps  int
 	counter   CounterKind
 	documents int
 	budget    int64  // Options.MemoryBudget; 0: no bound
@@ -58,7 +58,7 @@ func resolve(in Input, opt Options) (config, error) {
 	c := config{
 		s:         opt.MinShared,
 		maxDocs:   opt.MaxDocs,
-		maxCand:   opt.MaxGroupCandidates,
+		maxSteps:  opt.MaxGroupSteps,
 		counter:   opt.Counter,
 		documents: len(in.Docs),
 		budget:    opt.MemoryBudget,
@@ -92,11 +92,11 @@ func resolve(in Input, opt Options) (config, error) {
 	if c.maxDocs < 1 {
 		return c, fmt.Errorf("pairs: MaxDocs %d < 1: %w", opt.MaxDocs, ErrOption)
 	}
-	if c.maxCand == 0 {
-		c.maxCand = defaultMaxGroupCandidates
+	if c.maxSteps == 0 {
+		c.maxSteps = defaultMaxGroupSteps
 	}
-	if c.maxCand < 1 {
-		return c, fmt.Errorf("pairs: MaxGroupCandidates %d < 1: %w", opt.MaxGroupCandidates, ErrOption)
+	if c.maxSteps < 1 {
+		return c, fmt.Errorf("pairs: MaxGroupSteps %d < 1: %w", opt.MaxGroupSteps, ErrOption)
 	}
 	switch c.counter {
 	case CounterAuto, CounterTriangular, CounterSparse:
@@ -147,7 +147,7 @@ func CountContext(ctx context.Context, in Input, opt Options) (*Result, error) {
 		return nil, err
 	}
 	cfg.stopped = ctx.Err
-	res := &Result{MaxDocs: cfg.maxDocs, MinShared: cfg.s}
+	res := &Result{MaxDocs: cfg.maxDocs, MinShared: cfg.s, GroupStepLimit: cfg.maxSteps}
 	var entries int64
 	for _, fps := range in.Docs {
 		entries += int64(len(fps))
@@ -255,9 +255,10 @@ func finish(res *Result, bk *baskets, m int, orig []uint32, found []countedPair,
 	}
 
 	// Step 5: groups.
-	g := growGroups(bk, m, found, cfg.s, cfg.maxCand)
+	g := searchGroups(makeGroupItems(bk, m, found, cfg.s), cfg.s, cfg.maxSteps)
 	res.GroupsTruncated = g.truncated
-	res.Stats.GroupCandidates = g.examined
+	res.Stats.GroupSteps = g.steps
+	res.Stats.GroupItems = len(g.tids)
 	res.Groups = g.groups(orig)
 
 	// Step 6: clusters.

@@ -19,10 +19,13 @@ type Options struct {
 	// of a pair are near-copies (0 means 0.7; at most 1): each holds at
 	// least this share of the other's counted units.
 	NearCopy float64
-	// MaxGroupCandidates bounds the candidate sets examined while growing
-	// groups; when reached, growth stops and Result.GroupsTruncated is set
-	// (0 means 200000).
-	MaxGroupCandidates int
+	// MaxGroupSteps bounds the search for groups, in steps: one step
+	// intersects two support lists, tests one found group against a
+	// candidate, or starts one branch (see "Groups and their bound" in the
+	// package documentation). When reached, the search stops and
+	// Result.GroupsTruncated is set; every group listed is still a maximal
+	// group, but some may be missing (0 means 20,000,000).
+	MaxGroupSteps int
 	// Counter forces a counting structure (for tests and benchmarks); the
 	// zero value chooses one from the estimated pair density.
 	Counter CounterKind
@@ -78,7 +81,8 @@ type Pair struct {
 }
 
 // A Group is a maximal set of three or more documents (sorted ascending) that
-// all share at least MinShared units; Shared is how many they all share.
+// all share at least MinShared units: no document can join it with the set
+// still sharing that many. Shared is how many they all share.
 type Group struct {
 	Docs   []uint32
 	Shared uint32
@@ -125,16 +129,19 @@ type Stats struct {
 	ExcludedHits int   // distinct excluded units found in the input documents
 	Pruned       int   // documents removed by A-Priori pruning (in a basket before it, in none after)
 	Increments   int64 // pair increments counted: sum over the baskets left after pruning of C(d, 2)
-	// GroupCandidates counts the candidate sets of three or more documents
-	// whose support was counted while growing groups (at most
-	// Options.MaxGroupCandidates).
-	GroupCandidates int
+	// GroupSteps counts the steps of the group search (at most
+	// Options.MaxGroupSteps).
+	GroupSteps int
+	// GroupItems is how many items the group search ran over: documents
+	// that can be in a group, those with the same support list merged
+	// into one.
+	GroupItems int
 }
 
 // Result is the engine's output. Every slice is in a deterministic order.
 type Result struct {
 	Pairs    []Pair       // sorted by (A, B)
-	Groups   []Group      // by size desc, Shared desc, then Docs
+	Groups   []Group      // maximal; by size desc, Shared desc, then Docs
 	Clusters [][]uint32   // connected components of Pairs, each sorted; ordered by first member
 	Common   []CommonUnit // by Docs desc, then Hash
 	// CommonShares lists, by document, the documents holding common
@@ -147,6 +154,7 @@ type Result struct {
 	MinShared       int         // the effective support threshold
 	Counter         CounterKind // the structure that counted
 	GroupsTruncated bool
+	GroupStepLimit  int // the effective Options.MaxGroupSteps
 	Stats           Stats
 	// Spill describes how the work was split; unlike everything else in
 	// the Result it depends on MemoryBudget and Jobs.

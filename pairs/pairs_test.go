@@ -202,7 +202,7 @@ func TestCountRules(t *testing.T) {
 				}
 				if tc.checkStats {
 					st := got.Stats
-					st.GroupCandidates = 0
+					st.GroupSteps, st.GroupItems = 0, 0
 					if st != tc.stats {
 						t.Errorf("stats = %+v, want %+v", got.Stats, tc.stats)
 					}
@@ -227,7 +227,7 @@ func TestCountRejectsInvalidInput(t *testing.T) {
 		{"duplicate excluded fingerprint is rejected", Input{Docs: ok, Excluded: []uint64{4, 4}}, Options{}, ErrDuplicate, "excluded"},
 		{"MinShared below 1 is rejected", Input{Docs: ok}, Options{MinShared: -1}, ErrOption, "MinShared"},
 		{"MaxDocs below 1 is rejected", Input{Docs: ok}, Options{MaxDocs: -2}, ErrOption, "MaxDocs"},
-		{"MaxGroupCandidates below 1 is rejected", Input{Docs: ok}, Options{MaxGroupCandidates: -1}, ErrOption, "MaxGroupCandidates"},
+		{"MaxGroupSteps below 1 is rejected", Input{Docs: ok}, Options{MaxGroupSteps: -1}, ErrOption, "MaxGroupSteps"},
 		{"unknown counter is rejected", Input{Docs: ok}, Options{Counter: 7}, ErrOption, "CounterKind(7)"},
 	}
 	for _, tc := range tests {
@@ -404,58 +404,6 @@ func TestAutoCounterFollowsDensity(t *testing.T) {
 			}
 		})
 	}
-}
-
-func TestGroupCandidateBound(t *testing.T) {
-	// Six documents sharing units 1..3 (MaxDocs 6 so that they are not
-	// common): every subset is frequent, so
-	// growth counts C(6,3)+C(6,4)+C(6,5)+C(6,6) = 2^6-1-6-15 candidates.
-	docs := make([][]uint64, 6)
-	for d := range docs {
-		docs[d] = seq(1, 3)
-	}
-	in := Input{Docs: docs}
-	full, err := Count(in, Options{MaxDocs: 6})
-	if err != nil {
-		t.Fatal(err)
-	}
-	need := 1<<6 - 1 - 6 - 15
-	if full.GroupsTruncated || full.Stats.GroupCandidates != need {
-		t.Fatalf("truncated %v after %d candidates, want false after %d", full.GroupsTruncated, full.Stats.GroupCandidates, need)
-	}
-	if want := []Group{{Docs: []uint32{0, 1, 2, 3, 4, 5}, Shared: 3}}; !groupsEqual(full.Groups, want) {
-		t.Fatalf("groups = %v, want %v", full.Groups, want)
-	}
-	t.Run("a bound equal to the candidates needed does not truncate", func(t *testing.T) {
-		got, err := Count(in, Options{MaxDocs: 6, MaxGroupCandidates: need})
-		if err != nil {
-			t.Fatal(err)
-		}
-		if got.GroupsTruncated || !groupsEqual(got.Groups, full.Groups) {
-			t.Errorf("truncated %v, groups %v", got.GroupsTruncated, got.Groups)
-		}
-	})
-	t.Run("a bound below the candidates needed is reported as truncation", func(t *testing.T) {
-		for _, bound := range []int{1, 5, need - 1} {
-			got, err := Count(in, Options{MaxDocs: 6, MaxGroupCandidates: bound})
-			if err != nil {
-				t.Fatal(err)
-			}
-			if !got.GroupsTruncated || got.Stats.GroupCandidates != bound {
-				t.Fatalf("bound %d: truncated %v after %d candidates", bound, got.GroupsTruncated, got.Stats.GroupCandidates)
-			}
-			// What was found is still true: every group is a set of
-			// documents that all share its units, of size 3 or more.
-			if len(got.Groups) == 0 {
-				t.Fatalf("bound %d: no groups found so far", bound)
-			}
-			for _, g := range got.Groups {
-				if len(g.Docs) < 3 || len(g.Docs) >= 6 || g.Shared != 3 {
-					t.Errorf("bound %d: group %v", bound, g)
-				}
-			}
-		}
-	})
 }
 
 func TestSparseTableGrowsAndCountsExactly(t *testing.T) {

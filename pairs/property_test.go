@@ -298,7 +298,7 @@ func checkAgainstOracle(t *rapid.T) {
 			t.Fatalf("%v: groups\n got %v\nwant %v", kind, got.Groups, want.groups)
 		}
 		if got.GroupsTruncated {
-			t.Fatalf("%v: groups truncated at %d candidates", kind, got.Stats.GroupCandidates)
+			t.Fatalf("%v: groups truncated at %d steps", kind, got.Stats.GroupSteps)
 		}
 		if !clustersEqual(got.Clusters, want.clusters) {
 			t.Fatalf("%v: clusters\n got %v\nwant %v", kind, got.Clusters, want.clusters)

@@ -217,7 +217,7 @@ func WriteText(w io.Writer, r *Result, opt TextOptions) error {
 		t.linef("%s inside sets of near-copies not listed (the set stands for them).", plural(s.GroupsNotListed, "group"))
 	}
 	if s.GroupsTruncated {
-		t.linef("Group search stopped at its candidate limit: larger groups may exist; see the pairs and clusters.")
+		t.linef("Group search stopped at its limit of %d steps: each group listed is maximal, but other groups may exist; see the pairs and clusters.", s.GroupStepLimit)
 	}
 	t.blank()
 	t.wrapped(r.Caution)

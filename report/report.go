@@ -102,18 +102,29 @@ type ShingleSettings struct {
 
 // Summary counts what the run read, set aside and found.
 type Summary struct {
-	Documents       int    `json:"documents"`
-	Skipped         int    `json:"skipped"`
-	Words           int    `json:"words"`
-	Units           int    `json:"units"`
-	Templates       int    `json:"templates"`
-	TemplateUnits   int    `json:"template_units"`
-	CommonUnits     int    `json:"common_units"`
-	Pruned          int    `json:"pruned"`
-	Counter         string `json:"counter"`
-	Pairs           int    `json:"pairs"`
-	Groups          int    `json:"groups"`
-	GroupsTruncated bool   `json:"groups_truncated"`
+	Documents     int    `json:"documents"`
+	Skipped       int    `json:"skipped"`
+	Words         int    `json:"words"`
+	Units         int    `json:"units"`
+	Templates     int    `json:"templates"`
+	TemplateUnits int    `json:"template_units"`
+	CommonUnits   int    `json:"common_units"`
+	Pruned        int    `json:"pruned"`
+	Counter       string `json:"counter"`
+	Pairs         int    `json:"pairs"`
+	// Groups counts the groups listed: maximal sets of three or more
+	// documents (no listed group lies inside another), ranked by size,
+	// then shared units, then the documents' order in Documents.
+	Groups int `json:"groups"`
+	// GroupsTruncated: the group search stopped at its bound of
+	// GroupStepLimit steps; every group listed is still maximal, but
+	// others may be missing.
+	GroupsTruncated bool `json:"groups_truncated"`
+	// GroupSteps is what the group search cost, in steps (each a merge
+	// or search of two sorted lists: the units of a set of documents and
+	// a document's, or a set of documents and a group found before).
+	GroupSteps     int `json:"group_steps"`
+	GroupStepLimit int `json:"group_step_limit"`
 	// NearCopySets and NearCopyDocuments count the sets of near-copies and
 	// the documents in them; PairsNotListed counts the pairs inside large
 	// sets that the report does not list (see Input.NearCopyPairs).
@@ -610,6 +621,8 @@ func BuildContext(ctx context.Context, in Input) (*Result, error) {
 		Pairs:           len(res.Pairs),
 		Groups:          len(res.Groups),
 		GroupsTruncated: eng.GroupsTruncated,
+		GroupSteps:      eng.Stats.GroupSteps,
+		GroupStepLimit:  eng.GroupStepLimit,
 
 		NearCopySets:      len(res.NearCopies),
 		NearCopyDocuments: nearDocs,
