@@ -228,7 +228,7 @@ func BenchmarkGroups(b *testing.B) {
 			var g *groupSearch
 			var groups []Group
 			for b.Loop() {
-				g = searchGroups(makeGroupItems(&bk, m, found, s), s, defaultMaxGroupSteps)
+				g = searchGroups(makeGroupItems(&bk, m, found, s), s, defaultMaxGroupSteps, nil)
 				groups = g.groups(orig)
 			}
 			b.ReportMetric(float64(len(groups)), "groups")

@@ -219,7 +219,7 @@ func countInMemory(in Input, cfg config, res *Result, entries int64) error {
 		return err2
 	}
 	finish(res, &bk, m, orig, found, cfg)
-	return nil
+	return cfg.stopped() // the group search stops early when cancelled
 }
 
 // chooseKind resolves CounterAuto by the one-third rule, falling back to
@@ -255,7 +255,7 @@ func finish(res *Result, bk *baskets, m int, orig []uint32, found []countedPair,
 	}
 
 	// Step 5: groups.
-	g := searchGroups(makeGroupItems(bk, m, found, cfg.s), cfg.s, cfg.maxSteps)
+	g := searchGroups(makeGroupItems(bk, m, found, cfg.s), cfg.s, cfg.maxSteps, cfg.stopped)
 	res.GroupsTruncated = g.truncated
 	res.Stats.GroupSteps = g.steps
 	res.Stats.GroupItems = len(g.tids)

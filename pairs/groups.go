@@ -135,6 +135,7 @@ type groupSearch struct {
 	limit     int // steps allowed
 	steps     int
 	truncated bool
+	stopped   func() error // checked every stopEvery steps; nil: never
 
 	sets    [][]int32   // the maximal sets found, items ascending
 	support []uint32    // support of each
@@ -156,8 +157,8 @@ type tailItem struct {
 // at most limit steps: first by shared units (searchByUnits, with half of
 // the steps), and when that does not finish, by documents (expand) with
 // the steps left.
-func searchGroups(items groupItems, s, limit int) *groupSearch {
-	g := &groupSearch{groupItems: items, s: s, limit: max(limit/2, 1)}
+func searchGroups(items groupItems, s, limit int, stopped func() error) *groupSearch {
+	g := &groupSearch{groupItems: items, s: s, limit: max(limit/2, 1), stopped: stopped}
 	if len(g.tids) == 0 || g.searchByUnits() {
 		g.limit = limit
 		return g
@@ -391,9 +392,17 @@ func (g *groupSearch) step() bool {
 		g.truncated = true
 		return false
 	}
+	if g.stopped != nil && g.steps%stopEvery == 0 && g.stopped() != nil {
+		g.limit, g.truncated = g.steps, true // the caller returns the error
+		return false
+	}
 	g.steps++
 	return true
 }
+
+// stopEvery is how many steps the search takes between looks at whether
+// its caller was cancelled (some milliseconds of work).
+const stopEvery = 1 << 16
 
 // expand searches the sets holding head (all of its items) and some of
 // tail (the items that extend head to a frequent set, in the order of this

@@ -170,7 +170,7 @@ func countSpilled(in Input, cfg config, res *Result) error {
 		}
 	}
 	finish(res, &bk, m, orig, found, cfg)
-	return nil
+	return cfg.stopped() // the group search stops early when cancelled
 }
 
 // spiller writes and merges the sorted runs of step 1.
