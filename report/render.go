@@ -418,6 +418,10 @@ func (t *textWriter) flush() error {
 
 // plural writes n with the singular or plural form of a noun; the plural
 // adds "s" unless given.
+// Plural is n followed by one, or by many (default: one with an s), as
+// every report and message of reprise counts things ("1 pair", "2 pairs").
+func Plural(n int, one string, many ...string) string { return plural(n, one, many...) }
+
 func plural(n int, one string, many ...string) string {
 	if n == 1 {
 		return "1 " + one

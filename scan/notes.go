@@ -21,7 +21,7 @@ func SplitNotes(readNotes []string, st shingle.Stats, text string, effective shi
 		notes = append(notes, "no sentence punctuation: split at line breaks")
 	}
 	if st.Cut > 0 {
-		notes = append(notes, fmt.Sprintf("%d sentences longer than %d bytes were cut", st.Cut, effective.MaxUnitBytes))
+		notes = append(notes, fmt.Sprintf("%s longer than %d bytes %s cut", report.Plural(st.Cut, "sentence"), effective.MaxUnitBytes, map[bool]string{true: "was", false: "were"}[st.Cut == 1]))
 	}
 	return notes
 }
@@ -75,11 +75,11 @@ func UnitSettings(s *report.Settings, opt shingle.Options, ch *report.Chaining) 
 func skipNotes(st shingle.Stats, text string) []string {
 	var notes []string
 	if st.QuotedWords > 0 {
-		notes = append(notes, fmt.Sprintf("%d words inside quotation marks not compared (--skip-quoted)", st.QuotedWords))
+		notes = append(notes, fmt.Sprintf("%s inside quotation marks not compared (--skip-quoted)", report.Plural(st.QuotedWords, "word")))
 	}
 	if st.References {
 		line := strings.Count(text[:st.ReferencesStart], "\n") + 1
-		notes = append(notes, fmt.Sprintf("references section from line %d (%d words) not compared (--skip-references)", line, st.ReferencesWords))
+		notes = append(notes, fmt.Sprintf("references section from line %d (%s) not compared (--skip-references)", line, report.Plural(st.ReferencesWords, "word")))
 	}
 	return notes
 }

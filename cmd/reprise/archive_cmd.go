@@ -216,11 +216,11 @@ func runArchive(ctx context.Context, args []string, stdout, stderr io.Writer) in
 				fmt.Fprintln(stdout, p)
 			}
 			if len(problems) > 0 {
-				fmt.Fprintf(stdout, "%d problems found\n", len(problems))
+				fmt.Fprintf(stdout, "%s found\n", report.Plural(len(problems), "problem"))
 				code = exitFailOn
 			} else {
 				n, _ := ar.Count()
-				fmt.Fprintf(stdout, "archive is whole: %d documents verified\n", n)
+				fmt.Fprintf(stdout, "archive is whole: %s verified\n", report.Plural(n, "document"))
 			}
 		}
 	}
@@ -277,25 +277,11 @@ func addAll(ctx context.Context, ar *archive.Archive, b *scan.Batch, each, out i
 		return err
 	}
 	fmt.Fprintf(out, "%s, %s, %s, %s\n",
-		plural(counts[archive.Added], "document added", "documents added"),
-		plural(counts[archive.Replaced], "replaced"), plural(counts[archive.Unchanged]+b.Unchanged, "unchanged"),
-		plural(counts[archive.Duplicate], "duplicate"))
+		report.Plural(counts[archive.Added], "document added", "documents added"),
+		report.Plural(counts[archive.Replaced], "replaced", "replaced"),
+		report.Plural(counts[archive.Unchanged]+b.Unchanged, "unchanged", "unchanged"),
+		report.Plural(counts[archive.Duplicate], "duplicate"))
 	return nil
-}
-
-// plural is n with one, or with many (default: one+"s"; "replaced" and
-// "unchanged" do not change).
-func plural(n int, one string, many ...string) string {
-	if n == 1 {
-		return "1 " + one
-	}
-	if len(many) > 0 {
-		return fmt.Sprint(n) + " " + many[0]
-	}
-	if strings.HasSuffix(one, "ed") {
-		return fmt.Sprint(n) + " " + one
-	}
-	return fmt.Sprint(n) + " " + one + "s"
 }
 
 func archiveAdd(ctx context.Context, ar *archive.Archive, f *archiveFlags, paths []string, sopt shingle.Options, stdout io.Writer) error {
@@ -310,7 +296,8 @@ func archiveAdd(ctx context.Context, ar *archive.Archive, f *archiveFlags, paths
 		return noDocumentError("document", paths, f.include)
 	}
 	if b.Unchanged > 0 && !f.quiet {
-		fmt.Fprintf(stdout, "%s already in the archive with the same path and content: left as they are\n", plural(b.Unchanged, "document"))
+		fmt.Fprintf(stdout, "%s already in the archive with the same path and content: left as %s\n",
+			report.Plural(b.Unchanged, "document"), map[bool]string{true: "it is", false: "they are"}[b.Unchanged == 1])
 	}
 	return addAll(ctx, ar, b, quietWriter(f.quiet, stdout), stdout)
 }
