@@ -31,12 +31,12 @@ func BenchmarkReadEachFolder(b *testing.B) {
 	dir := benchFolder(b)
 	var files, size int64
 	for b.Loop() {
-		docs, sums, _, err := ReadEach([]string{dir}, Options{}, func(d *Document) uint64 {
+		docs, sums, _, err := ReadEach([]string{dir}, Options{}, func(_ *Document, loan *Loan) uint64 {
 			var s uint64
-			for i := 0; i < len(d.Text); i++ {
-				s += uint64(d.Text[i])
+			text := loan.Text()
+			for i := 0; i < len(text); i++ {
+				s += uint64(text[i])
 			}
-			d.Text = ""
 			return s
 		})
 		if err != nil {

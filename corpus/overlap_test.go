@@ -131,15 +131,16 @@ func overlapTree(t *testing.T) (args []string, docs []wantDoc, skipped []Skipped
 
 // slowDigest is a digest whose time depends on the document (a hash of its
 // path picks some to wait), so that workers finish out of walk order.
-func slowDigest(calls *atomic.Int64) func(d *Document) string {
-	return func(d *Document) string {
+func slowDigest(calls *atomic.Int64) func(d *Document, text *Loan) string {
+	return func(d *Document, text *Loan) string {
 		calls.Add(1)
 		h := fnv.New32a()
 		h.Write([]byte(d.Path))
 		if h.Sum32()%4 == 0 {
 			time.Sleep(time.Duration(h.Sum32()%500) * time.Microsecond)
 		}
-		return d.Path + "|" + d.Text
+		text.Keep()
+		return d.Path + "|" + text.Text()
 	}
 }
 
@@ -196,7 +197,7 @@ func TestReadEachOverlapSameResult(t *testing.T) {
 func TestReadEachEmptyWalk(t *testing.T) {
 	dir := t.TempDir()
 	writeTree(t, dir, map[string]string{".only-hidden": text})
-	docs, digests, skipped, err := ReadEach([]string{dir, filepath.Join(dir, "missing")}, Options{Jobs: 4}, func(*Document) int {
+	docs, digests, skipped, err := ReadEach([]string{dir, filepath.Join(dir, "missing")}, Options{Jobs: 4}, func(*Document, *Loan) int {
 		t.Error("digest called with nothing to read")
 		return 0
 	})

@@ -19,21 +19,23 @@ import (
 // Files are read and decoded by opt.Jobs workers; the result does not
 // depend on their number or timing.
 func Read(paths []string, opt Options) ([]Document, []Skipped, error) {
-	docs, _, skipped, err := ReadEach(paths, opt, func(*Document) struct{} { return struct{}{} })
+	docs, _, skipped, err := ReadEach(paths, opt, func(_ *Document, text *Loan) struct{} {
+		text.Keep()
+		return struct{}{}
+	})
 	return docs, skipped, err
 }
 
 // ReadEach is Read for corpora larger than memory: it hands every document
 // to digest, in the worker that extracted it, the moment its text is
-// ready, and keeps of the document only what digest leaves in it. A digest
-// that computes what it needs from d.Text and then sets d.Text to "" makes
-// the run hold the texts being digested (about one per worker, or one ZIP
-// archive's members) instead of every text. Such a digest gives the text
-// back: it must keep no part of it once it returns (no substring, no
-// slice of its bytes), for the worker reads its next file into the buffer
-// a text may share (text.go) when every document of a file gave its text
-// back; a digest that leaves d.Text set keeps its buffer, which is then
-// never read into again. The values digest returns come
+// ready, and keeps of the document only what digest leaves in it. The
+// text comes as a *Loan, apart from the Document (whose Text is empty
+// while digest runs): a digest that computes what it needs from
+// text.Text() and does not Keep it makes the run hold the texts being
+// digested (about one per worker, or one ZIP archive's members) instead of
+// every text, and the worker may read its next file into the buffer the
+// text shared. A digest that calls text.Keep() leaves the text in the
+// Document for good. The values digest returns come
 // back parallel to the documents, in the same order (sorted by Path, ID
 // equal to the index). digest runs on up to opt.Jobs goroutines at once
 // and must be safe for that; it may change only the Document it is given.
@@ -55,14 +57,33 @@ func Read(paths []string, opt Options) ([]Document, []Skipped, error) {
 // entry and one slot per file, and once the walk is over the order of the
 // kept slots (one int per file, as the list of files to read was); the
 // entries are dropped before the documents are gathered.
-func ReadEach[T any](paths []string, opt Options, digest func(d *Document) T) ([]Document, []T, []Skipped, error) {
+func ReadEach[T any](paths []string, opt Options, digest func(d *Document, text *Loan) T) ([]Document, []T, []Skipped, error) {
 	return ReadEachContext(context.Background(), paths, opt, digest)
 }
+
+// Loan is a document's text as ReadEach lends it to a digest, the way
+// bufio.Scanner lends its Bytes: Text is valid only until the digest
+// returns (the worker may read its next file into the buffer it shares),
+// unless the digest calls Keep, which gives the text to the Document for
+// good (its buffer is then never read into again). A digest keeps no part
+// of a text it did not Keep: no substring, no slice of its bytes; copy
+// what it needs (strings.Clone).
+type Loan struct {
+	text string
+	kept bool
+}
+
+// Text returns the lent text, valid until the digest returns unless Keep
+// is called.
+func (l *Loan) Text() string { return l.text }
+
+// Keep makes the text the Document's: ReadEach returns it in Document.Text.
+func (l *Loan) Keep() { l.kept = true }
 
 // ReadEachContext is ReadEach under ctx: once ctx is done, the walk lists
 // no more files, the workers read no more of them (a file being read is
 // finished), and the call returns ctx's error and no documents.
-func ReadEachContext[T any](ctx context.Context, paths []string, opt Options, digest func(d *Document) T) ([]Document, []T, []Skipped, error) {
+func ReadEachContext[T any](ctx context.Context, paths []string, opt Options, digest func(d *Document, text *Loan) T) ([]Document, []T, []Skipped, error) {
 	opt, err := opt.withDefaults()
 	if err != nil {
 		return nil, nil, nil, err
@@ -102,13 +123,15 @@ func ReadEachContext[T any](ctx context.Context, paths []string, opt Options, di
 					Encoding: p.Encoding,
 					Size:     p.size,
 					File:     name0,
-					Text:     p.Text,
 					Notes:    p.Notes,
 					Marks:    p.Marks,
 				}
+				loan := Loan{text: p.Text}
 				*p = part{} // the text is the digest's from here on
-				r.digests = append(r.digests, digest(&d))
-				kept = kept || d.Text != ""
+				r.digests = append(r.digests, digest(&d, &loan))
+				if loan.kept {
+					d.Text, kept = loan.text, true
+				}
 				r.docs = append(r.docs, d)
 			})
 			// A plain text file's text may be the buffer itself (text.go):

@@ -41,9 +41,10 @@ func TestReadEachIsReadWithDigests(t *testing.T) {
 	}
 	for _, jobs := range []int{1, 4} {
 		var calls atomic.Int64
-		docs, digests, skipped, err := ReadEach([]string{dir}, Options{Jobs: jobs}, func(d *Document) string {
+		docs, digests, skipped, err := ReadEach([]string{dir}, Options{Jobs: jobs}, func(d *Document, text *Loan) string {
 			calls.Add(1)
-			return d.Path + "|" + d.Text
+			text.Keep()
+			return d.Path + "|" + text.Text()
 		})
 		if err != nil {
 			t.Fatal(err)
@@ -62,16 +63,18 @@ func TestReadEachIsReadWithDigests(t *testing.T) {
 	}
 }
 
-// TestReadEachKeepsWhatDigestLeaves: a digest that drops the text drops it
-// from the result too.
+// TestReadEachKeepsWhatDigestLeaves: a text the digest does not Keep is
+// not in the result.
 func TestReadEachKeepsWhatDigestLeaves(t *testing.T) {
 	dir := eachTree(t)
-	docs, lengths, _, err := ReadEach([]string{dir}, Options{}, func(d *Document) int {
-		n := len(d.Text)
-		if !strings.HasSuffix(d.Path, "n07.txt") {
-			d.Text = ""
+	docs, lengths, _, err := ReadEach([]string{dir}, Options{}, func(d *Document, text *Loan) int {
+		if d.Text != "" {
+			t.Errorf("%s: the Document holds its text while the digest runs", d.Path)
 		}
-		return n
+		if strings.HasSuffix(d.Path, "n07.txt") {
+			text.Keep()
+		}
+		return len(text.Text())
 	})
 	if err != nil {
 		t.Fatal(err)
@@ -147,7 +150,10 @@ func TestReadEachSortsMembersAmongFiles(t *testing.T) {
 	if err := os.WriteFile(filepath.Join(dir, "a.zip"), zipped, 0o644); err != nil {
 		t.Fatal(err)
 	}
-	docs, digests, _, err := ReadEach([]string{dir}, Options{Jobs: 2}, func(d *Document) string { return d.Text })
+	docs, digests, _, err := ReadEach([]string{dir}, Options{Jobs: 2}, func(_ *Document, text *Loan) string {
+		text.Keep()
+		return text.Text()
+	})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -177,10 +183,10 @@ func TestReadEachReusesOnlyGivenBackBuffers(t *testing.T) {
 	}
 	writeTree(t, dir, files)
 	for _, jobs := range []int{1, 3} {
-		docs, seen, _, err := ReadEach([]string{dir}, Options{Jobs: jobs}, func(d *Document) string {
-			text := strings.Clone(d.Text) // what the digest saw, as it saw it
-			if !strings.HasSuffix(d.Path, "3.txt") && !strings.HasSuffix(d.Path, "7.txt") {
-				d.Text = "" // given back
+		docs, seen, _, err := ReadEach([]string{dir}, Options{Jobs: jobs}, func(d *Document, loan *Loan) string {
+			text := strings.Clone(loan.Text()) // what the digest saw, as it saw it
+			if strings.HasSuffix(d.Path, "3.txt") || strings.HasSuffix(d.Path, "7.txt") {
+				loan.Keep() // the others are given back
 			}
 			return text
 		})

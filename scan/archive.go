@@ -36,7 +36,7 @@ type Batch struct {
 // under the same path with the same content: a resumed add skips them
 // quickly.
 func ReadBatch(ctx context.Context, paths []string, opt corpus.Options, sopt shingle.Options, ar *archive.Archive) (*Batch, error) {
-	docs, _, skipped, err := corpus.ReadEachContext(ctx, paths, opt, func(*corpus.Document) struct{} { return struct{}{} })
+	docs, _, skipped, err := corpus.ReadEachContext(ctx, paths, opt, keepAll)
 	if err != nil {
 		return nil, err
 	}

@@ -127,8 +127,8 @@ func run(ctx context.Context, cfg Config) (*report.Result, error) {
 		return nil, err
 	}
 	defer spool.close()
-	docs, digests, skipped, err := corpus.ReadEachContext(ctx, cfg.Paths, cfg.Corpus, func(d *corpus.Document) docDigest {
-		g := splitters.digest(d, effective, cfg.keepText, spool)
+	docs, digests, skipped, err := corpus.ReadEachContext(ctx, cfg.Paths, cfg.Corpus, func(d *corpus.Document, text *corpus.Loan) docDigest {
+		g := splitters.digest(d, text, effective, cfg.keepText, spool)
 		progress(Progress{Stage: StageRead, Done: int(read.Add(1))})
 		return g
 	})
@@ -330,10 +330,11 @@ func (p *splitterPool) units(text string) (*splitterBuf, []shingle.Unit, shingle
 
 func (p *splitterPool) put(b *splitterBuf) { p.pool.Put(b) }
 
-// digest splits d and returns what the scan keeps of it, with its units
-// written to spool; d's text is dropped unless keepText asks for it.
-func (p *splitterPool) digest(d *corpus.Document, effective shingle.Options, keepText func(path string) bool, spool *unitSpool) docDigest {
-	b, units, st := p.units(d.Text)
+// digest splits d's lent text and returns what the scan keeps of it, with
+// its units written to spool; the text is kept only when keepText asks.
+func (p *splitterPool) digest(d *corpus.Document, loan *corpus.Loan, effective shingle.Options, keepText func(path string) bool, spool *unitSpool) docDigest {
+	text := loan.Text()
+	b, units, st := p.units(text)
 	set := make([]uint64, len(units))
 	for k, u := range units {
 		set[k] = u.Hash
@@ -343,15 +344,17 @@ func (p *splitterPool) digest(d *corpus.Document, effective shingle.Options, kee
 	slices.Sort(set)
 	set = slices.Clip(slices.Compact(set))
 	g := docDigest{
-		report: isRepriseReport(d.Text),
-		set:    set, sum: xxhash.Sum64String(d.Text), size: len(d.Text),
+		report: isRepriseReport(text),
+		set:    set, sum: xxhash.Sum64String(text), size: len(text),
 		words: int32(st.Words), units: int32(len(units)), spool: at,
-		notes: SplitNotes(d.Notes, st, d.Text, effective),
+		notes: SplitNotes(d.Notes, st, text, effective),
 	}
-	if keepText == nil || !keepText(d.Path) {
+	if keepText != nil && keepText(d.Path) {
+		loan.Keep()
+	} else {
 		// Only the quoted documents need their text and marks, and
 		// readAgain gives them back; the notes live on in g.
-		d.Text, d.Marks, d.Notes = "", nil, nil
+		d.Marks, d.Notes = nil, nil
 	}
 	return g
 }
@@ -402,10 +405,9 @@ func readAgain(ctx context.Context, cfg Config, docs []corpus.Document, digests 
 	var mu sync.Mutex
 	differs := map[string]bool{} // read again, but not the text first read
 	var failed []error
-	_, _, skipped, err := corpus.ReadEachContext(ctx, files, cfg.Corpus, func(d *corpus.Document) struct{} {
+	_, _, skipped, err := corpus.ReadEachContext(ctx, files, cfg.Corpus, func(d *corpus.Document, loan *corpus.Loan) struct{} {
 		i, ok := byName[name{d.File, d.Path}]
-		text := d.Text
-		d.Text = ""
+		text := loan.Text() // put copies it
 		if !ok {
 			return struct{}{}
 		}

@@ -15,7 +15,7 @@ import (
 // disclaimer: text whose units never count) with opt, all of them: a
 // template that gives no document is an error.
 func ReadTemplates(ctx context.Context, paths []string, opt corpus.Options) ([]corpus.Document, error) {
-	templates, _, bad, err := corpus.ReadEachContext(ctx, paths, opt, func(*corpus.Document) struct{} { return struct{}{} })
+	templates, _, bad, err := corpus.ReadEachContext(ctx, paths, opt, keepAll)
 	if err != nil {
 		return nil, err
 	}
@@ -118,4 +118,10 @@ func shingleAll(docs []corpus.Document, opt shingle.Options, jobs int) ([][]shin
 	close(next)
 	wg.Wait()
 	return units, stats
+}
+
+// keepAll is a digest that keeps every document's text (corpus.Read's).
+func keepAll(_ *corpus.Document, text *corpus.Loan) struct{} {
+	text.Keep()
+	return struct{}{}
 }
