@@ -49,7 +49,7 @@ Examples:
 
 One process at a time may open an archive (it is locked while open).
 Exit status: 0 done; 1 verify found a problem, or check reached --fail-on;
-2 bad usage or an error.
+2 bad usage or an error; 130 interrupted (Ctrl-C).
 
 Shared passages are leads for a human reviewer, not proof of misconduct.
 `

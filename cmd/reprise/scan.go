@@ -48,7 +48,7 @@ Examples:
       exit status 1 when any pair covers 50% or more of one document
 
 Exit status: 0 done; 1 a pair reached --fail-on; 2 bad usage or no readable
-document.
+document; 130 interrupted (Ctrl-C), temporary files removed.
 
 Flags:
 `
