@@ -882,7 +882,7 @@ type itemData struct {
 type sideData struct {
 	Label    string    `json:"label"`
 	Path     string    `json:"path"`
-	Missing  string    `json:"missing"`
+	Missing  string    `json:"missing"` // the template's whole sentence on a missing text`
 	Short    bool      `json:"short"`
 	Segments []segData `json:"segs"`
 }
@@ -905,7 +905,10 @@ func detailDataOf(d *pairDetail, r *Result) detailData {
 			Size: plural(it.G.Units, r.Settings.Unit) + ", " + plural(it.G.Words, "word"), Excerpt: it.Excerpt})
 	}
 	for k, s := range []side{d.A, d.B} {
-		sd := sideData{Label: s.Label, Path: s.Path, Missing: s.Missing, Short: s.Short}
+		sd := sideData{Label: s.Label, Path: s.Path, Short: s.Short}
+		if s.Missing != "" {
+			sd.Missing = "The text is not shown: " + s.Missing + ". The passages are listed above with their locations."
+		}
 		for _, g := range s.Segments {
 			sd.Segments = append(sd.Segments, segData{T: g.Text, M: g.Marks, L: g.Label, I: g.ID, G: g.Gap})
 		}

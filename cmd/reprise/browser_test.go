@@ -750,6 +750,13 @@ const canonJS = `(function (rank) {
 
 func TestBrowserOnDemandRowsAndViewsMatchTheWrittenOnes(t *testing.T) {
 	r := handResult(200, 40, 30, 25)
+	const rank = 97 // on demand in the first page, written out in the second
+	// Its B side's text is missing: the view says why.
+	for i, d := range r.Documents {
+		if d.Path == r.Pairs[rank-1].B {
+			r.Texts[i] = report.SourceText{Missing: "the file has changed since the scan"}
+		}
+	}
 	dir := t.TempDir()
 	write := func(name string, screen int) string {
 		var b bytes.Buffer
@@ -764,7 +771,6 @@ func TestBrowserOnDemandRowsAndViewsMatchTheWrittenOnes(t *testing.T) {
 	}
 	// The same result twice: a first screen of 10, and everything written out.
 	later, all := write("later.html", 10), write("all.html", 1000)
-	const rank = 97 // on demand in the first page, written out in the second
 	ctx, ev := newBrowser(t)
 	url, _ := openPage(t, ctx, later)
 	for _, b := range []string{"more-pairs", "more-docs", "more-groups", "more-near"} {
@@ -808,7 +814,8 @@ func TestBrowserOnDemandRowsAndViewsMatchTheWrittenOnes(t *testing.T) {
 			t.Errorf("%s: %d items compared, want %d", strings.SplitN(written[k], "\n", 2)[0], n, want)
 		}
 	}
-	if n := strings.Count(written[3], "<H3 "); n != len(r.NearCopies) || !strings.Contains(written[1], " more\"") {
-		t.Errorf("%d sets compared, want %d; or no document row lists more partners", n, len(r.NearCopies))
+	if n := strings.Count(written[3], "<H3 "); n != len(r.NearCopies) || !strings.Contains(written[1], " more\"") ||
+		!strings.Contains(written[4], "The text is not shown: the file has changed since the scan.") {
+		t.Errorf("%d sets compared, want %d; or no document row lists more partners; or the view shows no missing text", n, len(r.NearCopies))
 	}
 }

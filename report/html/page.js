@@ -215,7 +215,7 @@
     var div = el("div", {"class": "side", "data-side": s.label},
       el("h4", null, el("span", {"class": "sidelabel"}, s.label), " ", path(s.path)));
     if (s.missing) {
-      div.appendChild(el("p", {"class": "warn"}, "The text is not shown: " + s.missing + ". The passages are listed above with their locations."));
+      div.appendChild(el("p", {"class": "warn"}, s.missing));
       return div;
     }
     if (!s.short) { div.appendChild(el("p", {"class": "hint"}, "A long document: each passage with some text around it.")); }
