@@ -27,7 +27,7 @@ package report
 //
 // A page for a big corpus must stay openable. Only the top Pairs pairs
 // (HTMLOptions.Pairs, default 200) get a detail view; every pair is a row of
-// the table. A detail view shows a document whole when its text is at most
+// the table (written out on the first screen, else kept as data: "Scale"). A detail view shows a document whole when its text is at most
 // htmlFullText bytes ("short"); a longer document ("long") shows each passage
 // with htmlContext bytes of context either side, a passage longer than
 // htmlWindowMax bytes shown by its head and tail, and at most htmlSideBudget

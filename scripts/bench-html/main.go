@@ -113,8 +113,8 @@ func run() error {
 
 // families writes a corpus with exactly n pairs: families of m documents
 // (m at most familySize), each document a disjoint piece of the Brown
-// samples, and one block of 3 to 8 sentences of a family's first member
-// copied into every other member, so each family gives m(m-1)/2 pairs and
+// samples, and one block of 3 to 8 sentences of one member (the first
+// whose piece has such a block) copied into every other member, so each family gives m(m-1)/2 pairs and
 // nothing else pairs (the pieces are disjoint). Pieces are long enough that
 // no member is a near-copy of another, and there are at least twice as many
 // documents as the largest family plus one, so no block is over the
@@ -144,17 +144,20 @@ func families(dir string, n int) (int, error) {
 	sp := shingle.New(shingle.Options{})
 	at := 0
 	for f, m := range sizes {
-		src := at
-		start, end, _, ok := plant.Block(rng, sp, texts[src], 3, 8)
-		for try := 0; !ok && try < 20; try++ {
+		// The source is the first member whose piece has such a block.
+		src, start, end, ok := at, 0, 0, false
+		for ; src < at+m && !ok; src++ {
 			start, end, _, ok = plant.Block(rng, sp, texts[src], 3, 8)
 		}
+		src--
 		if !ok {
-			return 0, fmt.Errorf("family %d: no block of 3 to 8 sentences in piece %d", f, src)
+			return 0, fmt.Errorf("family %d: no block of 3 to 8 sentences in pieces %d to %d", f, at, at+m-1)
 		}
 		block := texts[src][start:end]
-		for k := src + 1; k < src+m; k++ {
-			texts[k] = texts[k] + "\n" + block + "\n"
+		for k := at; k < at+m; k++ {
+			if k != src {
+				texts[k] = texts[k] + "\n" + block + "\n"
+			}
 		}
 		at += m
 	}
