@@ -134,7 +134,7 @@ func DecodeUnits(src []byte, dst []Unit) ([]Unit, error) {
 			// The common case: four one-byte varints.
 			gap := int64(f & 0xff)
 			s := int64(prevEnd) + (gap>>1 ^ -(gap & 1))
-			if s < 0 {
+			if s < 0 || s > math.MaxUint32 {
 				return dst[:start], fmt.Errorf("shingle: unit %d of %d: start: %w", i, n, errUnits)
 			}
 			u.Start = uint32(s)

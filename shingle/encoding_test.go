@@ -125,6 +125,11 @@ func TestDecodeUnitsRefuses(t *testing.T) {
 		{"a length over 32 bits", with(func(b []byte) []byte { return slices.Insert(b[:11], 11, 0xff, 0xff, 0xff, 0xff, 0x10, 5, 0) }), "unit 0 of 1"},
 		{"a start below zero", with(func(b []byte) []byte { b[10] = 3; return b }), "start"},
 		{"a start past 32 bits", with(func(b []byte) []byte { return slices.Insert(b[:10], 10, 0x80, 0x80, 0x80, 0x80, 0x20, 8, 5, 0) }), "start"},
+		{"a one-byte start past 32 bits", func() []byte {
+			b := AppendUnits(nil, []Unit{{Start: math.MaxUint32 - 10, End: math.MaxUint32 - 5}, {Start: math.MaxUint32 - 5, End: math.MaxUint32 - 5}})
+			b[len(b)-4] = 126 // zigzag(+63)
+			return b
+		}(), "unit 1 of 2: start"},
 		{"a varint cut off by the end", []byte{UnitLayout, 1, 0, 0, 0, 0, 0, 0, 0, 0, 2, 8, 5, 0x80}, "unit 0 of 1"},
 	}
 	for _, c := range cases {
