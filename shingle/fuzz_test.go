@@ -84,6 +84,7 @@ func FuzzDecodeUnits(f *testing.F) {
 	f.Add(AppendUnits(nil, units))
 	f.Add(AppendUnits(nil, nil))
 	f.Add(AppendUnits(nil, []Unit{{Hash: 1, Start: 4294967295, End: 0, Words: 7, Pos: 3}, {Start: 2}}))
+	f.Add(AppendUnits(nil, []Unit{{Start: 1<<32 - 10, End: 1<<32 - 5}, {Start: 1<<32 - 5, End: 1<<32 - 5}})) // spans at the top of uint32
 	f.Add([]byte{UnitLayout, 0x80, 0x00})
 	f.Add(make([]byte, 20))
 	f.Fuzz(func(t *testing.T, src []byte) {
