@@ -51,3 +51,23 @@ func BenchmarkPostings(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkLoad measures loading one archived document of 40 sentences
+// (metadata, text, units), what a check does for each candidate.
+func BenchmarkLoad(b *testing.B) {
+	a, err := Open(filepath.Join(b.TempDir(), "ar"), Options{Settings: testSettings(), Create: true})
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer a.Close()
+	r, err := a.Add(doc("d.txt", sentences("load", 40)), testTime)
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	for b.Loop() {
+		if d, err := a.Load(r.ID); err != nil || len(d.UnitList) != 40 {
+			b.Fatal(len(d.UnitList), err)
+		}
+	}
+}

@@ -27,7 +27,7 @@
 //	m/next, m/count        next document ID, number of documents
 //	d/<id>                 document metadata (JSON: path, hash, format, size, date, marks, notes)
 //	t/<id>                 extracted text, compressed with compress/flate (standard library)
-//	u/<id>                 units in text order: 20 bytes each (fingerprint, start, end, words)
+//	u/<id>                 units in text order, in shingle's unit encoding (shingle.AppendUnits)
 //	h/<sha256 of content>  → id, for idempotent add
 //	n/<sha256 of path>     → id, so changed content at the same path replaces the old version
 //	p/<fingerprint>        postings: the IDs of the documents holding the unit, as uvarints
@@ -73,15 +73,23 @@
 //
 // # Settings
 //
+// The settings record holds the archive's format version (FormatVersion):
+// the key layout and the encoding of every record. Open refuses an archive
+// of another format for every caller, with a *FormatError that says what to
+// do (build a new archive from the files); nothing converts an archive in
+// place. Format 1 stored each unit in 20 fixed bytes without its word
+// position; format 2 stores the units in shingle's varint encoding (about
+// 12.4 bytes a sentence unit of the Brown corpus), positions included.
+//
 // Units are only comparable when they were cut by the same rules. The
-// archive records its format version, the unit kind, the minimum words and
-// the maximum unit bytes it was built with, and the fingerprint of a fixed
-// probe text split under those settings. A check asking for other settings
+// archive records the unit kind, the minimum words and the maximum unit
+// bytes it was built with, and the fingerprint of a fixed probe text split
+// under those settings. A check asking for other settings
 // is refused with the name of the setting; a program whose normalization
 // gives another probe fingerprint is refused too ("sentence normalization").
 // Only callers that cut units give settings to compare: listing, counting,
 // removing and verifying without a re-split open with the zero Settings,
-// and any archive opens for them whatever it was built with.
+// and any archive of this format opens for them, whatever its settings.
 //
 // # Cost and the alternative rejected
 //

@@ -402,35 +402,11 @@ func distinct(units []shingle.Unit) []uint64 {
 	return slices.Compact(fps)
 }
 
-const unitBytes = 20
+// encodeUnits is a document's u/ record: shingle's unit encoding, whose
+// first byte is its layout.
+func encodeUnits(units []shingle.Unit) []byte { return shingle.AppendUnits(nil, units) }
 
-func encodeUnits(units []shingle.Unit) []byte {
-	out := make([]byte, 0, len(units)*unitBytes)
-	for _, u := range units {
-		out = binary.LittleEndian.AppendUint64(out, u.Hash)
-		out = binary.LittleEndian.AppendUint32(out, u.Start)
-		out = binary.LittleEndian.AppendUint32(out, u.End)
-		out = binary.LittleEndian.AppendUint32(out, u.Words)
-	}
-	return out
-}
-
-func decodeUnits(b []byte) ([]shingle.Unit, error) {
-	if len(b)%unitBytes != 0 {
-		return nil, fmt.Errorf("%d bytes is not a whole number of units", len(b))
-	}
-	out := make([]shingle.Unit, len(b)/unitBytes)
-	for i := range out {
-		p := b[i*unitBytes:]
-		out[i] = shingle.Unit{
-			Hash:  binary.LittleEndian.Uint64(p),
-			Start: binary.LittleEndian.Uint32(p[8:]),
-			End:   binary.LittleEndian.Uint32(p[12:]),
-			Words: binary.LittleEndian.Uint32(p[16:]),
-		}
-	}
-	return out, nil
-}
+func decodeUnits(b []byte) ([]shingle.Unit, error) { return shingle.DecodeUnits(b, nil) }
 
 func encodeIDs(ids []uint64) []byte {
 	var out []byte

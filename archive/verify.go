@@ -165,9 +165,6 @@ func DiskUsage(dir string) (int64, error) {
 	return total, nil
 }
 
-// sameUnits compares the fields the archive stores.
-func sameUnits(x, y []shingle.Unit) bool {
-	return slices.EqualFunc(x, y, func(a, b shingle.Unit) bool {
-		return a.Hash == b.Hash && a.Start == b.Start && a.End == b.End && a.Words == b.Words
-	})
-}
+// sameUnits compares every field of the units (format 2 stores them all,
+// word positions included).
+func sameUnits(x, y []shingle.Unit) bool { return slices.Equal(x, y) }

@@ -1,6 +1,9 @@
 package shingle
 
 import (
+	"bytes"
+	"encoding/binary"
+	"slices"
 	"testing"
 	"unicode/utf8"
 )
@@ -71,4 +74,57 @@ func checkUnits(t *testing.T, sp *Splitter, text string, units []Unit, st Stats)
 	if len(units) != st.Sentences-st.Short || st.Short < 0 || st.Cut > st.Sentences {
 		t.Fatalf("%d units but stats %+v", len(units), st)
 	}
+}
+
+// FuzzDecodeUnits: DecodeUnits never panics on any bytes (a damaged archive
+// or spool feeds it), and what it accepts is exactly what AppendUnits
+// writes for the units it returns.
+func FuzzDecodeUnits(f *testing.F) {
+	units, _ := New(Options{}).Sentences(benchText(2<<10), nil)
+	f.Add(AppendUnits(nil, units))
+	f.Add(AppendUnits(nil, nil))
+	f.Add(AppendUnits(nil, []Unit{{Hash: 1, Start: 4294967295, End: 0, Words: 7, Pos: 3}, {Start: 2}}))
+	f.Add(AppendUnits(nil, []Unit{{Start: 1<<32 - 10, End: 1<<32 - 5}, {Start: 1<<32 - 5, End: 1<<32 - 5}})) // spans at the top of uint32
+	f.Add([]byte{UnitLayout, 0x80, 0x00})
+	f.Add(make([]byte, 20))
+	f.Fuzz(func(t *testing.T, src []byte) {
+		got, err := DecodeUnits(src, nil)
+		if err != nil {
+			if len(got) != 0 {
+				t.Fatalf("error %v, but %d units returned", err, len(got))
+			}
+			return
+		}
+		if again := AppendUnits(nil, got); !bytes.Equal(again, src) {
+			t.Fatalf("% x decodes to %d units that encode to % x", src, len(got), again)
+		}
+	})
+}
+
+// FuzzUnitsRoundTrip: any units, read from the fuzzer's bytes 24 at a time
+// (any field values, in any order), decode to themselves.
+func FuzzUnitsRoundTrip(f *testing.F) {
+	f.Add([]byte{})
+	f.Add(bytes.Repeat([]byte{0xff}, 48))
+	f.Add([]byte("The committee met on a grey morning to weigh the proposal, which"))
+	f.Fuzz(func(t *testing.T, raw []byte) {
+		var units []Unit
+		for ; len(raw) >= 24; raw = raw[24:] {
+			units = append(units, Unit{
+				Hash:  binary.LittleEndian.Uint64(raw),
+				Start: binary.LittleEndian.Uint32(raw[8:]),
+				End:   binary.LittleEndian.Uint32(raw[12:]),
+				Words: binary.LittleEndian.Uint32(raw[16:]),
+				Pos:   binary.LittleEndian.Uint32(raw[20:]),
+			})
+		}
+		prefix := []Unit{{Hash: 99}}
+		got, err := DecodeUnits(AppendUnits([]byte{}, units), prefix)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !slices.Equal(got[1:], units) || got[0] != prefix[0] {
+			t.Fatalf("%d units came back as %d, differing", len(units), len(got)-1)
+		}
+	})
 }

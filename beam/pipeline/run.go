@@ -339,7 +339,10 @@ func assemble(cfg Config, listSkipped []corpus.Skipped, templates []corpus.Docum
 	in := pairs.Input{Docs: make([][]uint64, len(paired)), Excluded: excluded}
 	docs := make([]report.Doc, len(paired))
 	for i, d := range paired {
-		units := unpackUnits(d.Units)
+		units, err := unpackUnits(d.Path, d.Units)
+		if err != nil {
+			return nil, err
+		}
 		set := make([]uint64, len(units))
 		for k, u := range units {
 			set[k] = u.Hash

@@ -73,7 +73,7 @@ func (f *readFn) ProcessElement(ctx context.Context, path string, emitSkipped fu
 		units, st := f.sp.Sentences(d.Text, nil)
 		notes := documentNotes(d.Notes, st, d.Text, f.sp.Options())
 		doc, err := encode(docRecord{Path: d.Path, Format: d.Format, Encoding: d.Encoding, Notes: notes,
-			Words: st.Words, Text: d.Text, Units: packUnits(units), Marks: d.Marks})
+			Words: st.Words, Text: d.Text, Units: shingle.AppendUnits(nil, units), Marks: d.Marks})
 		if err != nil {
 			return err
 		}
@@ -235,11 +235,16 @@ func (joinFn) ProcessElement(path string, docs, refs, marks func(*string) bool, 
 		return fmt.Errorf("reprise-beam: %s: two documents have the same path", path)
 	}
 	var d *docRecord
+	var units []shingle.Unit
 	var ref string
 	for refs(&ref) {
 		if d == nil {
 			d = new(docRecord)
 			if err := decode(doc, d); err != nil {
+				return err
+			}
+			var err error
+			if units, err = unpackUnits(d.Path, d.Units); err != nil {
 				return err
 			}
 		}
@@ -248,9 +253,9 @@ func (joinFn) ProcessElement(path string, docs, refs, marks func(*string) bool, 
 			return err
 		}
 		text := ""
-		for _, u := range d.Units {
-			if u[0] == c.Hash {
-				text = d.Text[u[1]:u[2]]
+		for _, u := range units {
+			if u.Hash == c.Hash {
+				text = d.Text[u.Start:u.End]
 				break
 			}
 		}
