@@ -298,7 +298,9 @@ type docDigest struct {
 	words int32
 	units int32 // units in text order
 	spool int64 // where the units are in the run's unitSpool
-	notes []string
+	// spooled is how many bytes they take there.
+	spooled uint32
+	notes   []string
 	// report: the text holds the caution every reprise report carries:
 	// an earlier report, not a document (setReportsAside).
 	report bool
@@ -339,14 +341,14 @@ func (p *splitterPool) digest(d *corpus.Document, loan *corpus.Loan, effective s
 	for k, u := range units {
 		set[k] = u.Hash
 	}
-	at := spool.add(units, &b.enc)
+	at, spooled := spool.add(units, &b.enc)
 	p.put(b)
 	slices.Sort(set)
 	set = slices.Clip(slices.Compact(set))
 	g := docDigest{
 		report: isRepriseReport(text),
 		set:    set, sum: xxhash.Sum64String(text), size: len(text),
-		words: int32(st.Words), units: int32(len(units)), spool: at,
+		words: int32(st.Words), units: int32(len(units)), spool: at, spooled: spooled,
 		notes: SplitNotes(d.Notes, st, text, effective),
 	}
 	if keepText != nil && keepText(d.Path) {
@@ -423,7 +425,7 @@ func readAgain(ctx context.Context, cfg Config, docs []corpus.Document, digests 
 			return struct{}{}
 		}
 		docs[i].Marks = d.Marks // each i once: the digest let them go
-		units, err := spool.read(g.spool, int(g.units))
+		units, err := spool.read(g.spool, g.spooled)
 		if err == nil {
 			err = store.put(i, text, units)
 		}

@@ -2,7 +2,6 @@ package scan
 
 import (
 	"bufio"
-	"encoding/binary"
 	"fmt"
 	"os"
 	"slices"
@@ -41,15 +40,17 @@ type quotedDoc struct {
 }
 
 // quotedSpot is where one document lies in the file: its text, then its
-// units, unitBytes each.
+// units in shingle's encoding.
 type quotedSpot struct {
 	off   int64
 	text  int64 // bytes of text
-	units int64
+	units int64 // bytes of encoded units
 }
 
-// unitBytes is one encoded unit: Hash, Start, End, Words, Pos.
-const unitBytes = 8 + 4*4
+// unitBytes is what one unit is charged, in memory (a shingle.Unit) and,
+// as an upper bound for units in text order, on disk (shingle's encoding
+// takes about 12 bytes a unit).
+const unitBytes = int64(unsafe.Sizeof(shingle.Unit{}))
 
 // newQuotedStore makes a store in a temporary file in dir, or in memory
 // when inMemory is set.
@@ -68,34 +69,6 @@ func newQuotedStore(dir string, inMemory bool) (*quotedStore, error) {
 // and units, in memory or on disk.
 func quotedBytes(text, units int) int64 { return int64(text) + int64(units)*unitBytes }
 
-// appendUnits appends units to b, unitBytes each.
-func appendUnits(b []byte, units []shingle.Unit) []byte {
-	for _, u := range units {
-		b = binary.LittleEndian.AppendUint64(b, u.Hash)
-		b = binary.LittleEndian.AppendUint32(b, u.Start)
-		b = binary.LittleEndian.AppendUint32(b, u.End)
-		b = binary.LittleEndian.AppendUint32(b, u.Words)
-		b = binary.LittleEndian.AppendUint32(b, u.Pos)
-	}
-	return b
-}
-
-// decodeUnits decodes the len(b)/unitBytes units appendUnits wrote to b.
-func decodeUnits(b []byte) []shingle.Unit {
-	units := make([]shingle.Unit, len(b)/unitBytes)
-	for k := range units {
-		u := b[k*unitBytes:]
-		units[k] = shingle.Unit{
-			Hash:  binary.LittleEndian.Uint64(u),
-			Start: binary.LittleEndian.Uint32(u[8:]),
-			End:   binary.LittleEndian.Uint32(u[12:]),
-			Words: binary.LittleEndian.Uint32(u[16:]),
-			Pos:   binary.LittleEndian.Uint32(u[20:]),
-		}
-	}
-	return units
-}
-
 // put adds document id; it is safe for concurrent use. text and units
 // are copied (text may share a buffer the reading goes on with).
 func (s *quotedStore) put(id int, text string, units []shingle.Unit) error {
@@ -105,13 +78,13 @@ func (s *quotedStore) put(id int, text string, units []shingle.Unit) error {
 		s.mem[id] = quotedDoc{strings.Clone(text), slices.Clone(units)}
 		return nil
 	}
-	b := appendUnits(s.buf[:0], units)
+	b := shingle.AppendUnits(s.buf[:0], units)
 	s.buf = b
 	off, err := s.f.write(text, b)
 	if err != nil {
 		return err
 	}
-	s.at[id] = quotedSpot{off: off, text: int64(len(text)), units: int64(len(units))}
+	s.at[id] = quotedSpot{off: off, text: int64(len(text)), units: int64(len(b))}
 	return nil
 }
 
@@ -148,7 +121,7 @@ func (s *quotedStore) load(id int) (string, []shingle.Unit, error) {
 	if !ok {
 		return "", nil, fmt.Errorf("not among the documents read again")
 	}
-	raw, err := s.f.read(spot.off, spot.text+spot.units*unitBytes)
+	raw, err := s.f.read(spot.off, spot.text+spot.units)
 	if err != nil {
 		return "", nil, err
 	}
@@ -160,7 +133,11 @@ func (s *quotedStore) load(id int) (string, []shingle.Unit, error) {
 	if spot.text > 0 {
 		text = unsafe.String(&raw[0], spot.text)
 	}
-	return text, decodeUnits(raw[spot.text:]), nil
+	units, err := shingle.DecodeUnits(raw[spot.text:], nil)
+	if err != nil {
+		return "", nil, fmt.Errorf("reading back the quoted documents: %w", err)
+	}
+	return text, units, nil
 }
 
 // close removes the file.
@@ -174,8 +151,9 @@ func (s *quotedStore) close() error {
 // unitSpool keeps, in one temporary file, the units of every document as
 // the first reading splits them, so that the documents a report quotes
 // are read again for their text only, not split again: splitting was two
-// thirds of the second reading's work. It costs unitBytes a unit on disk
-// (about 1.2 KB for a document of 50 sentences: 120 MB for 10^5 of them)
+// thirds of the second reading's work. Units are in shingle's encoding,
+// about 12 bytes a unit on disk (some 600 bytes for a document of 50
+// sentences: 60 MB for 10^5 of them)
 // and memory for a write buffer; the file lives in the run's temporary
 // folder, so an interrupt removes it with the rest.
 type unitSpool struct {
@@ -193,10 +171,10 @@ func newUnitSpool(dir string) (*unitSpool, error) {
 }
 
 // add writes units, encoded into *scratch first (outside the lock), and
-// returns where they start; it is safe for concurrent use. A write error
-// is kept for done.
-func (s *unitSpool) add(units []shingle.Unit, scratch *[]byte) int64 {
-	b := appendUnits((*scratch)[:0], units)
+// returns where they start and how many bytes they take; it is safe for
+// concurrent use. A write error is kept for done.
+func (s *unitSpool) add(units []shingle.Unit, scratch *[]byte) (off int64, n uint32) {
+	b := shingle.AppendUnits((*scratch)[:0], units)
 	*scratch = b
 	s.mu.Lock()
 	defer s.mu.Unlock()
@@ -204,7 +182,7 @@ func (s *unitSpool) add(units []shingle.Unit, scratch *[]byte) int64 {
 	if err != nil && s.err == nil {
 		s.err = err
 	}
-	return off
+	return off, uint32(len(b))
 }
 
 // done ends the writing and reports the first write error; read may be
@@ -216,14 +194,18 @@ func (s *unitSpool) done() error {
 	return s.f.flush()
 }
 
-// read returns the n units written at off; it is safe for concurrent use
-// after done.
-func (s *unitSpool) read(off int64, n int) ([]shingle.Unit, error) {
-	raw, err := s.f.read(off, int64(n)*unitBytes)
+// read returns the units add wrote at off in n bytes; it is safe for
+// concurrent use after done.
+func (s *unitSpool) read(off int64, n uint32) ([]shingle.Unit, error) {
+	raw, err := s.f.read(off, int64(n))
 	if err != nil {
 		return nil, err
 	}
-	return decodeUnits(raw), nil
+	units, err := shingle.DecodeUnits(raw, nil)
+	if err != nil {
+		return nil, fmt.Errorf("reading back the documents' units: %w", err)
+	}
+	return units, nil
 }
 
 // close removes the file.

@@ -42,6 +42,7 @@ func TestUnitSpoolGivesBackWhatWasAdded(t *testing.T) {
 	texts := make([]string, n)
 	units := make([][]shingle.Unit, n)
 	offs := make([]int64, n)
+	sizes := make([]uint32, n)
 	for k := range n {
 		texts[k], units[k] = someUnits(t, k)
 	}
@@ -50,7 +51,7 @@ func TestUnitSpoolGivesBackWhatWasAdded(t *testing.T) {
 		wg.Go(func() {
 			var scratch []byte
 			for k := w; k < n; k += 4 {
-				offs[k] = spool.add(units[k], &scratch)
+				offs[k], sizes[k] = spool.add(units[k], &scratch)
 			}
 		})
 	}
@@ -59,7 +60,7 @@ func TestUnitSpoolGivesBackWhatWasAdded(t *testing.T) {
 		t.Fatal(err)
 	}
 	for k := range n {
-		got, err := spool.read(offs[k], len(units[k]))
+		got, err := spool.read(offs[k], sizes[k])
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -137,7 +138,7 @@ func TestUnitSpoolReportsAWriteError(t *testing.T) {
 	spool.f.f.Close() // every write from here on fails
 	_, units := someUnits(t, 1)
 	var scratch []byte
-	for range 1 + (1<<20)/(unitBytes*len(units)) { // past the write buffer
+	for range 1 + (1<<20)/len(shingle.AppendUnits(nil, units)) { // past the write buffer
 		spool.add(units, &scratch)
 	}
 	if err := spool.done(); err == nil || !strings.Contains(err.Error(), "writing the documents' units") {
