@@ -332,8 +332,11 @@ func (g *groupSearch) searchByUnits() bool {
 }
 
 // intersectItems is the items in both ascending lists.
-func intersectItems(x, y []int32) []int32 {
-	var out []int32
+func intersectItems(x, y []int32) []int32 { return mergeCommon(nil, x, y) }
+
+// mergeCommon appends to dst the values in both ascending lists, by a
+// merge walk.
+func mergeCommon[T cmp.Ordered](dst, x, y []T) []T {
 	i, j := 0, 0
 	for i < len(x) && j < len(y) {
 		switch {
@@ -342,12 +345,12 @@ func intersectItems(x, y []int32) []int32 {
 		case x[i] > y[j]:
 			j++
 		default:
-			out = append(out, x[i])
+			dst = append(dst, x[i])
 			i++
 			j++
 		}
 	}
-	return out
+	return dst
 }
 
 // prefixChanged says whether cl (a superset of c, both ascending) holds a
@@ -661,20 +664,7 @@ func intersect(dst, x, y []uint32) []uint32 {
 		}
 		return dst
 	}
-	i, j := 0, 0
-	for i < len(x) && j < len(y) {
-		switch {
-		case x[i] < y[j]:
-			i++
-		case x[i] > y[j]:
-			j++
-		default:
-			dst = append(dst, x[i])
-			i++
-			j++
-		}
-	}
-	return dst
+	return mergeCommon(dst, x, y)
 }
 
 // intersectCount is len(intersect(nil, x, y)) without the list.
