@@ -1,10 +1,7 @@
 package pairs
 
 import (
-	"encoding/json"
 	"fmt"
-	"os"
-	"path/filepath"
 	"slices"
 	"testing"
 
@@ -34,19 +31,7 @@ func TestLicenseCopiesAreOneGroupEach(t *testing.T) {
 		slices.Sort(fps)
 		return slices.Compact(fps)
 	}
-	text := func(id string) string {
-		raw, err := os.ReadFile(filepath.Join(spdx, id+".json"))
-		if err != nil {
-			t.Fatal(err)
-		}
-		var lic struct {
-			LicenseText string `json:"licenseText"`
-		}
-		if err := json.Unmarshal(raw, &lic); err != nil {
-			t.Fatalf("%s: %v", id, err)
-		}
-		return lic.LicenseText
-	}
+	text := func(id string) string { return refdata.LicenseText(t, spdx, id) }
 	copies := []struct {
 		id string
 		n  int

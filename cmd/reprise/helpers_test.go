@@ -84,17 +84,4 @@ func copyFiles(t *testing.T, src, dst string) {
 
 // spdxText is the licenseText of one license of the SPDX license list
 // (npm package spdx-license-list 6.12.0, licenses/ID.json).
-func spdxText(t *testing.T, spdx, id string) string {
-	t.Helper()
-	raw, err := os.ReadFile(filepath.Join(spdx, id+".json"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	var lic struct {
-		LicenseText string `json:"licenseText"`
-	}
-	if err := json.Unmarshal(raw, &lic); err != nil {
-		t.Fatalf("%s: %v", id, err)
-	}
-	return lic.LicenseText
-}
+func spdxText(t *testing.T, spdx, id string) string { return refdata.LicenseText(t, spdx, id) }

@@ -10,6 +10,7 @@
 package refdata
 
 import (
+	"encoding/json"
 	"errors"
 	"fmt"
 	"os"
@@ -65,4 +66,23 @@ func Path(tb testing.TB, rel string) string {
 		tb.Skip(err)
 	}
 	return p
+}
+
+// LicenseText reads the licenseText of license id (an SPDX identifier) from
+// the SPDX license list's licenses/ID.json in the folder spdx (npm package
+// spdx-license-list 6.12.0, fetched by scripts/fetch-data.sh), failing tb
+// when it cannot.
+func LicenseText(tb testing.TB, spdx, id string) string {
+	tb.Helper()
+	raw, err := os.ReadFile(filepath.Join(spdx, id+".json"))
+	if err != nil {
+		tb.Fatal(err)
+	}
+	var lic struct {
+		LicenseText string `json:"licenseText"`
+	}
+	if err := json.Unmarshal(raw, &lic); err != nil {
+		tb.Fatalf("%s: %v", id, err)
+	}
+	return lic.LicenseText
 }
