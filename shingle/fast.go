@@ -42,7 +42,8 @@ const (
 	sbpSContinue
 	sbpFormat
 	sbpExtend
-	sbpSlow // outside the fast set: ask uniseg
+	sbpOLetter // only in the script table (scripts.go): the SB8 look-ahead stops at it
+	sbpSlow    // outside the fast set: ask uniseg
 )
 
 // Segmenter states: what the text before the current position ends with, as
@@ -118,7 +119,9 @@ func zeroBytes(v uint64) uint64 { return (v - swarOnes) &^ v }
 // fastSBProp returns the Sentence_Break property of the rune at the start of
 // b and its length, or sbpSlow for anything outside the fast set: ASCII,
 // U+0080-U+00FF (Latin-1 letters, NBSP, guillemets, soft hyphen) and
-// U+2000-U+203F (spaces, dashes, typographic quotes, ellipsis).
+// U+2000-U+203F (spaces, dashes, typographic quotes, ellipsis) by the
+// switch below, the rest of the Basic Multilingual Plane by the script
+// table (scriptSB, scripts.go).
 func fastSBProp(b []byte) (int, int) {
 	c := b[0]
 	if c < utf8.RuneSelf {
@@ -152,7 +155,7 @@ func fastSBProp(b []byte) (int, int) {
 		return sbpLower, 2 // ß-ÿ
 	case 0xE2:
 		if len(b) < 3 || b[1] != 0x80 || b[2]&0xC0 != 0x80 {
-			return sbpSlow, 0
+			return scriptSB(b)
 		}
 		switch d := b[2]; {
 		case d <= 0x8A || d == 0xAF: // U+2000-U+200A, U+202F
@@ -174,7 +177,7 @@ func fastSBProp(b []byte) (int, int) {
 		}
 		return sbpOther, 3
 	}
-	return sbpSlow, 0
+	return scriptSB(b)
 }
 
 // sbBase is the state after a rune of property p when no rule looks further
@@ -347,7 +350,7 @@ func fastFirstSentence(b []byte) (n int, ok bool) {
 // needs a rune outside the fast set. Like uniseg, the look-ahead stops
 // without a match at the end of the text.
 func sb8Lower(p int, rest []byte) (lower, known bool) {
-	for p != sbpUpper && p != sbpLower && p != sbpSep && p != sbpCR && p != sbpLF &&
+	for p != sbpUpper && p != sbpLower && p != sbpOLetter && p != sbpSep && p != sbpCR && p != sbpLF &&
 		p != sbpATerm && p != sbpSTerm {
 		if len(rest) == 0 {
 			return false, true

@@ -2,8 +2,6 @@ package shingle
 
 import (
 	"unicode/utf8"
-
-	"github.com/rivo/uniseg"
 )
 
 // Word shingles: the edit-tolerant unit.
@@ -157,22 +155,24 @@ func (s *Splitter) appendWordSpans(dst []wordSpan, text string) []wordSpan {
 		}
 		dst = out[:base]
 	}
-	return appendWordSpans(dst, text)
+	return appendWordSpans(dst, text, !s.slow)
 }
 
-// appendWordSpans appends the spans of text's words by the CountWords rule.
-// It runs the uniseg segmenter directly (the reference the fast counter is
-// checked against), so spans and counts always agree.
-func appendWordSpans(dst []wordSpan, text string) []wordSpan {
+// appendWordSpans appends the spans of text's words by the CountWords rule,
+// segment by segment as countWordsSegments counts them: by the script table
+// where it can when fast is set, else by the uniseg segmenter directly (the
+// reference the fast paths are checked against), so spans and counts always
+// agree.
+func appendWordSpans(dst []wordSpan, text string, fast bool) []wordSpan {
 	state := -1
 	pos := 0
 	joined := false // the previous word ended in a joining hyphen
 	for pos < len(text) {
-		seg, _, st := uniseg.FirstWordInString(text[pos:], state)
+		size, st, wordy := firstWord(text[pos:], state, fast)
 		state = st
-		start, end := pos, pos+len(seg)
+		start, end := pos, pos+size
 		pos = end
-		if !isWordy(seg) {
+		if !wordy {
 			joined = false
 			continue
 		}

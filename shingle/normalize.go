@@ -49,6 +49,13 @@ func (n *normalizer) append(dst []byte, s string) []byte {
 // appendPath is append; full forces steps 2 and 3 on ASCII text too, so
 // that tests can check the shortcut against them.
 func (n *normalizer) appendPath(dst []byte, s string, full bool) []byte {
+	if !full {
+		// Every rune known to the script table: steps 1-4 in one pass
+		// (scripts.go).
+		if out, ok := scriptNormal(dst, s); ok {
+			return out
+		}
+	}
 	var ascii bool
 	n.a, ascii = prepare(n.a[:0], s)
 	src := n.a

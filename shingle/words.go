@@ -3,8 +3,6 @@ package shingle
 import (
 	"unicode"
 	"unicode/utf8"
-
-	"github.com/rivo/uniseg"
 )
 
 // CountWords returns the number of words in text, by the rule Stats.Words
@@ -31,18 +29,26 @@ func countWords(text string, joinHyphens bool) int {
 	if n, ok := countWordsFast(text, joinHyphens); ok {
 		return n
 	}
-	return countWordsUAX(text, joinHyphens)
+	return countWordsSegments(text, joinHyphens, true)
 }
 
-// countWordsUAX is countWords on the uniseg word segmenter, for any text.
+// countWordsUAX is countWords on the uniseg word segmenter, for any text:
+// the reference the fast paths are checked against.
 func countWordsUAX(text string, joinHyphens bool) int {
+	return countWordsSegments(text, joinHyphens, false)
+}
+
+// countWordsSegments counts words segment by segment, each found by
+// firstWord: by the script table where it can when fast is set (scripts.go),
+// else by uniseg.
+func countWordsSegments(text string, joinHyphens, fast bool) int {
 	n := 0
 	state := -1
 	joined := false // the previous word ended in a joining hyphen
 	for len(text) > 0 {
-		var seg string
-		seg, text, state = uniseg.FirstWordInString(text, state)
-		if !isWordy(seg) {
+		size, st, wordy := firstWord(text, state, fast)
+		text, state = text[size:], st
+		if !wordy {
 			joined = false
 			continue
 		}
