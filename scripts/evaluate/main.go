@@ -74,7 +74,10 @@ func main() {
 	}
 }
 
-var levels = []string{"none", "format", "light", "heavy"}
+// levels are the obfuscation levels; the first four draw their samples
+// from one permutation (each sample used once), the rewrite level from a
+// second one of its own, so that adding it changed none of the others.
+var levels = []string{"none", "format", "light", "heavy", "rewrite"}
 
 // template is the invented notice every generated document starts with.
 const template = `Submitted to the Harrowgate Review Board under the terms of the standing
@@ -119,13 +122,17 @@ func run() error {
 	if err != nil {
 		return err
 	}
-	need := len(levels) * (2**nCases + *nClean)
+	need := (len(levels) - 1) * (2**nCases + *nClean)
 	if need > len(samples) {
 		return fmt.Errorf("%d samples needed (-cases %d, -clean %d), the corpus has %d", need, *nCases, *nClean, len(samples))
 	}
 	rng := rand.New(rand.NewPCG(*seed, 0x5eed))
 	order := rng.Perm(len(samples))
 	vocab := vocabulary(samples)
+	syn, err := loadSynonyms(wordnetDir)
+	if err != nil {
+		return err
+	}
 
 	work := *keep
 	if work == "" {
@@ -142,6 +149,12 @@ func run() error {
 	var corpora []*corpusOf
 	next := 0
 	for _, level := range levels {
+		if level == "rewrite" {
+			// Its own generator and order of samples: the other levels'
+			// corpora are those they were before it was added.
+			rng = rand.New(rand.NewPCG(*seed, 0x4e3d17e))
+			order, next = rng.Perm(len(samples)), 0
+		}
 		take := func(n int) []brown.Sample {
 			out := make([]brown.Sample, n)
 			for i := range out {
@@ -150,7 +163,7 @@ func run() error {
 			}
 			return out
 		}
-		c, err := generate(level, filepath.Join(work, level), take(*nCases), take(*nCases), take(*nClean), vocab, rng)
+		c, err := generate(level, filepath.Join(work, level), take(*nCases), take(*nCases), take(*nClean), vocab, syn, rng)
 		if err != nil {
 			return err
 		}
@@ -521,7 +534,7 @@ func isLowerWord(w string) bool {
 }
 
 // generate writes one level's corpus to dir.
-func generate(level, dir string, susp, src, clean []brown.Sample, vocab []string, rng *rand.Rand) (*corpusOf, error) {
+func generate(level, dir string, susp, src, clean []brown.Sample, vocab []string, syn synonyms, rng *rand.Rand) (*corpusOf, error) {
 	c := &corpusOf{level: level, dir: dir, tmpl: len(template) + 2}
 	sp := shingle.New(shingle.Options{MinWords: 1})
 	add := func(name, body string) int {
@@ -541,7 +554,7 @@ func generate(level, dir string, susp, src, clean []brown.Sample, vocab []string
 		for _, u := range units[first : first+n] {
 			sentences = append(sentences, srcText[u.Start:u.End])
 		}
-		copied := obfuscate(level, srcText[start:end], sentences, vocab, rng)
+		copied := obfuscate(level, srcText[start:end], sentences, vocab, syn, rng)
 
 		body := susp[i].Text
 		paras := paragraphEnds(body)
@@ -583,7 +596,7 @@ func paragraphEnds(text string) []int {
 }
 
 // obfuscate rewrites a passage (its text, and its sentences) at level.
-func obfuscate(level, passage string, sentences []string, vocab []string, rng *rand.Rand) string {
+func obfuscate(level, passage string, sentences []string, vocab []string, syn synonyms, rng *rand.Rand) string {
 	switch level {
 	case "none":
 		return passage
@@ -598,6 +611,8 @@ func obfuscate(level, passage string, sentences []string, vocab []string, rng *r
 		return edit(sentences, 0.10, false, vocab, rng)
 	case "heavy":
 		return edit(sentences, 0.30, true, vocab, rng)
+	case "rewrite":
+		return rewrite(sentences, vocab, syn, rng)
 	}
 	return passage // levels are fixed above; an unknown one copies verbatim
 }
@@ -741,4 +756,108 @@ func (ev *evaluator) try(args []string) error {
 			m.pan.Precision, m.pan.Recall, m.pan.Granularity, m.pan.Plagdet, m.templatePassages)
 	}
 	return nil
+}
+
+// rewrite is the rewrite level: in every sentence about a third of the
+// words edited (half of the edits a WordNet synonym for a word that has
+// one, a quarter deletions, a quarter insertions of a corpus word; a
+// synonym edit with no word to replace deletes instead), then some long
+// sentences split in two and some neighbours joined into one, then every
+// sentence shuffled.
+func rewrite(sentences []string, vocab []string, syn synonyms, rng *rand.Rand) string {
+	type sentence struct {
+		toks []string
+		tail string
+	}
+	var out []sentence
+	for _, s := range sentences {
+		toks := strings.Fields(s)
+		last := toks[len(toks)-1]
+		tail := last
+		if k := strings.LastIndexFunc(last, func(r rune) bool { return unicode.IsLetter(r) || unicode.IsDigit(r) }); k >= 0 {
+			_, size := utf8.DecodeRuneInString(last[k:])
+			tail = last[k+size:]
+			toks[len(toks)-1] = last[:k+size]
+		} else {
+			toks = toks[:len(toks)-1]
+		}
+		x := float64(len(toks)) / 3
+		n := int(x)
+		if rng.Float64() < x-float64(n) {
+			n++
+		}
+		for range n {
+			if len(toks) == 0 {
+				break
+			}
+			switch r := rng.IntN(4); {
+			case r < 2:
+				// A synonym for one of the words that have one.
+				var can []int
+				for i, w := range toks {
+					if len(syn[strings.ToLower(w)]) > 0 {
+						can = append(can, i)
+					}
+				}
+				if len(can) > 0 {
+					i := can[rng.IntN(len(can))]
+					vs := syn[strings.ToLower(toks[i])]
+					v := vs[rng.IntN(len(vs))]
+					if first, _ := utf8.DecodeRuneInString(toks[i]); unicode.IsUpper(first) {
+						v = title(v)
+					}
+					toks[i] = v
+					continue
+				}
+				fallthrough
+			case r == 2:
+				if len(toks) > 1 {
+					i := rng.IntN(len(toks))
+					toks = slices.Delete(toks, i, i+1)
+				}
+			default:
+				i := rng.IntN(len(toks) + 1)
+				toks = slices.Insert(toks, i, vocab[rng.IntN(len(vocab))])
+			}
+		}
+		if len(toks) == 0 {
+			continue
+		}
+		if tail == "" {
+			tail = "."
+		}
+		// Split a long sentence in two, a quarter of the time.
+		if len(toks) >= 14 && rng.Float64() < 0.25 {
+			cut := 5 + rng.IntN(len(toks)-9)
+			first := slices.Clone(toks[:cut])
+			first[len(first)-1] = strings.TrimRight(first[len(first)-1], ",;:")
+			out = append(out, sentence{first, "."})
+			toks = toks[cut:]
+		}
+		out = append(out, sentence{toks, tail})
+	}
+	// Join a sentence to the one before it, a fifth of the time.
+	var joined []sentence
+	for _, s := range out {
+		if n := len(joined); n > 0 && rng.Float64() < 0.2 {
+			prev := &joined[n-1]
+			w := s.toks[0]
+			if w != "I" && !strings.HasPrefix(w, "I'") {
+				r, size := utf8.DecodeRuneInString(w)
+				s.toks[0] = string(unicode.ToLower(r)) + w[size:]
+			}
+			prev.toks[len(prev.toks)-1] += ","
+			prev.toks = append(append(prev.toks, "and"), s.toks...)
+			prev.tail = s.tail
+			continue
+		}
+		joined = append(joined, s)
+	}
+	rng.Shuffle(len(joined), func(i, j int) { joined[i], joined[j] = joined[j], joined[i] })
+	parts := make([]string, len(joined))
+	for i, s := range joined {
+		s.toks[0] = title(s.toks[0])
+		parts[i] = strings.Join(s.toks, " ") + s.tail
+	}
+	return strings.Join(parts, " ")
 }
