@@ -490,7 +490,9 @@ func BuildContext(ctx context.Context, in Input) (*Result, error) {
 		return nil, err
 	}
 	rankedPairs, unconfirmed := dropUnconfirmed(rankedPairs, func(r ranked) bool { return r.unconfirmed },
-		func(r ranked) pairs.Pair { return pairs.Pair{A: min(r.a, r.b), B: max(r.a, r.b), Shared: uint32(r.pair.Shared)} })
+		func(r ranked) pairs.Pair {
+			return pairs.Pair{A: min(r.a, r.b), B: max(r.a, r.b), Shared: uint32(r.pair.Shared)}
+		})
 	reusedSpans := make([][]span, n)
 	for k := range rankedPairs {
 		r := &rankedPairs[k]
