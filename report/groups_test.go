@@ -67,3 +67,32 @@ func TestPassageTextCut(t *testing.T) {
 		}
 	}
 }
+
+// TestTextNamesAtMostTwelveMembersOfAGroup: a large group lists its first
+// twelve documents and counts the rest, so that a few groups of hundreds
+// of copies (license files) do not fill the terminal; JSON lists all.
+func TestTextNamesAtMostTwelveMembersOfAGroup(t *testing.T) {
+	var docs []string
+	for i := range 20 {
+		docs = append(docs, fmt.Sprintf("member-%02d.txt", i))
+	}
+	r := &Result{Caution: Caution, Settings: Settings{Unit: "sentence"}, Groups: []Group{{Documents: docs, Shared: 4}, {Documents: docs[:13], Shared: 5}}}
+	var out bytes.Buffer
+	if err := WriteText(&out, r, TextOptions{Top: 20}); err != nil {
+		t.Fatal(err)
+	}
+	text := out.String()
+	if !strings.Contains(text, "member-11.txt") || strings.Contains(text, "member-14.txt") || !strings.Contains(text, "… and 8 more (--format json lists all).") {
+		t.Errorf("the group of 20 is not cut after 12 members:\n%s", text)
+	}
+	if !strings.Contains(text, "member-12.txt") {
+		t.Errorf("the group of 13 should list all 13 (one more line is not worth a count):\n%s", text)
+	}
+	var js bytes.Buffer
+	if err := WriteJSON(&js, r); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(js.String(), "member-19.txt") {
+		t.Error("JSON does not list every member")
+	}
+}

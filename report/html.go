@@ -18,15 +18,16 @@ package report
 // goes through html/template's contextual escaping; the only trusted values
 // (template.CSS, template.JS) are the embedded files. Numbers are formatted
 // from the Result's fields, never recomputed, so the page says what the JSON
-// says. The script only sorts, filters and shows one pair at a time; it
-// never builds markup from strings. Without the script every pair's detail
-// is shown one after the other, so the page still reads (and prints).
+// says. The script sorts, filters, shows one pair at a time and adds rows
+// from the page's data (see "Scale"); it never builds markup from strings.
+// Without the script the first screen's details are shown one after the
+// other, so the page still reads (and prints).
 //
 // # Size
 //
 // A page for a big corpus must stay openable. Only the top Pairs pairs
 // (HTMLOptions.Pairs, default 200) get a detail view; every pair is a row of
-// the table. A detail view shows a document whole when its text is at most
+// the table (written out on the first screen, else kept as data: "Scale"). A detail view shows a document whole when its text is at most
 // htmlFullText bytes ("short"); a longer document ("long") shows each passage
 // with htmlContext bytes of context either side, a passage longer than
 // htmlWindowMax bytes shown by its head and tail, and at most htmlSideBudget
@@ -34,7 +35,35 @@ package report
 // marked and listed. HTMLSizeBound turns these caps into a bound on the
 // file's size that the tests check; the README states it.
 //
+// # Scale
+//
+// A page of 10⁵ pairs written as HTML rows (and a documents table to match)
+// is tens of megabytes of markup that Chromium did not lay out in two
+// minutes. So the page writes as HTML only a first screen: the first Screen
+// rows of each long list (HTMLOptions.Screen, default 50: pair rows, the
+// side-by-side views of those pairs, document rows, groups, sets of
+// near-copies), which is what a reader without the script sees. Everything
+// else travels in the same file as data, never as markup: one JSON block
+// (<script type="application/json" id="page-data">: every pair's row as a
+// compact array that names documents by their index in a table of paths,
+// the remaining documents, groups and sets), read by the script only when
+// the reader asks for more, sorts or filters; and one JSON block per
+// remaining side-by-side view (id pair-data-N) with its segments and list
+// already cut and formatted by Go, parsed only when that pair is opened.
+// A data block is not run (its type is not a script type), so the policy
+// needs no hash for it; html/template writes it through its JSON escaper
+// (<, > and & as \u003c, \u003e, \u0026), so no text can close it. The
+// script builds rows and views with createElement and textContent, element
+// by element as the template writes them (a browser test compares the
+// two), and formats nothing but the table's percentages, with toFixed(2) on
+// the same four-decimal fractions Go's percent formats.
+//
 // # Rejected alternatives
+//
+// The rest of the rows as <template> elements would keep all markup in
+// html/template but costs several times the bytes of the data and is still
+// parsed, as an inert tree, at load; passage texts inside <template>
+// elements would be parsed into nodes before anyone asks for them.
 //
 // One page per pair in a folder would keep each page small but is no
 // longer one file to mail or archive; a client-side renderer fed with the
@@ -49,9 +78,11 @@ import (
 	"crypto/sha256"
 	_ "embed"
 	"encoding/base64"
+	"encoding/json"
 	"fmt"
 	"html/template"
 	"io"
+	"math"
 	"path"
 	"slices"
 	"strconv"
@@ -81,6 +112,21 @@ const (
 type HTMLOptions struct {
 	Pairs  int // top pairs with a detail view (0 means DefaultHTMLPairs; negative means none)
 	Groups int // groups listed (0 means DefaultHTMLGroups); the JSON lists all
+	// Screen is how many items of each long list (pair rows and their
+	// detail views, document rows, groups, sets of near-copies) are written
+	// as HTML; the script renders the rest from the page's data on demand
+	// (0 means DefaultHTMLScreen).
+	Screen int
+}
+
+// DefaultHTMLScreen is the length of the first screen of each list.
+const DefaultHTMLScreen = 50
+
+func (o HTMLOptions) screen() int {
+	if o.Screen <= 0 {
+		return DefaultHTMLScreen
+	}
+	return o.Screen
 }
 
 // DefaultHTMLGroups is the number of groups the page lists by default.
@@ -117,6 +163,7 @@ var pageTmpl = template.Must(template.New("page").Funcs(template.FuncMap{
 	"num":    func(f float64) string { return strconv.FormatFloat(f, 'f', -1, 64) },
 	"plural": plural,
 	"bytes":  formatBytes[int64],
+	"inc":    func(n int) int { return n + 1 },
 }).Parse(pageTemplate))
 
 // cspFor is the page's Content-Security-Policy: nothing from anywhere, except
@@ -133,7 +180,10 @@ func cspFor(css, js string) string {
 
 // WriteHTML writes the self-contained review page.
 func WriteHTML(w io.Writer, r *Result, opt HTMLOptions) error {
-	data := buildPage(r, opt)
+	data, err := buildPage(r, opt)
+	if err != nil {
+		return fmt.Errorf("report: html: %w", err)
+	}
 	var buf bytes.Buffer
 	if err := pageTmpl.Execute(&buf, data); err != nil {
 		return fmt.Errorf("report: html: %w", err)
@@ -153,18 +203,30 @@ type page struct {
 	R          *Result
 	Title      string
 	Detailed   int
-	Undetailed int // pairs in the table only
-	Rows       []pairRow
+	Undetailed int       // pairs in the table only
+	Rows       []pairRow // the first screen's rows
 	Details    []pairDetail
-	Docs       []docRow
-	Quiet      int // documents in no reported pair
+	Later      []laterDetail // detail views rendered by the script when opened
+	Docs       []docRow      // the first screen's document rows
+	DocsTotal  int           // documents in some pair
+	Quiet      int           // documents in no reported pair
 	Noted      []Document
-	Groups     []Group // the groups listed (HTMLOptions.Groups)
-	MoreGroups int
-	Near       []nearView
+	Groups     []Group    // the first screen's groups
+	GroupsOut  int        // groups listed (HTMLOptions.Groups), on the screen or in the data
+	MoreGroups int        // groups the page does not list
+	Near       []nearView // the first screen's sets
+	NearTotal  int
 	NearLine   string // the summary's line on near-copies
 	Hist       histogram
 	Net        network
+	Screen     int             // HTMLOptions.screen()
+	Data       json.RawMessage // the page's data block (pageData)
+}
+
+// laterDetail is one detail view kept as data: its JSON (detailData).
+type laterDetail struct {
+	ID   string
+	Data json.RawMessage
 }
 
 // htmlMaxNearCopies is the number of members of one set of near-copies the
@@ -237,7 +299,8 @@ type partner struct {
 	ID   string
 }
 
-func buildPage(r *Result, opt HTMLOptions) *page {
+func buildPage(r *Result, opt HTMLOptions) (*page, error) {
+	screen := opt.screen()
 	p := &page{
 		CSS:      template.CSS(pageCSS),
 		JS:       template.JS(pageJS),
@@ -245,25 +308,31 @@ func buildPage(r *Result, opt HTMLOptions) *page {
 		R:        r,
 		Detailed: opt.detailed(len(r.Pairs)),
 		Noted:    notedDocuments(r),
+		Screen:   screen,
 	}
 	p.Undetailed = len(r.Pairs) - p.Detailed
 	groups := opt.Groups
 	if groups <= 0 {
 		groups = DefaultHTMLGroups
 	}
-	p.Groups = r.Groups[:min(groups, len(r.Groups))]
-	p.MoreGroups = len(r.Groups) - len(p.Groups)
+	listed := r.Groups[:min(groups, len(r.Groups))]
+	p.GroupsOut = len(listed)
+	p.Groups = listed[:min(screen, len(listed))]
+	p.MoreGroups = len(r.Groups) - len(listed)
+	var near []nearView
 	for k := range r.NearCopies {
 		set := &r.NearCopies[k]
 		shown := set.Documents[:min(len(set.Documents), htmlMaxNearCopies)]
-		p.Near = append(p.Near, nearView{N: k + 1, Set: set, Shown: shown, More: len(set.Documents) - len(shown)})
+		near = append(near, nearView{N: k + 1, Set: set, Shown: shown, More: len(set.Documents) - len(shown)})
 	}
+	p.NearTotal = len(near)
+	p.Near = near[:min(screen, len(near))]
 	if r.Summary.NearCopyDocuments > 0 {
 		p.NearLine = nearCopySummary(r.Summary)
 	}
 	p.Title = "reprise: " + plural(r.Summary.Pairs, "pair", "pairs") + " among " + plural(r.Summary.Documents, "document")
-	p.Rows = make([]pairRow, len(r.Pairs))
-	for i := range r.Pairs {
+	p.Rows = make([]pairRow, min(screen, len(r.Pairs)))
+	for i := range p.Rows {
 		pr := &r.Pairs[i]
 		p.Rows[i] = pairRow{Rank: i + 1, P: pr, Longest: pr.LongestWords(), Passages: len(pr.Passages)}
 		if i < p.Detailed {
@@ -279,12 +348,27 @@ func buildPage(r *Result, opt HTMLOptions) *page {
 		if i+1 < p.Detailed {
 			d.Next = pairID(i + 2)
 		}
-		p.Details = append(p.Details, d)
+		if i < screen {
+			p.Details = append(p.Details, d)
+			continue
+		}
+		raw, err := json.Marshal(detailDataOf(&d, r))
+		if err != nil {
+			return nil, fmt.Errorf("pair %d: %w", i+1, err)
+		}
+		p.Later = append(p.Later, laterDetail{ID: "pair-data-" + strconv.Itoa(i+1), Data: raw})
 	}
-	p.Docs, p.Quiet = documentRows(r, p.Detailed)
+	docs, quiet := documentRows(r, p.Detailed)
+	p.DocsTotal, p.Quiet = len(docs), quiet
+	p.Docs = docs[:min(screen, len(docs))]
 	p.Hist = buildHistogram(r)
 	p.Net = buildNetwork(r, p.Detailed)
-	return p
+	raw, err := pageDataOf(r, p, docs[len(p.Docs):], listed[len(p.Groups):], near[len(p.Near):])
+	if err != nil {
+		return nil, err
+	}
+	p.Data = raw
+	return p, nil
 }
 
 func pairID(rank int) string { return "pair-" + strconv.Itoa(rank) }
@@ -531,14 +615,23 @@ const (
 	boundNode     = 512     // one network node with its title and label
 	boundEdge     = 256     // one network edge with its title
 	boundListItem = 512     // one skipped, common, note, group or cluster entry
+
+	boundDataRow     = 160 // one pair's row in the page's data, but for its two locations
+	boundDataDoc     = 96  // one document's row in the page's data, but for its partners
+	boundDataPartner = 32  // one partner in the page's data
+	boundDataPath    = 8   // quotes and comma around one path in the paths table
 )
 
 // HTMLSizeBound is an upper bound on the size in bytes of the page WriteHTML
-// writes for r, from the caps in this file: fixed parts; per table row and
-// per document row, markup plus the escaped paths; per detailed pair, markup,
-// at most two sides of shown text (escaped), at most htmlMaxPassages listed
-// passages, and their marks; the network's nodes and edges; and every
-// listed note, reason and common sentence, escaped. L is the longest path.
+// writes for r, from the caps in this file: fixed parts; per pair, its row in
+// the page's data (numbers, two escaped locations); per table row and
+// document row written as HTML (the first screen), markup plus the escaped
+// paths; per other document, its data row; each path once in the data's
+// table of paths; per detailed pair (markup or data), at most two sides of
+// shown text (escaped), at most htmlMaxPassages listed passages, and their
+// marks; the network's nodes and edges; and every listed note, reason and
+// common sentence, escaped. L is the longest path. The escaping of
+// html/template and of the JSON writer both turn a byte into at most six.
 func HTMLSizeBound(r *Result, opt HTMLOptions) int64 {
 	longest := 0
 	for _, d := range r.Documents {
@@ -549,8 +642,13 @@ func HTMLSizeBound(r *Result, opt HTMLOptions) int64 {
 	}
 	L := int64(boundEscape * longest)
 	n := int64(boundFixed)
-	n += int64(len(r.Pairs)) * (boundRow + 2*L + 2*whereBound(r))
-	n += int64(len(r.Documents)) * (boundDocRow + L + htmlMaxPartners*(boundPartner+L))
+	screen := int64(opt.screen())
+	pairsN, docsN := int64(len(r.Pairs)), int64(len(r.Documents))
+	n += min(screen, pairsN) * (boundRow + 2*L + 2*whereBound(r))
+	n += pairsN * (boundDataRow + 2*whereBound(r))
+	n += min(screen, docsN) * (boundDocRow + L + htmlMaxPartners*(boundPartner+L))
+	n += docsN * (boundDataDoc + htmlMaxPartners*boundDataPartner)
+	n += int64(len(pathTable(r))) * (L + boundDataPath)
 	detailed := int64(opt.detailed(len(r.Pairs)))
 	sideText := int64(max(htmlFullText, htmlSideBudget))
 	perDetail := boundDetail + 2*L +
@@ -598,4 +696,249 @@ func whereBound(r *Result) int64 {
 		}
 	}
 	return int64(boundEscape * w)
+}
+
+// The page's data (see "Scale"). pageDataOf writes it by hand, as compact
+// arrays, with the JSON renderer's appenders (jsonString escapes <, > and &,
+// as html/template's JSON escaper then keeps them):
+//
+//	{"paths": [path, ...],          every path named below, by index
+//	 "detailed": D, "unit": "sentence",
+//	 "rows": [[score, cover A, cover B, shared, longest words, A, B, A where, B where], ...],
+//	                                 every pair in rank order (the wheres of its
+//	                                 first passage; a pair without one stops at B)
+//	 "docs": [[path, words, reused, [[partner, rank], ...], more partners], ...],
+//	 "groups": [[heading, [path, ...]], ...],
+//	 "near": [[set number, members, pairs listed, pairs, representative,
+//	           differs most or -1, [[path, resemblance], ...], more members], ...]}
+//
+// docs, groups and near hold only the items after the first screen.
+func pageDataOf(r *Result, p *page, docs []docRow, groups []Group, near []nearView) (json.RawMessage, error) {
+	index := make(map[string]int, len(r.Documents))
+	var paths []string
+	id := func(path string) int {
+		if k, ok := index[path]; ok {
+			return k
+		}
+		index[path] = len(paths)
+		paths = append(paths, path)
+		return len(paths) - 1
+	}
+	for _, d := range r.Documents {
+		id(d.Path)
+	}
+	var body []byte
+	num := func(f float64) error {
+		if math.IsNaN(f) || math.IsInf(f, 0) {
+			return fmt.Errorf("a fraction is %v", f)
+		}
+		body = jsonFloat(body, f)
+		return nil
+	}
+	put := func(n int) { body = strconv.AppendInt(body, int64(n), 10) }
+	body = append(body, `,"rows":[`...)
+	for i := range r.Pairs {
+		pr := &r.Pairs[i]
+		if i > 0 {
+			body = append(body, ',')
+		}
+		body = append(body, '[')
+		for _, f := range []float64{pr.Score, pr.CoverageA, pr.CoverageB} {
+			if err := num(f); err != nil {
+				return nil, fmt.Errorf("pair %d: %w", i+1, err)
+			}
+			body = append(body, ',')
+		}
+		put(pr.Shared)
+		body = append(body, ',')
+		put(pr.LongestWords())
+		body = append(body, ',')
+		put(id(pr.A))
+		body = append(body, ',')
+		put(id(pr.B))
+		if len(pr.Passages) > 0 {
+			body = append(body, ',')
+			body = jsonString(body, pr.Passages[0].AWhere)
+			body = append(body, ',')
+			body = jsonString(body, pr.Passages[0].BWhere)
+		}
+		body = append(body, ']')
+	}
+	body = append(body, `],"docs":[`...)
+	for i, d := range docs {
+		if i > 0 {
+			body = append(body, ',')
+		}
+		body = append(body, '[')
+		put(id(d.D.Path))
+		body = append(body, ',')
+		put(d.D.Words)
+		body = append(body, ',')
+		if err := num(d.D.Reused); err != nil {
+			return nil, fmt.Errorf("document %s: %w", d.D.Path, err)
+		}
+		body = append(body, ",["...)
+		for k, pt := range d.Partners {
+			if k > 0 {
+				body = append(body, ',')
+			}
+			body = append(body, '[')
+			put(id(pt.Path))
+			body = append(body, ',')
+			put(pt.Rank)
+			body = append(body, ']')
+		}
+		body = append(body, "],"...)
+		put(d.More)
+		body = append(body, ']')
+	}
+	body = append(body, `],"groups":[`...)
+	for i, g := range groups {
+		if i > 0 {
+			body = append(body, ',')
+		}
+		body = append(body, '[')
+		body = jsonString(body, strconv.Itoa(len(g.Documents))+" documents share "+plural(g.Shared, r.Settings.Unit))
+		body = append(body, ",["...)
+		for k, d := range g.Documents {
+			if k > 0 {
+				body = append(body, ',')
+			}
+			put(id(d))
+		}
+		body = append(body, "]]"...)
+	}
+	body = append(body, `],"near":[`...)
+	for i, v := range near {
+		if i > 0 {
+			body = append(body, ',')
+		}
+		body = append(body, '[')
+		for _, n := range []int{v.N, len(v.Set.Documents), v.Set.PairsListed, v.Set.Pairs, id(v.Set.Representative)} {
+			put(n)
+			body = append(body, ',')
+		}
+		if v.Set.DiffersMost == "" {
+			put(-1)
+		} else {
+			put(id(v.Set.DiffersMost))
+		}
+		body = append(body, ",["...)
+		for k, m := range v.Shown {
+			if k > 0 {
+				body = append(body, ',')
+			}
+			body = append(body, '[')
+			put(id(m.Path))
+			body = append(body, ',')
+			if err := num(m.Resemblance); err != nil {
+				return nil, fmt.Errorf("set %d: %w", v.N, err)
+			}
+			body = append(body, ']')
+		}
+		body = append(body, "],"...)
+		put(v.More)
+		body = append(body, ']')
+	}
+	body = append(body, "]}"...)
+	// The paths table comes first but is known only now.
+	head := []byte(`{"paths":[`)
+	for k, s := range paths {
+		if k > 0 {
+			head = append(head, ',')
+		}
+		head = jsonString(head, s)
+	}
+	head = append(head, `],"detailed":`...)
+	head = strconv.AppendInt(head, int64(p.Detailed), 10)
+	head = append(head, `,"unit":`...)
+	head = jsonString(head, r.Settings.Unit)
+	return append(head, body...), nil
+}
+
+// detailData is one detail view as the script renders it: every string
+// already formatted as the template would show it.
+type detailData struct {
+	Rank     int         `json:"rank"`
+	Facts    [7]string   `json:"facts"` // score, cover A, cover B, Jaccard, shared, passages, longest passage
+	Unit     string      `json:"unit"`
+	Items    []itemData  `json:"items"`
+	More     int         `json:"more"`
+	Sides    [2]sideData `json:"sides"`
+	Previous string      `json:"prev"`
+	Next     string      `json:"next"`
+}
+
+type itemData struct {
+	N       int    `json:"n"`
+	AWhere  string `json:"aw"`
+	BWhere  string `json:"bw"`
+	AID     string `json:"aid"`
+	BID     string `json:"bid"`
+	Size    string `json:"size"` // "3 sentences, 45 words"
+	Excerpt string `json:"q"`
+}
+
+type sideData struct {
+	Label    string    `json:"label"`
+	Path     string    `json:"path"`
+	Missing  string    `json:"missing"` // the template's whole sentence on a missing text`
+	Short    bool      `json:"short"`
+	Segments []segData `json:"segs"`
+}
+
+// segData is a segment: G set for a gap; else T, marked when M is set.
+type segData struct {
+	T string `json:"t,omitempty"`
+	M string `json:"m,omitempty"`
+	L int    `json:"l,omitempty"`
+	I string `json:"i,omitempty"`
+	G string `json:"g,omitempty"`
+}
+
+func detailDataOf(d *pairDetail, r *Result) detailData {
+	out := detailData{Rank: d.Rank, Unit: d.Unit, More: d.More, Previous: d.Previous, Next: d.Next,
+		Facts: [7]string{percent(d.P.Score), percent(d.P.CoverageA), percent(d.P.CoverageB), percent(d.P.Jaccard),
+			strconv.Itoa(d.P.Shared), strconv.Itoa(len(d.P.Passages)), plural(d.Longest, "word")}}
+	for _, it := range d.Items {
+		out.Items = append(out.Items, itemData{N: it.N, AWhere: it.G.AWhere, BWhere: it.G.BWhere, AID: it.AID, BID: it.BID,
+			Size: plural(it.G.Units, r.Settings.Unit) + ", " + plural(it.G.Words, "word"), Excerpt: it.Excerpt})
+	}
+	for k, s := range []side{d.A, d.B} {
+		sd := sideData{Label: s.Label, Path: s.Path, Short: s.Short}
+		if s.Missing != "" {
+			sd.Missing = "The text is not shown: " + s.Missing + ". The passages are listed above with their locations."
+		}
+		for _, g := range s.Segments {
+			sd.Segments = append(sd.Segments, segData{T: g.Text, M: g.Marks, L: g.Label, I: g.ID, G: g.Gap})
+		}
+		out.Sides[k] = sd
+	}
+	return out
+}
+
+// pathTable is every path the page's data can name: a bound on its table
+// of paths.
+func pathTable(r *Result) map[string]struct{} {
+	m := make(map[string]struct{}, len(r.Documents))
+	for _, d := range r.Documents {
+		m[d.Path] = struct{}{}
+	}
+	for i := range r.Pairs {
+		m[r.Pairs[i].A] = struct{}{}
+		m[r.Pairs[i].B] = struct{}{}
+	}
+	for _, g := range r.Groups {
+		for _, d := range g.Documents {
+			m[d] = struct{}{}
+		}
+	}
+	for _, set := range r.NearCopies {
+		m[set.Representative] = struct{}{}
+		m[set.DiffersMost] = struct{}{}
+		for _, d := range set.Documents {
+			m[d.Path] = struct{}{}
+		}
+	}
+	return m
 }

@@ -298,7 +298,11 @@ func WriteText(w io.Writer, r *Result, opt TextOptions) error {
 				break
 			}
 			t.linef("%d documents share %s:", len(g.Documents), plural(g.Shared, r.Settings.Unit))
-			for _, d := range g.Documents {
+			for i, d := range g.Documents {
+				if i == groupMembersShown && len(g.Documents) > groupMembersShown+1 {
+					t.linef("   … and %d more (--format json lists all).", len(g.Documents)-i)
+					break
+				}
 				t.linef("   %s", clean(d))
 			}
 		}
@@ -341,6 +345,10 @@ func WriteText(w io.Writer, r *Result, opt TextOptions) error {
 	}
 	return t.flush()
 }
+
+// groupMembersShown is how many documents of a group the text report
+// names; a larger group ends with a count of the others.
+const groupMembersShown = 12
 
 // nearCopySummary is the summary's one line on near-copies.
 func nearCopySummary(s Summary) string {

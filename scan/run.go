@@ -405,11 +405,15 @@ func readAgain(ctx context.Context, cfg Config, docs []corpus.Document, digests 
 	var mu sync.Mutex
 	differs := map[string]bool{} // read again, but not the text first read
 	var failed []error
+	var done atomic.Int64
 	_, _, skipped, err := corpus.ReadEachContext(ctx, files, cfg.Corpus, func(d *corpus.Document, loan *corpus.Loan) struct{} {
 		i, ok := byName[name{d.File, d.Path}]
 		text := loan.Text() // put copies it
 		if !ok {
 			return struct{}{}
+		}
+		if cfg.Progress != nil {
+			cfg.Progress(Progress{Stage: StageReread, Done: int(done.Add(1)), Total: len(ids)})
 		}
 		g := &digests[i]
 		if len(text) != g.size || xxhash.Sum64String(text) != g.sum {
