@@ -313,8 +313,7 @@ type bag struct {
 
 // rewordedPassages is the alignment of one pair of documents for
 // reworded copies (steps 2 to 4 of the comment above).
-func rewordedPassages(rw *Reworded, a, b *quoted, minWords int) []rewordedPassage {
-	ta, tb := newTermText(a.text), newTermText(b.text)
+func rewordedPassages(rw *Reworded, a, b *quoted, ta, tb *termText, minWords int) []rewordedPassage {
 	ea, eb := evidence(a, b, ta), evidence(b, a, tb)
 	gap := rw.gap()
 	near := func(ev []bool) []bool {
@@ -528,13 +527,50 @@ func rewordedPassages(rw *Reworded, a, b *quoted, minWords int) []rewordedPassag
 			bStart: tb.sentences[r.bLo].start, bEnd: tb.sentences[r.bHi].end,
 			seeds: r.seeds,
 		}
-		out[k].explain(ta, tb, r)
 	}
-	slices.SortFunc(out, func(x, y rewordedPassage) int {
+	return out
+}
+
+// withChains adds to ps the chained passages of exact shingle matches
+// (chain.go) that span at least minWords words in both documents, with a
+// matched shingle starting at one word in three or more: a
+// passage overlapping one of ps in both documents widens it, any other is
+// a passage of its own. Verbatim and lightly edited stretches so keep the
+// exact edges chaining gives them, whatever the sentences do.
+func withChains(ps []rewordedPassage, a, b *quoted, gap, minWords int) []rewordedPassage {
+	ua, ub := a.units, b.units
+	for _, l := range chainPassages(&a.seq, &b.seq, ua, ub, gap, 0) {
+		aWords := int(ua[l.aLast].Pos+ua[l.aLast].Words) - int(ua[l.aFirst].Pos)
+		bWords := int(ub[l.bLast].Pos+ub[l.bLast].Words) - int(ub[l.bFirst].Pos)
+		// Dense chains only: a third of the words starting a matched
+		// shingle (a verbatim run has nearly all, a light edit more than
+		// half), not common phrases chained across wide gaps.
+		if aWords < max(minWords, 1) || bWords < max(minWords, 1) || 3*l.n < max(aWords, bWords) {
+			continue
+		}
+		c := rewordedPassage{aStart: int(ua[l.aFirst].Start), aEnd: int(ua[l.aLast].End),
+			bStart: int(ub[l.bFirst].Start), bEnd: int(ub[l.bLast].End)}
+		joined := false
+		for k := range ps {
+			p := &ps[k]
+			if c.aStart < p.aEnd && p.aStart < c.aEnd && c.bStart < p.bEnd && p.bStart < c.bEnd {
+				p.aStart, p.aEnd = min(p.aStart, c.aStart), max(p.aEnd, c.aEnd)
+				p.bStart, p.bEnd = min(p.bStart, c.bStart), max(p.bEnd, c.bEnd)
+				joined = true
+			}
+		}
+		if !joined {
+			ps = append(ps, c)
+		}
+	}
+	slices.SortFunc(ps, func(x, y rewordedPassage) int {
 		return cmp.Or(cmp.Compare(x.aStart, y.aStart), cmp.Compare(x.bStart, y.bStart),
 			cmp.Compare(x.aEnd, y.aEnd), cmp.Compare(x.bEnd, y.bEnd))
 	})
-	return out
+	// Widened passages may now hold one another: keep the outer one.
+	return slices.CompactFunc(ps, func(x, y rewordedPassage) bool {
+		return x.aStart <= y.aStart && y.aEnd <= x.aEnd && x.bStart <= y.bStart && y.bEnd <= x.bEnd
+	})
 }
 
 // rewordedPassage is one passage in byte offsets, with the shared words'
@@ -546,35 +582,46 @@ type rewordedPassage struct {
 	terms, aTerms, bTerms      int
 }
 
+// within returns the tokens of t inside the bytes [start, end).
+func (t *termText) within(start, end int) []token {
+	lo, _ := slices.BinarySearchFunc(t.tokens, start, func(x token, s int) int { return cmp.Compare(int(x.start), s) })
+	hi := lo
+	for hi < len(t.tokens) && int(t.tokens[hi].end) <= end {
+		hi++
+	}
+	return t.tokens[lo:hi]
+}
+
 // explain finds the words of each side whose term the other side has.
-func (p *rewordedPassage) explain(ta, tb *termText, r rect) {
-	setOf := func(t *termText, lo, hi int) map[uint64]bool {
+func (p *rewordedPassage) explain(ta, tb *termText) {
+	setOf := func(toks []token) map[uint64]bool {
 		m := map[uint64]bool{}
-		for _, tok := range t.tokens[t.sentences[lo].lo:t.sentences[hi].hi] {
+		for _, tok := range toks {
 			if tok.term != 0 {
 				m[tok.term] = true
 			}
 		}
 		return m
 	}
-	sa, sb := setOf(ta, r.aLo, r.aHi), setOf(tb, r.bLo, r.bHi)
+	wa, wb := ta.within(p.aStart, p.aEnd), tb.within(p.bStart, p.bEnd)
+	sa, sb := setOf(wa), setOf(wb)
 	p.aTerms, p.bTerms = len(sa), len(sb)
 	for term := range sa {
 		if sb[term] {
 			p.terms++
 		}
 	}
-	marks := func(t *termText, lo, hi int, other map[uint64]bool) []span {
+	marks := func(toks []token, other map[uint64]bool) []span {
 		var out []span
-		for _, tok := range t.tokens[t.sentences[lo].lo:t.sentences[hi].hi] {
+		for _, tok := range toks {
 			if tok.term != 0 && other[tok.term] {
 				out = append(out, span{int(tok.start), int(tok.end)})
 			}
 		}
 		return out
 	}
-	p.aShared = marks(ta, r.aLo, r.aHi, sb)
-	p.bShared = marks(tb, r.bLo, r.bHi, sa)
+	p.aShared = marks(wa, sb)
+	p.bShared = marks(wb, sa)
 }
 
 // wordsOf counts the tokens of sentences lo..hi.
@@ -705,12 +752,14 @@ var errUnconfirmed = errors.New("report: no reworded passage confirms the pair")
 // sentence alignment, each with its explanation, and the pair's scores.
 func alignReworded(p *Pair, aSpans, bSpans *[]span, ch *Chaining, a, b *quoted, shared, textLimit int) error {
 	da, db := a.doc, b.doc
-	passages := rewordedPassages(ch.Reworded, a, b, ch.MinWords)
+	ta, tb := newTermText(a.text), newTermText(b.text)
+	passages := withChains(rewordedPassages(ch.Reworded, a, b, ta, tb, ch.MinWords), a, b, max(0, ch.Gap), ch.MinWords)
 	if len(passages) == 0 {
 		return errUnconfirmed
 	}
 	*p = Pair{A: da.Path, B: db.Path, Shared: shared}
 	for _, r := range passages {
+		r.explain(ta, tb)
 		g := Passage{AStart: r.aStart, AEnd: r.aEnd, BStart: r.bStart, BEnd: r.bEnd,
 			Units: unitsWithin(a, b, r.aStart, r.aEnd)}
 		whole := a.text[g.AStart:g.AEnd]

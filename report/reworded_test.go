@@ -35,7 +35,7 @@ const (
 	prefaceB = "Another document begins here with remarks on railway timetables, the price of coal and a quarrel between two clerks, " +
 		"then turns to quite other business."
 	tailA = "The orchard accounts close with a table of receipts and a note on the cider sold at the autumn fair."
-	tailB = "The timetable notes end with a list of stations, a complaint about late trains and the clerk's signature."
+	tailB = "Timetable notes end with a list of stations, a complaint about late trains and the clerk's signature."
 )
 
 func buildReworded(t *testing.T, a, b Doc, excluded []uint64) *Result {
@@ -162,4 +162,15 @@ func TestMarkShared(t *testing.T) {
 	if got := MarkShared("short", [][2]int{{2, 40}}, "[", "]"); got != "short" {
 		t.Errorf("a mark past the end: %q", got)
 	}
+}
+
+func TestRewordedJSONMatchesEncodingJSON(t *testing.T) {
+	a := prefaceA + "\n\n" + lighthouse + "\n\n" + tailA
+	b := prefaceB + "\n\n" + lighthouseReordered + "\n\n" + tailB
+	res := buildReworded(t, wordDoc("a.txt", a, 5), wordDoc("b.txt", b, 5), nil)
+	if len(res.Pairs) != 1 || res.Pairs[0].Passages[0].Explained == nil {
+		t.Fatalf("want one explained passage: %+v", res.Pairs)
+	}
+	res.Texts = nil
+	sameAsReference(t, res) // WriteJSON and WriteNDJSON against encoding/json
 }
