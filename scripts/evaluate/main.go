@@ -348,7 +348,7 @@ func target(level string) float64 {
 	switch level {
 	case "light":
 		return 0.85
-	case "heavy":
+	case "heavy", "rewrite":
 		return 0.5
 	}
 	return 0.95
