@@ -59,6 +59,10 @@ type Chaining struct {
 	// MinWords: a passage spanning fewer words than this in either
 	// document is not shown, unless it is the pair's largest (0: all shown).
 	MinWords int
+	// Reworded, when set, aligns pairs sentence by sentence on shared
+	// content words instead of chaining (reworded.go), and drops pairs it
+	// finds no passage in.
+	Reworded *Reworded
 }
 
 // link is a passage in unit indices: A's units aFirst..aLast, B's units

@@ -159,11 +159,12 @@ var pageCSS string
 var pageJS string
 
 var pageTmpl = template.Must(template.New("page").Funcs(template.FuncMap{
-	"pct":    percent,
-	"num":    func(f float64) string { return strconv.FormatFloat(f, 'f', -1, 64) },
-	"plural": plural,
-	"bytes":  formatBytes[int64],
-	"inc":    func(n int) int { return n + 1 },
+	"pct":         percent,
+	"num":         func(f float64) string { return strconv.FormatFloat(f, 'f', -1, 64) },
+	"plural":      plural,
+	"bytes":       formatBytes[int64],
+	"inc":         func(n int) int { return n + 1 },
+	"explainHead": explainHead,
 }).Parse(pageTemplate))
 
 // cspFor is the page's Content-Security-Policy: nothing from anywhere, except
@@ -268,6 +269,61 @@ type passageItem struct {
 	AID     string // id of the passage's first mark in each column ("" when not shown)
 	BID     string
 	Excerpt string
+	Explain *explainView // a reworded passage: both sides, shared words marked
+}
+
+// explainView is a reworded passage's two sides as pieces of text, each
+// marked when its word's term the other side also has.
+type explainView struct {
+	Terms, ATerms, BTerms int
+	A, B                  []wordPiece
+}
+
+type wordPiece struct {
+	T string // text
+	S bool   // a shared word
+}
+
+// htmlExplainText bounds the bytes of each side of an explanation.
+const htmlExplainText = 600
+
+func explainOf(g *Passage) *explainView {
+	e := g.Explained
+	if e == nil {
+		return nil
+	}
+	pieces := func(text string, marks [][2]int) []wordPiece {
+		cut, _ := cutText(text, htmlExplainText)
+		var out []wordPiece
+		at := 0
+		for _, m := range marks {
+			if m[0] < at || m[1] > len(cut) || m[0] > m[1] {
+				continue
+			}
+			if m[0] > at {
+				out = append(out, wordPiece{T: clean(cut[at:m[0]]) + sep(cut[at:m[0]])})
+			}
+			out = append(out, wordPiece{T: cut[m[0]:m[1]], S: true})
+			at = m[1]
+		}
+		if at < len(cut) {
+			out = append(out, wordPiece{T: clean(cut[at:])})
+		}
+		if len(cut) < len(text) {
+			out = append(out, wordPiece{T: " …"})
+		}
+		return out
+	}
+	return &explainView{Terms: e.Terms, ATerms: e.ATerms, BTerms: e.BTerms,
+		A: pieces(g.Text, e.AShared), B: pieces(e.BText, e.BShared)}
+}
+
+// sep keeps the space that clean drops at the end of a piece between words.
+func sep(s string) string {
+	if n := len(s); n > 0 && (s[n-1] == ' ' || s[n-1] == '\n' || s[n-1] == '\t') && clean(s) != "" {
+		return " "
+	}
+	return ""
 }
 
 type side struct {
@@ -415,7 +471,7 @@ func buildDetail(r *Result, i int, texts map[string]SourceText) pairDetail {
 	d.B, bFirst = buildSide("B", pr.B, texts[pr.B], bSpans, prefix+"b")
 	for k := 0; k < shown; k++ {
 		d.Items = append(d.Items, passageItem{N: k + 1, G: &pr.Passages[k], AID: aFirst[k], BID: bFirst[k],
-			Excerpt: trim(clean(pr.Passages[k].Text), 160)})
+			Excerpt: trim(clean(pr.Passages[k].Text), 160), Explain: explainOf(&pr.Passages[k])})
 	}
 	return d
 }
@@ -604,12 +660,15 @@ func baseName(p string) string { return path.Base(p) }
 // element, with a margin, and the most bytes html/template's escaping turns
 // one byte of text into ("&#39;" is five bytes; six leaves room).
 const (
-	boundFixed    = 96 << 10 // head, style sheet, script, headings, summary, legend, both pictures' frames
-	boundEscape   = 6
-	boundRow      = 1 << 10 // markup of one table row
-	boundDocRow   = 1 << 10 // markup of one documents-table row
-	boundPartner  = 256     // markup of one partner link
-	boundItem     = 1 << 10 // markup of one passage in a detail's list
+	boundFixed   = 96 << 10 // head, style sheet, script, headings, summary, legend, both pictures' frames
+	boundEscape  = 6
+	boundRow     = 1 << 10 // markup of one table row
+	boundDocRow  = 1 << 10 // markup of one documents-table row
+	boundPartner = 256     // markup of one partner link
+	boundItem    = 1 << 10 // markup of one passage in a detail's list
+	// boundExplain: one passage's explanation, both sides (escaped text,
+	// and markup of at most one mark per two bytes).
+	boundExplain  = 2 * (boundEscape*htmlExplainText + htmlExplainText/2*48)
 	boundSegment  = 160     // markup of one marked piece or gap
 	boundDetail   = 4 << 10 // markup of one detail view around its texts and list
 	boundNode     = 512     // one network node with its title and label
@@ -653,7 +712,7 @@ func HTMLSizeBound(r *Result, opt HTMLOptions) int64 {
 	sideText := int64(max(htmlFullText, htmlSideBudget))
 	perDetail := boundDetail + 2*L +
 		2*(boundEscape*sideText+(4*htmlMaxPassages+2)*boundSegment) +
-		htmlMaxPassages*(boundItem+2*whereBound(r)+boundEscape*4*160)
+		htmlMaxPassages*(boundItem+2*whereBound(r)+boundEscape*4*160+int64(explainBound(r)))
 	n += detailed * int64(perDetail)
 	nodes := min(int64(len(r.Documents)), maxNetworkNodes)
 	n += nodes*(boundNode+2*L) + min(int64(len(r.Pairs)), maxNetworkEdges)*(boundEdge+2*L)
@@ -685,6 +744,18 @@ func HTMLSizeBound(r *Result, opt HTMLOptions) int64 {
 		n += boundListItem + 2*L + int64(min(len(set.Documents), htmlMaxNearCopies))*(boundListItem+L)
 	}
 	return n
+}
+
+// explainBound is boundExplain when some passage has an explanation.
+func explainBound(r *Result) int {
+	for i := range r.Pairs {
+		for _, g := range r.Pairs[i].Passages {
+			if g.Explained != nil {
+				return boundExplain
+			}
+		}
+	}
+	return 0
 }
 
 // whereBound is the longest escaped location string of any passage.
@@ -870,13 +941,14 @@ type detailData struct {
 }
 
 type itemData struct {
-	N       int    `json:"n"`
-	AWhere  string `json:"aw"`
-	BWhere  string `json:"bw"`
-	AID     string `json:"aid"`
-	BID     string `json:"bid"`
-	Size    string `json:"size"` // "3 sentences, 45 words"
-	Excerpt string `json:"q"`
+	X       *explainData `json:"x,omitempty"` // a reworded passage's explanation
+	N       int          `json:"n"`
+	AWhere  string       `json:"aw"`
+	BWhere  string       `json:"bw"`
+	AID     string       `json:"aid"`
+	BID     string       `json:"bid"`
+	Size    string       `json:"size"` // "3 sentences, 45 words"
+	Excerpt string       `json:"q"`
 }
 
 type sideData struct {
@@ -896,13 +968,39 @@ type segData struct {
 	G string `json:"g,omitempty"`
 }
 
+// explainData is an explanation as the script renders it: its heading, and
+// each side's pieces as [text, 1 when shared].
+type explainData struct {
+	Head string   `json:"h"`
+	A    [][2]any `json:"a"`
+	B    [][2]any `json:"b"`
+}
+
+func explainHead(x *explainView) string {
+	return fmt.Sprintf("Shared content words marked: %d, of A's %d and B's %d.", x.Terms, x.ATerms, x.BTerms)
+}
+
+func explainDataOf(x *explainView) *explainData {
+	if x == nil {
+		return nil
+	}
+	side := func(ps []wordPiece) [][2]any {
+		out := make([][2]any, len(ps))
+		for k, p := range ps {
+			out[k] = [2]any{p.T, b2i(p.S)}
+		}
+		return out
+	}
+	return &explainData{Head: explainHead(x), A: side(x.A), B: side(x.B)}
+}
+
 func detailDataOf(d *pairDetail, r *Result) detailData {
 	out := detailData{Rank: d.Rank, Unit: d.Unit, More: d.More, Previous: d.Previous, Next: d.Next,
 		Facts: [7]string{percent(d.P.Score), percent(d.P.CoverageA), percent(d.P.CoverageB), percent(d.P.Jaccard),
 			strconv.Itoa(d.P.Shared), strconv.Itoa(len(d.P.Passages)), plural(d.Longest, "word")}}
 	for _, it := range d.Items {
 		out.Items = append(out.Items, itemData{N: it.N, AWhere: it.G.AWhere, BWhere: it.G.BWhere, AID: it.AID, BID: it.BID,
-			Size: plural(it.G.Units, r.Settings.Unit) + ", " + plural(it.G.Words, "word"), Excerpt: it.Excerpt})
+			Size: plural(it.G.Units, r.Settings.Unit) + ", " + plural(it.G.Words, "word"), Excerpt: it.Excerpt, X: explainDataOf(it.Explain)})
 	}
 	for k, s := range []side{d.A, d.B} {
 		sd := sideData{Label: s.Label, Path: s.Path, Short: s.Short}

@@ -279,6 +279,10 @@ func WriteText(w io.Writer, r *Result, opt TextOptions) error {
 					break
 				}
 				t.dimf("   A %s, B %s: %s, %s", g.AWhere, g.BWhere, plural(g.Units, r.Settings.Unit), plural(g.Words, "word"))
+				if g.Explained != nil {
+					writeExplained(t, &g)
+					continue
+				}
 				t.linef("   “%s”", trim(clean(g.Text), 300))
 			}
 		}

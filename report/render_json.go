@@ -65,7 +65,7 @@ type jsonKeys struct {
 	skipped  struct{ path, reason string }
 	common   struct{ text, documents, countedIn string }
 	pair     struct{ a, b, shared, coverageA, coverageB, jaccard, score, identical, passages string }
-	passage  struct{ aStart, aEnd, bStart, bEnd, aLine, bLine, aWhere, bWhere, units, words, text, textCut string }
+	passage  struct{ aStart, aEnd, bStart, bEnd, aLine, bLine, aWhere, bWhere, units, words, text, textCut, explained string }
 	group    struct{ documents, shared string }
 	cluster  struct{ documents string }
 }
@@ -126,6 +126,7 @@ func newJSONEncoder(w io.Writer, indent bool) *jsonEncoder {
 	k.passage.aWhere, k.passage.bWhere = next(d, "a_where"), next(d, "b_where")
 	k.passage.units, k.passage.words, k.passage.text = next(d, "units"), next(d, "words"), next(d, "text")
 	k.passage.textCut = next(d, "text_cut")
+	k.passage.explained = next(d, "explained")
 	return e
 }
 
@@ -380,6 +381,27 @@ func (e *jsonEncoder) passageFields(v *Passage) {
 	e.str(v.Text)
 	e.put(k.textCut)
 	e.bool(v.TextCut)
+	if v.Explained != nil { // omitempty: only reworded passages have one
+		e.put(k.explained)
+		e.explained(v.Explained)
+	}
+}
+
+// explained writes a reworded passage's explanation as encoding/json
+// would at its depth (its members are not hand-written: few passages
+// have one).
+func (e *jsonEncoder) explained(x *Explained) {
+	var b []byte
+	var err error
+	if e.indent {
+		b, err = json.MarshalIndent(x, strings.Repeat("  ", jsonPassageDepth), "  ")
+	} else {
+		b, err = json.Marshal(x)
+	}
+	if err != nil && e.err == nil {
+		e.err = err
+	}
+	e.buf = append(e.buf, b...)
 }
 
 func (e *jsonEncoder) groupFields(v *Group) {

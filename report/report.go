@@ -98,6 +98,8 @@ type ShingleSettings struct {
 	Gap    int `json:"gap"`    // G: passages merge across gaps of up to G words
 	// MinPassage: shorter passages (in words) are not shown, unless a pair's largest
 	MinPassage int `json:"min_passage"`
+	// Reworded: pairs aligned sentence by sentence (--unit reworded).
+	Reworded *Reworded `json:"reworded,omitempty"`
 }
 
 // Summary counts what the run read, set aside and found.
@@ -139,6 +141,10 @@ type Summary struct {
 	// CommonShare is that share of Words.
 	CommonWords int     `json:"common_words"`
 	CommonShare float64 `json:"common_share"`
+	// Unconfirmed counts the engine's pairs in which the reworded
+	// alignment (Chaining.Reworded) found no passage: not listed, and left
+	// out of groups and clusters.
+	Unconfirmed int `json:"unconfirmed,omitempty"`
 }
 
 // NearCopySet is a set of documents that are near-copies of each other:
@@ -223,6 +229,8 @@ type Passage struct {
 	// at a word), not all of it; the offsets and Words are the whole
 	// passage's.
 	TextCut bool `json:"text_cut"`
+	// Explained: why a reworded passage was reported (Chaining.Reworded).
+	Explained *Explained `json:"explained,omitempty"`
 }
 
 // Group is a maximal set of three or more documents that all share Shared units.
@@ -422,6 +430,7 @@ func BuildContext(ctx context.Context, in Input) (*Result, error) {
 		pair           Pair
 		a, b           uint32
 		aSpans, bSpans []span
+		unconfirmed    bool // the reworded alignment found no passage: not listed
 	}
 	textLimit := in.PassageText
 	if textLimit == 0 {
@@ -456,7 +465,10 @@ func BuildContext(ctx context.Context, in Input) (*Result, error) {
 			if in.SideA != nil && in.SideA(int(ep.B)) && !in.SideA(int(ep.A)) {
 				r.a, r.b, first, second = ep.B, ep.A, b, a
 			}
-			if errs[gi] = alignPair(&r.pair, &r.aSpans, &r.bSpans, in.Chaining, first, second, int(ep.Shared), textLimit); errs[gi] != nil {
+			errs[gi] = alignPair(&r.pair, &r.aSpans, &r.bSpans, in.Chaining, first, second, int(ep.Shared), textLimit)
+			if errors.Is(errs[gi], errUnconfirmed) {
+				errs[gi], r.unconfirmed = nil, true
+			} else if errs[gi] != nil {
 				return
 			}
 			if in.Progress != nil {
@@ -477,6 +489,10 @@ func BuildContext(ctx context.Context, in Input) (*Result, error) {
 	if err := errors.Join(errs...); err != nil {
 		return nil, err
 	}
+	rankedPairs, unconfirmed := dropUnconfirmed(rankedPairs, func(r ranked) bool { return r.unconfirmed },
+		func(r ranked) pairs.Pair {
+			return pairs.Pair{A: min(r.a, r.b), B: max(r.a, r.b), Shared: uint32(r.pair.Shared)}
+		})
 	reusedSpans := make([][]span, n)
 	for k := range rankedPairs {
 		r := &rankedPairs[k]
@@ -592,13 +608,16 @@ func BuildContext(ctx context.Context, in Input) (*Result, error) {
 	}
 	groupsInSets := 0
 	for _, g := range eng.Groups {
+		if unconfirmed.splits(g.Docs) {
+			continue
+		}
 		if k := inSet[g.Docs[0]]; k > 0 && !slices.ContainsFunc(g.Docs, func(d uint32) bool { return inSet[d] != k }) {
 			groupsInSets++
 			continue
 		}
 		res.Groups = append(res.Groups, Group{Documents: paths(g.Docs), Shared: int(g.Shared)})
 	}
-	for _, c := range eng.Clusters {
+	for _, c := range unconfirmed.clusters(eng, n) {
 		res.Clusters = append(res.Clusters, Cluster{Documents: paths(c)})
 	}
 	res.NearCopies = make([]NearCopySet, 0, len(eng.NearCopies))
@@ -630,6 +649,7 @@ func BuildContext(ctx context.Context, in Input) (*Result, error) {
 		GroupsNotListed:   groupsInSets,
 		CommonWords:       commonWords,
 		CommonShare:       fraction(commonWords, totalWords),
+		Unconfirmed:       len(unconfirmed.dropped),
 	}
 	return res, nil
 }
@@ -901,6 +921,9 @@ func (in *Input) text(id uint32) (*quoted, error) {
 // fills p with them and its scores; aSpans and bSpans get the passages'
 // byte spans in each document.
 func alignPair(p *Pair, aSpans, bSpans *[]span, ch *Chaining, a, b *quoted, shared, textLimit int) error {
+	if ch != nil && ch.Reworded != nil {
+		return alignReworded(p, aSpans, bSpans, ch, a, b, shared, textLimit)
+	}
 	da, db := a.doc, b.doc
 	da2, db2 := *da, *db
 	da2.Text, da2.Units = a.text, a.units

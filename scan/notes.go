@@ -66,7 +66,7 @@ func UnitSettings(s *report.Settings, opt shingle.Options, ch *report.Chaining) 
 	s.SkipReferences = opt.SkipReferences
 	if opt.Unit == shingle.UnitWords {
 		s.MinWords = opt.ShingleWords // every shingle has K words
-		s.Shingles = &report.ShingleSettings{Words: opt.ShingleWords, Winnow: opt.Winnow, Gap: ch.Gap, MinPassage: ch.MinWords}
+		s.Shingles = &report.ShingleSettings{Words: opt.ShingleWords, Winnow: opt.Winnow, Gap: ch.Gap, MinPassage: ch.MinWords, Reworded: ch.Reworded}
 	}
 }
 

@@ -20,6 +20,13 @@ const (
 	wordsMinShared      = 12 // --min-shared for --unit words
 	sentenceMinShared   = 2  // --min-shared for --unit sentence
 	sentenceMinWords    = 5  // --min-words for --unit sentence
+	rewordedMinShared   = 4  // --min-shared for --unit reworded (candidates the alignment confirms)
+)
+
+// Defaults of the sentence alignment of --unit reworded (EVALUATION.md).
+const (
+	defaultMinSimilarity = 0.4 // cosine and Dice a sentence pair needs to seed a passage
+	defaultSentenceGap   = 5   // sentences
 )
 
 // unitFlags are the flags that choose the unit and what is left out.
@@ -32,15 +39,19 @@ type unitFlags struct {
 	minPassage     int
 	skipQuoted     bool
 	skipReferences bool
+	minSimilarity  float64
+	sentenceGap    int
 }
 
 func (u *unitFlags) register(fs *pflag.FlagSet) {
 	u.fs = fs
-	fs.StringVar(&u.unit, "unit", "sentence", "what is compared: sentence (whole sentences, exact after normalization) or\nwords (every run of --words consecutive words; catches edited copies)")
+	fs.StringVar(&u.unit, "unit", "sentence", "what is compared: sentence (whole sentences, exact after normalization),\nwords (every run of --words consecutive words; catches edited copies) or\nreworded (word runs find candidates, sentences sharing content words confirm them; catches reworded copies)")
 	fs.IntVar(&u.words, "words", defaultShingleWords, "--unit words: `K`, the words in one shingle")
 	fs.IntVar(&u.winnow, "winnow", defaultWinnow, "--unit words: keep only the minimum fingerprint of each window of `W` shingles\n(about 2/(W+1) of them; any shared run of W+K-1 words is still found; 0 keeps all)")
 	fs.IntVar(&u.gap, "gap", defaultGap, "--unit words: matches merge into one passage across gaps of up to `G` words in both documents")
 	fs.IntVar(&u.minPassage, "min-passage", defaultMinPassage, "--unit words: a passage of fewer than `N` words is not shown (unless it is the pair's largest)")
+	fs.Float64Var(&u.minSimilarity, "min-similarity", defaultMinSimilarity, "--unit reworded: cosine and Dice of content words a sentence pair needs to seed a passage (0 to 1)")
+	fs.IntVar(&u.sentenceGap, "sentence-gap", defaultSentenceGap, "--unit reworded: seeds within `N` sentences of each other in both documents join one passage")
 	fs.BoolVar(&u.skipQuoted, "skip-quoted", false, "text inside quotation marks (\"…\", “…”, „…“, «…», ‚…‘, and '…' where unambiguous) gives no unit")
 	fs.BoolVar(&u.skipReferences, "skip-references", false, "a trailing references / bibliography / works cited section, found by its heading, gives no unit")
 }
@@ -49,18 +60,33 @@ func (u *unitFlags) register(fs *pflag.FlagSet) {
 // when they were not given: their defaults depend on --unit.
 func (u *unitFlags) resolve(f *scanFlags) error {
 	switch u.unit {
-	case "sentence", "words":
+	case "sentence", "words", "reworded":
 	default:
-		return fmt.Errorf("--unit %q: want sentence or words", u.unit)
+		return fmt.Errorf("--unit %q: want sentence, words or reworded", u.unit)
 	}
-	words := u.unit == "words"
-	for _, name := range []string{"words", "winnow", "gap", "min-passage"} {
+	reworded := u.unit == "reworded"
+	words := u.unit == "words" || reworded
+	for _, name := range []string{"words", "winnow", "min-passage"} {
 		if !words && u.fs.Changed(name) {
-			return fmt.Errorf("--%s applies to --unit words only", name)
+			return fmt.Errorf("--%s applies to --unit words and reworded only", name)
+		}
+	}
+	if u.unit != "words" && u.fs.Changed("gap") {
+		return fmt.Errorf("--gap applies to --unit words only (--unit reworded: --sentence-gap)")
+	}
+	for _, name := range []string{"min-similarity", "sentence-gap"} {
+		if !reworded && u.fs.Changed(name) {
+			return fmt.Errorf("--%s applies to --unit reworded only", name)
 		}
 	}
 	if words && u.fs.Changed("min-words") {
-		return fmt.Errorf("--min-words applies to --unit sentence only (with --unit words every unit has --words words)")
+		return fmt.Errorf("--min-words applies to --unit sentence only (with --unit %s every unit has --words words)", u.unit)
+	}
+	if u.minSimilarity <= 0 || u.minSimilarity > 1 {
+		return fmt.Errorf("--min-similarity must be above 0 and at most 1, not %g", u.minSimilarity)
+	}
+	if u.sentenceGap < 1 {
+		return fmt.Errorf("--sentence-gap must be 1 or more, not %d", u.sentenceGap)
 	}
 	if u.words < 1 || u.words > 64 {
 		return fmt.Errorf("--words must be between 1 and 64, not %d", u.words)
@@ -79,6 +105,9 @@ func (u *unitFlags) resolve(f *scanFlags) error {
 		if words {
 			f.minShared = wordsMinShared
 		}
+		if reworded {
+			f.minShared = rewordedMinShared
+		}
 	}
 	if !u.fs.Changed("min-words") {
 		f.minWords = sentenceMinWords
@@ -90,11 +119,14 @@ func (u *unitFlags) resolve(f *scanFlags) error {
 func (u *unitFlags) apply(cfg *scan.Config) {
 	cfg.Shingle.SkipQuoted = u.skipQuoted
 	cfg.Shingle.SkipReferences = u.skipReferences
-	if u.unit != "words" {
+	if u.unit != "words" && u.unit != "reworded" {
 		return
 	}
 	cfg.Shingle.Unit = shingle.UnitWords
 	cfg.Shingle.ShingleWords = u.words
 	cfg.Shingle.Winnow = u.winnow
 	cfg.Chaining = &report.Chaining{Gap: u.gap, MinWords: u.minPassage}
+	if u.unit == "reworded" {
+		cfg.Chaining.Reworded = &report.Reworded{MinSimilarity: u.minSimilarity, Gap: u.sentenceGap}
+	}
 }

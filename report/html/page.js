@@ -265,6 +265,15 @@
         var li = el("li", {"data-n": it.n}, el("span", {"class": "num"}, String(it.n)), " ",
           it.aid ? link(it.aid, "A " + it.aw) : "A " + it.aw, " · ",
           it.bid ? link(it.bid, "B " + it.bw) : "B " + it.bw, " · " + it.size + " ", el("q", null, it.q));
+        if (it.x) {
+          var ex = el("div", {"class": "explain"}, el("p", {"class": "small"}, it.x.h));
+          [["A", it.x.a], ["B", it.x.b]].forEach(function (sd) {
+            var p = el("p", null, el("b", null, sd[0]), " ");
+            sd[1].forEach(function (pc) { if (pc[1]) { p.appendChild(el("b", {"class": "sw"}, pc[0])); } else { add(p, pc[0]); } });
+            ex.appendChild(p);
+          });
+          li.appendChild(ex);
+        }
         if (!it.aid) { add(li, " "); li.appendChild(el("em", null, "(A's text around it is not shown: page limit)")); }
         if (!it.bid) { add(li, " "); li.appendChild(el("em", null, "(B's text around it is not shown: page limit)")); }
         list.appendChild(li);

@@ -74,7 +74,10 @@ func main() {
 	}
 }
 
-var levels = []string{"none", "format", "light", "heavy"}
+// levels are the obfuscation levels; the first four draw their samples
+// from one permutation (each sample used once), the rewrite level from a
+// second one of its own, so that adding it changed none of the others.
+var levels = []string{"none", "format", "light", "heavy", "rewrite"}
 
 // template is the invented notice every generated document starts with.
 const template = `Submitted to the Harrowgate Review Board under the terms of the standing
@@ -119,13 +122,17 @@ func run() error {
 	if err != nil {
 		return err
 	}
-	need := len(levels) * (2**nCases + *nClean)
+	need := (len(levels) - 1) * (2**nCases + *nClean)
 	if need > len(samples) {
 		return fmt.Errorf("%d samples needed (-cases %d, -clean %d), the corpus has %d", need, *nCases, *nClean, len(samples))
 	}
 	rng := rand.New(rand.NewPCG(*seed, 0x5eed))
 	order := rng.Perm(len(samples))
 	vocab := vocabulary(samples)
+	syn, err := loadSynonyms(wordnetDir)
+	if err != nil {
+		return err
+	}
 
 	work := *keep
 	if work == "" {
@@ -142,6 +149,12 @@ func run() error {
 	var corpora []*corpusOf
 	next := 0
 	for _, level := range levels {
+		if level == "rewrite" {
+			// Its own generator and order of samples: the other levels'
+			// corpora are those they were before it was added.
+			rng = rand.New(rand.NewPCG(*seed, 0x4e3d17e))
+			order, next = rng.Perm(len(samples)), 0
+		}
 		take := func(n int) []brown.Sample {
 			out := make([]brown.Sample, n)
 			for i := range out {
@@ -150,7 +163,7 @@ func run() error {
 			}
 			return out
 		}
-		c, err := generate(level, filepath.Join(work, level), take(*nCases), take(*nCases), take(*nClean), vocab, rng)
+		c, err := generate(level, filepath.Join(work, level), take(*nCases), take(*nCases), take(*nClean), vocab, syn, rng)
 		if err != nil {
 			return err
 		}
@@ -194,6 +207,11 @@ func wordsSetting(k, w, g, mp int) setting {
 			"--min-passage", fmt.Sprint(mp)}}
 }
 
+func rewordedSetting(k int, sim float64, gap int) setting {
+	return setting{fmt.Sprintf("reworded K=%d similarity %.2g sentence gap %d", k, sim, gap),
+		[]string{"--unit", "reworded", "--words", fmt.Sprint(k), "--min-similarity", fmt.Sprint(sim), "--sentence-gap", fmt.Sprint(gap)}}
+}
+
 type evaluator struct {
 	bin     string
 	corpora []*corpusOf
@@ -232,6 +250,18 @@ type measures struct {
 }
 
 func (m measures) meets(level string) bool { return m.pan.Plagdet >= target(level) && m.pairP >= 0.98 }
+
+// rewordedTarget is the plagdet the reworded mode is asked for at a level
+// (issue 15), with pair precision of at least 0.99.
+func rewordedTarget(level string) float64 {
+	switch level {
+	case "light":
+		return 0.95
+	case "heavy", "rewrite":
+		return 0.75
+	}
+	return 0.98
+}
 
 // measure scores the pairs of o with at least minShared shared units.
 func (c *corpusOf) measure(o outcome, minShared int) measures {
@@ -318,7 +348,7 @@ func target(level string) float64 {
 	switch level {
 	case "light":
 		return 0.85
-	case "heavy":
+	case "heavy", "rewrite":
 		return 0.5
 	}
 	return 0.95
@@ -329,8 +359,8 @@ func (ev *evaluator) sweeps() error {
 	header := func(title string) {
 		fmt.Println("### " + title)
 		fmt.Println()
-		fmt.Println("| setting | --min-shared | plagdet none | format | light | heavy | pair precision (lowest level) | pair recall (lowest level) | template passages |")
-		fmt.Println("|---|---|---|---|---|---|---|---|---|")
+		fmt.Println("| setting | --min-shared | plagdet none | format | light | heavy | rewrite | pair precision (lowest level) | pair recall (lowest level) | template passages |")
+		fmt.Println("|---|---|---|---|---|---|---|---|---|---|")
 	}
 	header("Sentence units: --min-words and --min-shared")
 	for _, mw := range []int{3, 5, 7} {
@@ -360,6 +390,22 @@ func (ev *evaluator) sweeps() error {
 		}
 	}
 	fmt.Println()
+	header(fmt.Sprintf("Reworded: K and --min-shared (similarity %.2g, sentence gap %d, P=%d)", rewordedSimilarity, rewordedGap, defaultP))
+	for _, k := range []int{4, 5, 6} {
+		if err := ev.sweepRow(rewordedSetting(k, rewordedSimilarity, rewordedGap), []int{2, 3, 4, 6, 8, 12}); err != nil {
+			return err
+		}
+	}
+	fmt.Println()
+	header(fmt.Sprintf("Reworded: --min-similarity and --sentence-gap (K=%d, min-shared %d, P=%d)", defaultK, rewordedMinShared, defaultP))
+	for _, sim := range []float64{0.3, 0.4, 0.5} {
+		for _, g := range []int{2, 3, 5, 8} {
+			if err := ev.sweepRow(rewordedSetting(defaultK, sim, g), []int{rewordedMinShared}); err != nil {
+				return err
+			}
+		}
+	}
+	fmt.Println()
 	header(fmt.Sprintf("Word shingles: winnowing W (K=%d, G=%d, P=%d; --min-shared scaled by about 2/(W+1))", defaultK, defaultG, defaultP))
 	for _, w := range []int{2, 4, 8} {
 		ms := []int{max(1, defaultMinShared*2/(w+1)), defaultMinShared}
@@ -378,6 +424,10 @@ const (
 	defaultG         = 50
 	defaultP         = 24
 	defaultMinShared = 12
+
+	rewordedMinShared  = 4
+	rewordedSimilarity = 0.4
+	rewordedGap        = 5
 )
 
 func (ev *evaluator) sweepRow(s setting, thresholds []int) error {
@@ -422,9 +472,11 @@ func (ev *evaluator) defaults() error {
 		set       setting
 		minShared int
 		words     bool
+		reworded  bool
 	}{
-		{setting{"sentence (min-shared 2, min-words 5)", []string{"--unit", "sentence"}}, 0, false},
-		{setting{fmt.Sprintf("words (K=%d, W=0, G=%d, P=%d, min-shared %d)", defaultK, defaultG, defaultP, defaultMinShared), []string{"--unit", "words"}}, 0, true},
+		{setting{"sentence (min-shared 2, min-words 5)", []string{"--unit", "sentence"}}, 0, false, false},
+		{setting{fmt.Sprintf("words (K=%d, W=0, G=%d, P=%d, min-shared %d)", defaultK, defaultG, defaultP, defaultMinShared), []string{"--unit", "words"}}, 0, true, false},
+		{setting{fmt.Sprintf("reworded (K=%d, P=%d, min-shared %d, similarity %.2g, sentence gap %d)", defaultK, defaultP, rewordedMinShared, rewordedSimilarity, rewordedGap), []string{"--unit", "reworded"}}, 0, false, true},
 	} {
 		cs := cost{name: s.set.name}
 		for _, c := range ev.corpora {
@@ -440,7 +492,13 @@ func (ev *evaluator) defaults() error {
 			}
 			m := c.measure(best, 0)
 			tgt, met := "—", "—"
-			if s.words || c.level == "none" || c.level == "format" {
+			if s.reworded {
+				tgt = fmt.Sprintf("plagdet ≥ %.2f, pair P ≥ 0.99", rewordedTarget(c.level))
+				met = "no"
+				if m.pan.Plagdet >= rewordedTarget(c.level) && m.pairP >= 0.99 && m.templatePassages == 0 {
+					met = "yes"
+				}
+			} else if s.words || c.level == "none" || c.level == "format" {
 				tgt = fmt.Sprintf("plagdet ≥ %.2f, pair P ≥ 0.98", target(c.level))
 				met = "no"
 				if m.meets(c.level) && m.templatePassages == 0 {
@@ -521,7 +579,7 @@ func isLowerWord(w string) bool {
 }
 
 // generate writes one level's corpus to dir.
-func generate(level, dir string, susp, src, clean []brown.Sample, vocab []string, rng *rand.Rand) (*corpusOf, error) {
+func generate(level, dir string, susp, src, clean []brown.Sample, vocab []string, syn synonyms, rng *rand.Rand) (*corpusOf, error) {
 	c := &corpusOf{level: level, dir: dir, tmpl: len(template) + 2}
 	sp := shingle.New(shingle.Options{MinWords: 1})
 	add := func(name, body string) int {
@@ -541,7 +599,7 @@ func generate(level, dir string, susp, src, clean []brown.Sample, vocab []string
 		for _, u := range units[first : first+n] {
 			sentences = append(sentences, srcText[u.Start:u.End])
 		}
-		copied := obfuscate(level, srcText[start:end], sentences, vocab, rng)
+		copied := obfuscate(level, srcText[start:end], sentences, vocab, syn, rng)
 
 		body := susp[i].Text
 		paras := paragraphEnds(body)
@@ -583,7 +641,7 @@ func paragraphEnds(text string) []int {
 }
 
 // obfuscate rewrites a passage (its text, and its sentences) at level.
-func obfuscate(level, passage string, sentences []string, vocab []string, rng *rand.Rand) string {
+func obfuscate(level, passage string, sentences []string, vocab []string, syn synonyms, rng *rand.Rand) string {
 	switch level {
 	case "none":
 		return passage
@@ -598,6 +656,8 @@ func obfuscate(level, passage string, sentences []string, vocab []string, rng *r
 		return edit(sentences, 0.10, false, vocab, rng)
 	case "heavy":
 		return edit(sentences, 0.30, true, vocab, rng)
+	case "rewrite":
+		return rewrite(sentences, vocab, syn, rng)
 	}
 	return passage // levels are fixed above; an unknown one copies verbatim
 }
@@ -741,4 +801,108 @@ func (ev *evaluator) try(args []string) error {
 			m.pan.Precision, m.pan.Recall, m.pan.Granularity, m.pan.Plagdet, m.templatePassages)
 	}
 	return nil
+}
+
+// rewrite is the rewrite level: in every sentence about a third of the
+// words edited (half of the edits a WordNet synonym for a word that has
+// one, a quarter deletions, a quarter insertions of a corpus word; a
+// synonym edit with no word to replace deletes instead), then some long
+// sentences split in two and some neighbours joined into one, then every
+// sentence shuffled.
+func rewrite(sentences []string, vocab []string, syn synonyms, rng *rand.Rand) string {
+	type sentence struct {
+		toks []string
+		tail string
+	}
+	var out []sentence
+	for _, s := range sentences {
+		toks := strings.Fields(s)
+		last := toks[len(toks)-1]
+		tail := last
+		if k := strings.LastIndexFunc(last, func(r rune) bool { return unicode.IsLetter(r) || unicode.IsDigit(r) }); k >= 0 {
+			_, size := utf8.DecodeRuneInString(last[k:])
+			tail = last[k+size:]
+			toks[len(toks)-1] = last[:k+size]
+		} else {
+			toks = toks[:len(toks)-1]
+		}
+		x := float64(len(toks)) / 3
+		n := int(x)
+		if rng.Float64() < x-float64(n) {
+			n++
+		}
+		for range n {
+			if len(toks) == 0 {
+				break
+			}
+			switch r := rng.IntN(4); {
+			case r < 2:
+				// A synonym for one of the words that have one.
+				var can []int
+				for i, w := range toks {
+					if len(syn[strings.ToLower(w)]) > 0 {
+						can = append(can, i)
+					}
+				}
+				if len(can) > 0 {
+					i := can[rng.IntN(len(can))]
+					vs := syn[strings.ToLower(toks[i])]
+					v := vs[rng.IntN(len(vs))]
+					if first, _ := utf8.DecodeRuneInString(toks[i]); unicode.IsUpper(first) {
+						v = title(v)
+					}
+					toks[i] = v
+					continue
+				}
+				fallthrough
+			case r == 2:
+				if len(toks) > 1 {
+					i := rng.IntN(len(toks))
+					toks = slices.Delete(toks, i, i+1)
+				}
+			default:
+				i := rng.IntN(len(toks) + 1)
+				toks = slices.Insert(toks, i, vocab[rng.IntN(len(vocab))])
+			}
+		}
+		if len(toks) == 0 {
+			continue
+		}
+		if tail == "" {
+			tail = "."
+		}
+		// Split a long sentence in two, a quarter of the time.
+		if len(toks) >= 14 && rng.Float64() < 0.25 {
+			cut := 5 + rng.IntN(len(toks)-9)
+			first := slices.Clone(toks[:cut])
+			first[len(first)-1] = strings.TrimRight(first[len(first)-1], ",;:")
+			out = append(out, sentence{first, "."})
+			toks = toks[cut:]
+		}
+		out = append(out, sentence{toks, tail})
+	}
+	// Join a sentence to the one before it, a fifth of the time.
+	var joined []sentence
+	for _, s := range out {
+		if n := len(joined); n > 0 && rng.Float64() < 0.2 {
+			prev := &joined[n-1]
+			w := s.toks[0]
+			if w != "I" && !strings.HasPrefix(w, "I'") {
+				r, size := utf8.DecodeRuneInString(w)
+				s.toks[0] = string(unicode.ToLower(r)) + w[size:]
+			}
+			prev.toks[len(prev.toks)-1] += ","
+			prev.toks = append(append(prev.toks, "and"), s.toks...)
+			prev.tail = s.tail
+			continue
+		}
+		joined = append(joined, s)
+	}
+	rng.Shuffle(len(joined), func(i, j int) { joined[i], joined[j] = joined[j], joined[i] })
+	parts := make([]string, len(joined))
+	for i, s := range joined {
+		s.toks[0] = title(s.toks[0])
+		parts[i] = strings.Join(s.toks, " ") + s.tail
+	}
+	return strings.Join(parts, " ")
 }
