@@ -526,21 +526,7 @@ func (g *groupSearch) adjacentAfter(tail []int32, x int, root bool) []int32 {
 func (g *groupSearch) within(lmfi []int32, start, i int32) []int32 {
 	h := g.holding[i]
 	from, _ := slices.BinarySearch(h, start)
-	var out []int32
-	a, b := 0, 0
-	for a < len(lmfi) && b < from {
-		switch {
-		case lmfi[a] < h[b]:
-			a++
-		case lmfi[a] > h[b]:
-			b++
-		default:
-			out = append(out, lmfi[a])
-			a++
-			b++
-		}
-	}
-	return append(out, h[from:]...)
+	return append(mergeCommon(nil, lmfi, h[:from]), h[from:]...)
 }
 
 // covers says whether one of the found sets sets holds every item of

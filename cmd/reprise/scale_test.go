@@ -12,11 +12,8 @@ import (
 	"sync"
 	"testing"
 
-	"reprise/internal/brown"
-	"reprise/internal/plant"
 	"reprise/report"
 	"reprise/scan"
-	"reprise/shingle"
 )
 
 // scanAt runs the scan of paths with --memory SIZE in process, with the
@@ -87,23 +84,7 @@ func TestScanSameAtEveryBudget(t *testing.T) {
 		}
 	})
 	t.Run("Brown corpus with planted copies", func(t *testing.T) {
-		samples, err := brown.Load(dataDir(t, "brown"))
-		if err != nil {
-			t.Fatal(err)
-		}
-		texts := make([]string, len(samples))
-		for i, s := range samples {
-			texts[i] = s.Text
-		}
-		sizes := []int{3, 4, 5, 6, 7, 8, 3, 4, 5, 6}
-		copies := plant.Plant(rand.New(rand.NewPCG(5, 5)), shingle.New(shingle.Options{}), texts, sizes)
-		if len(copies) != len(sizes) {
-			t.Fatalf("planted %d of %d copies", len(copies), len(sizes))
-		}
-		dir := t.TempDir()
-		for i := range samples {
-			writeFile(t, filepath.Join(dir, samples[i].Name+".txt"), texts[i])
-		}
+		dir, _, copies := plantedBrown(t, rand.New(rand.NewPCG(5, 5)), []int{3, 4, 5, 6, 7, 8, 3, 4, 5, 6})
 		want, lines := scanAt(t, "0", t.TempDir(), dir)
 		if spilled(lines) {
 			t.Fatalf("the unbounded run spilled: %v", lines)
