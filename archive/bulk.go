@@ -154,9 +154,9 @@ type bulk struct {
 	hashes  map[[32]byte]bool // content of the pending documents
 	paths   map[[32]byte]bool // paths of the pending documents
 	text    int
-	maxText int // a chunk is ingested at this much text
-	maxDocs int // or at this many documents
-	capDocs int // the most maxDocs grows to
+	maxText int    // a chunk is ingested at this much text
+	maxDocs int    // or at this many documents
+	capDocs int    // the most maxDocs grows to
 	next    uint64 // the next ID, once read
 	count   uint64
 	known   bool // next and count are read
