@@ -25,13 +25,13 @@ import (
 
 // Chunks of AddAll: a chunk is ingested once it holds chunkTextBytes of
 // text or its number of documents, whichever comes first. The first chunk
-// holds firstChunkDocs documents, and each next one twice as many as the one
-// before, up to chunkDocs: a small add is not held back for a large chunk,
+// holds firstChunkDocs documents, and each next one half as many again as
+// the one before, up to chunkDocs: a small add is not held back for a large chunk,
 // the first documents are durable early, and the number of ingestions still
 // grows only with the logarithm of a large add (each costs a few fsyncs).
 const (
 	chunkTextBytes = 32 << 20
-	firstChunkDocs = 16
+	firstChunkDocs = 8
 	chunkDocs      = 8192
 )
 
@@ -346,7 +346,7 @@ func (b *bulk) flush() error {
 		b.each(ps[k].i, AddResult{Outcome: Added, ID: ps[k].id})
 	}
 	b.pending = b.pending[:0]
-	b.maxDocs = min(2*b.maxDocs, b.capDocs)
+	b.maxDocs = min(b.maxDocs+b.maxDocs/2, b.capDocs)
 	clear(b.hashes)
 	clear(b.paths)
 	b.text = 0

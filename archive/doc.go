@@ -68,8 +68,8 @@
 //     content is archived goes through Add, after the chunk before it is
 //     ingested. The chunk's files are written in DIR/ingest.tmp; a kill
 //     before their ingestion leaves them there (text included) until the
-//     next writable Open deletes the folder. Chunks grow from 16 documents
-//     by doubling up to 8192 documents or 32 MB of text: a small add is not
+//     next writable Open deletes the folder. Chunks grow from 8 documents
+//     by half each time up to 8192 documents or 32 MB of text: a small add is not
 //     held back, and a large one costs a few dozen ingestions (each a few
 //     fsyncs) and L0 files that pebble's compactions merge.
 //   - One writer: pebble locks the folder's LOCK file (fcntl) for as long as
