@@ -136,6 +136,10 @@ type Archive struct {
 	readOnly bool
 	scratch  []byte
 	flate    *flate.Writer
+	opts     *pebble.Options // as opened, defaults filled in: AddAll writes tables with them
+	fs       vfs.FS
+	// chunkDocs, when set, replaces AddAll's documents per chunk (tests).
+	chunkDocs int
 }
 
 // Open opens (or with opt.Create, creates) the archive in dir.
@@ -185,6 +189,13 @@ func Open(dir string, opt Options) (*Archive, error) {
 		ReadOnly: opt.ReadOnly,
 		Logger:   quietLogger{},
 	}
+	po.EnsureDefaults()
+	if !opt.ReadOnly {
+		// What a killed AddAll left before its ingestion: never part of the archive.
+		if err := os.RemoveAll(filepath.Join(dir, ingestDir)); err != nil {
+			return nil, fmt.Errorf("archive: %w", err)
+		}
+	}
 	db, err := pebble.Open(dir, po)
 	if err != nil {
 		var le *lockError
@@ -193,7 +204,7 @@ func Open(dir string, opt Options) (*Archive, error) {
 		}
 		return nil, fmt.Errorf("archive: open %s: %w", dir, err)
 	}
-	a := &Archive{db: db, dir: dir, readOnly: opt.ReadOnly}
+	a := &Archive{db: db, dir: dir, readOnly: opt.ReadOnly, opts: po, fs: vfs.Default}
 	raw, err := a.get(keySettings)
 	switch {
 	case err == nil:

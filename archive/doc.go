@@ -48,14 +48,30 @@
 //
 // # Nothing lost, nothing left behind
 //
-//   - Atomicity: each document (all of its keys, including the removal of
-//     the version it replaces) is one pebble Batch, applied at once: after a
-//     crash the write-ahead log replays whole batches only, so a document is
-//     in the archive wholly or not at all. Batches are applied without
-//     waiting for fsync; Sync forces the log to disk, and the add command
-//     calls it every 1000 documents and before it reports success. A crash
-//     therefore loses at most the documents added since the last sync —
-//     never part of one — and re-running the same add restores them.
+//   - Atomicity: Add writes one document (all of its keys, including the
+//     removal of the version it replaces) as one pebble Batch, applied at
+//     once: after a crash the write-ahead log replays whole batches only, so
+//     a document is in the archive wholly or not at all. Batches are applied
+//     without waiting for fsync; Sync forces the log to disk.
+//   - Chunks: AddAll, the add command's path, writes runs of new documents
+//     (content and path not archived, nor earlier in the run) as table
+//     files, one per key prefix (d, h, m, n, p, t, u: the files of one
+//     ingestion may not overlap), sorted in memory and handed to pebble's
+//     Ingest, which links them into the store and records them in its
+//     MANIFEST in one step, synced. The unit of atomicity of AddAll is
+//     therefore the chunk: after a crash each chunk is in the archive
+//     wholly or not at all, and durable once AddAll has told of its
+//     documents; re-running the same add skips what is there and adds the
+//     rest. A chunk's postings are merge operands, one per fingerprint,
+//     holding the chunk's IDs in order, exactly as the operands Add would
+//     write folded together. A document that replaces a version or whose
+//     content is archived goes through Add, after the chunk before it is
+//     ingested. The chunk's files are written in DIR/ingest.tmp; a kill
+//     before their ingestion leaves them there (text included) until the
+//     next writable Open deletes the folder. Chunks grow from 8 documents
+//     by half each time up to 8192 documents or 32 MB of text: a small add is not
+//     held back, and a large one costs a few dozen ingestions (each a few
+//     fsyncs) and L0 files that pebble's compactions merge.
 //   - One writer: pebble locks the folder's LOCK file (fcntl) for as long as
 //     the store is open, read-only or not. A second process gets an error
 //     that names that file.
@@ -93,8 +109,12 @@
 //
 // # Cost and the alternative rejected
 //
-// An add costs one batch of about 3 + u keys for a document with u distinct
-// units, plus the flate compression of its text. A check of a document with
+// Add costs one batch of about 3 + u keys for a document with u distinct
+// units, plus the flate compression of its text (flate.BestSpeed: 2.3 s
+// of CPU instead of 3.4 s at the default level for 110.8 MB of text, for
+// 3% more on disk; BENCHMARKS.md).
+// AddAll compresses on every core and writes its keys once, into table
+// files, instead of through the write-ahead log, the memtable and a flush. A check of a document with
 // u distinct units costs u point lookups; the postings read are bounded by
 // the common-text cap. Loading a candidate costs two point reads and a
 // decompression. The alternative of a flat file of sorted (fingerprint,

@@ -63,37 +63,29 @@ func ReadBatch(ctx context.Context, paths []string, opt corpus.Options, sopt shi
 	return b, ctx.Err()
 }
 
-// AddBatch adds the batch's documents to ar, one atomic batch each,
-// syncing every 1000 documents and at the end; each, when set, is told the
-// outcome for every document. It returns how many documents had each
-// outcome. Once ctx is done it syncs what was added and returns ctx's
-// error.
+// AddBatch adds the batch's documents to ar with archive.AddAll: new
+// documents are ingested in chunks (each chunk atomic and durable), the
+// others added one atomic batch each; each, when set, is told the outcome
+// for every document, in order, once it is in the archive. It returns how
+// many documents had each outcome. Once ctx is done it syncs what was
+// added and returns ctx's error.
 func AddBatch(ctx context.Context, ar *archive.Archive, b *Batch, each func(d *corpus.Document, r archive.AddResult)) (map[archive.Outcome]int, error) {
-	now := time.Now()
 	counts := map[archive.Outcome]int{}
+	docs := make([]archive.Doc, len(b.Docs))
 	for i := range b.Docs {
-		if err := ctx.Err(); err != nil {
-			return counts, cmp.Or(ar.Sync(), err)
-		}
 		d := &b.Docs[i]
-		r, err := ar.Add(archive.Doc{
+		docs[i] = archive.Doc{
 			Path: d.Path, Format: d.Format, Encoding: d.Encoding, Size: d.Size,
 			Words: b.Stats[i].Words, Notes: d.Notes, Marks: d.Marks, Text: d.Text, UnitList: b.Units[i],
-		}, now)
-		if err != nil {
-			return counts, err
-		}
-		counts[r.Outcome]++
-		if each != nil {
-			each(d, r)
-		}
-		if (i+1)%1000 == 0 {
-			if err := ar.Sync(); err != nil {
-				return counts, err
-			}
 		}
 	}
-	return counts, ar.Sync()
+	err := ar.AddAll(ctx, docs, time.Now(), func(i int, r archive.AddResult) {
+		counts[r.Outcome]++
+		if each != nil {
+			each(&b.Docs[i], r)
+		}
+	})
+	return counts, err
 }
 
 // CheckConfig is an archive check: new documents against everything the

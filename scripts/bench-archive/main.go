@@ -16,6 +16,9 @@
 //	reprise archive --archive DIR check --format json ONE   (-runs times, median)
 //	reprise archive --archive DIR check --format json BATCH (once)
 //
+// With -bin, it measures that binary instead of building ./cmd/reprise:
+// build another revision and run both in turn on the same corpus.
+//
 // A script, never a timed unit test: timings depend on the machine and its
 // load; BENCHMARKS.md records the figures with the machine they came from.
 package main
@@ -49,6 +52,7 @@ func run() error {
 	batch := flag.Int("batch", 1000, "documents in the batch check")
 	work := flag.String("work", filepath.Join(os.TempDir(), "reprise-bench-archive"), "folder for the corpus, the archive and the binary")
 	seed := flag.Uint64("seed", 2026, "corpus seed")
+	prebuilt := flag.String("bin", "", "a reprise binary to measure instead of building ./cmd/reprise (another revision, side by side)")
 	flag.Parse()
 
 	dir, err := brown.Dir()
@@ -63,12 +67,16 @@ func run() error {
 	if err := os.MkdirAll(*work, 0o755); err != nil {
 		return err
 	}
-	bin := filepath.Join(*work, "reprise")
-	build := exec.Command("go", "build", "-o", bin, "./cmd/reprise")
-	build.Stdout, build.Stderr = os.Stderr, os.Stderr
-	if err := build.Run(); err != nil {
-		return fmt.Errorf("go build: %w", err)
+	bin := *prebuilt
+	if bin == "" {
+		bin = filepath.Join(*work, "reprise")
+		build := exec.Command("go", "build", "-o", bin, "./cmd/reprise")
+		build.Stdout, build.Stderr = os.Stderr, os.Stderr
+		if err := build.Run(); err != nil {
+			return fmt.Errorf("go build: %w", err)
+		}
 	}
+	fmt.Printf("binary: %s\n", bin)
 	fmt.Printf("machine: %s/%s, %d cores, %s\n", runtime.GOOS, runtime.GOARCH, runtime.NumCPU(), runtime.Version())
 
 	corpus := filepath.Join(*work, fmt.Sprintf("corpus-%d-%d", *n, *seed))
