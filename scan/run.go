@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"os"
+	"runtime/debug"
 	"slices"
 	"strings"
 	"sync"
@@ -179,6 +180,7 @@ func run(ctx context.Context, cfg Config) (*report.Result, error) {
 	}
 
 	progress(Progress{Stage: StageCount, Total: len(docs)})
+	letGo(cfg.Memory)
 	eng, err := pairs.CountContext(ctx, in, cfg.Pairs)
 	if err != nil {
 		return nil, err
@@ -258,6 +260,20 @@ func run(ctx context.Context, cfg Config) (*report.Result, error) {
 		return nil, err
 	}
 	return res, nil
+}
+
+// letGo collects the garbage of the stage that ended and returns it to
+// the system before the next stage makes its large buffers, when the run
+// has a memory bound (memory > 0). Without it the reading's garbage (its
+// per-file results and the walk's names, some 300 MB at 10^6 documents)
+// was still held when the engine made its sorting buffers (another 300
+// MB): with the heap at the runtime's soft limit, the collector lagged
+// and the peak RSS went 65 MiB over a bound of 1 GiB. It costs one full
+// collection (about a second at 10^6 documents).
+func letGo(memory int64) {
+	if memory > 0 {
+		debug.FreeOSMemory()
+	}
 }
 
 // giveTexts fills res.Texts for the documents of the first pairs ranked
