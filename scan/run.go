@@ -198,6 +198,7 @@ func run(ctx context.Context, cfg Config) (*report.Result, error) {
 			Detail: fmt.Sprintf("counted in %d sorted runs on disk (%d MiB written), %d ranges of pairs", eng.Spill.Runs, eng.Spill.BytesWritten>>20, eng.Spill.Ranges)})
 	}
 
+	letGo(cfg.Memory) // the fingerprints and the engine's buffers, before the report's documents come
 	quoted := quotedDocuments(eng, len(docs), cfg.NearCopyPairs)
 	progress(Progress{Stage: StageReread, Total: len(quoted)})
 	store, err := newQuotedStore(cfg.Pairs.TempDir, quotedFit(cfg.Memory, reportHeldBytes(docs, digests), digests, quoted))
@@ -268,8 +269,9 @@ func run(ctx context.Context, cfg Config) (*report.Result, error) {
 // per-file results and the walk's names, some 300 MB at 10^6 documents)
 // was still held when the engine made its sorting buffers (another 300
 // MB): with the heap at the runtime's soft limit, the collector lagged
-// and the peak RSS went 65 MiB over a bound of 1 GiB. It costs one full
-// collection (about a second at 10^6 documents).
+// and the peak RSS went 65 MiB over a bound of 1 GiB; the same holds for
+// the fingerprints and the engine's buffers when the report's documents
+// come. It costs one full collection (about a second at 10^6 documents).
 func letGo(memory int64) {
 	if memory > 0 {
 		debug.FreeOSMemory()
