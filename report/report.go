@@ -372,7 +372,6 @@ func BuildContext(ctx context.Context, in Input) (*Result, error) {
 		Caution:   Caution,
 		Settings:  in.Settings,
 		Documents: make([]Document, n),
-		Texts:     make([]SourceText, n),
 		Skipped:   slices.Clone(in.Skipped),
 		Common:    make([]Common, 0, len(eng.Common)),
 		Pairs:     make([]Pair, 0, len(eng.Pairs)),
@@ -534,6 +533,9 @@ func BuildContext(ctx context.Context, in Input) (*Result, error) {
 		return nil, err
 	}
 
+	if in.Load == nil {
+		res.Texts = make([]SourceText, n)
+	} // else the caller gives the texts a renderer needs (Loader)
 	twins := identicalTexts(in.Docs)
 	totalUnits, totalWords := 0, 0
 	for i := range in.Docs {
@@ -555,9 +557,6 @@ func BuildContext(ctx context.Context, in Input) (*Result, error) {
 		}
 		totalUnits += d.unitCount()
 		totalWords += d.Words
-	}
-	if in.Load != nil {
-		res.Texts = nil // the caller gives the texts a renderer needs (Loader)
 	}
 
 	// Each common unit is quoted from its first holder, each holder loaded

@@ -39,11 +39,15 @@
 //
 // # Memory
 //
-// Config.Memory bounds what a run holds. The documents' digests (names,
-// notes, fingerprints) are charged first (heldBytes); the engine gets the
-// rest and spills to disk when its counting does not fit; the quoted
-// documents are kept in memory only when they fit in half of what is left.
-// The result is the same at every bound.
+// Config.Memory bounds what a run holds. An eighth of it is left to the Go
+// runtime (the room in its spans, its metadata, the collector's margin
+// under the soft limit the command line sets to the bound); the documents'
+// digests (names, notes, fingerprints) are charged next (heldBytes); the
+// engine gets the rest and spills to disk when its counting does not fit.
+// Once it has counted, the run keeps only the report's view of each
+// document (reportHeldBytes), and the quoted documents are kept in memory
+// only when they fit in half of what is left. The result is the same at
+// every bound.
 //
 // # Trade-offs
 //

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"os"
+	"runtime/debug"
 	"slices"
 	"strings"
 	"sync"
@@ -127,7 +128,7 @@ func run(ctx context.Context, cfg Config) (*report.Result, error) {
 		return nil, err
 	}
 	defer spool.close()
-	docs, digests, skipped, err := corpus.ReadEachContext(ctx, cfg.Paths, cfg.Corpus, func(d *corpus.Document, text *corpus.Loan) docDigest {
+	docs, digests, skipped, err := corpus.ReadEachContext(ctx, cfg.Paths, cfg.Corpus, func(d *corpus.Document, text *corpus.Loan) *docDigest {
 		g := splitters.digest(d, text, effective, cfg.keepText, spool)
 		progress(Progress{Stage: StageRead, Done: int(read.Add(1))})
 		return g
@@ -179,6 +180,7 @@ func run(ctx context.Context, cfg Config) (*report.Result, error) {
 	}
 
 	progress(Progress{Stage: StageCount, Total: len(docs)})
+	letGo(cfg.Memory)
 	eng, err := pairs.CountContext(ctx, in, cfg.Pairs)
 	if err != nil {
 		return nil, err
@@ -196,9 +198,10 @@ func run(ctx context.Context, cfg Config) (*report.Result, error) {
 			Detail: fmt.Sprintf("counted in %d sorted runs on disk (%d MiB written), %d ranges of pairs", eng.Spill.Runs, eng.Spill.BytesWritten>>20, eng.Spill.Ranges)})
 	}
 
+	letGo(cfg.Memory) // the fingerprints and the engine's buffers, before the report's documents come
 	quoted := quotedDocuments(eng, len(docs), cfg.NearCopyPairs)
 	progress(Progress{Stage: StageReread, Total: len(quoted)})
-	store, err := newQuotedStore(cfg.Pairs.TempDir, quotedFit(cfg.Memory, held, digests, quoted))
+	store, err := newQuotedStore(cfg.Pairs.TempDir, quotedFit(cfg.Memory, reportHeldBytes(docs, digests), digests, quoted))
 	if err != nil {
 		return nil, err
 	}
@@ -219,7 +222,6 @@ func run(ctx context.Context, cfg Config) (*report.Result, error) {
 		NearCopyPairs: cfg.NearCopyPairs,
 		Progress:      func(done, total int) { progress(Progress{Stage: StageAlign, Done: done, Total: total}) },
 		PassageText:   cfg.PassageText,
-		SideA:         sideA(cfg.sideA, docs),
 		Settings: report.Settings{
 			Version:      cfg.Version,
 			Unit:         "sentence",
@@ -237,13 +239,17 @@ func run(ctx context.Context, cfg Config) (*report.Result, error) {
 	}
 	UnitSettings(&rin.Settings, effective, cfg.Chaining)
 	for i, d := range docs {
-		g := &digests[i]
+		g := digests[i]
 		rin.Docs[i] = report.Doc{
-			Path: d.Path, Format: d.Format, Encoding: d.Encoding, Notes: g.notes,
+			Path: d.Path, Format: d.Format, Encoding: d.Encoding, Notes: g.notes(),
 			Words: int(g.words), UnitCount: int(g.units), Marks: d.Marks,
-			Digest: g.sum, Size: g.size,
+			Digest: g.sum, Size: int(g.size),
 		}
 	}
+	// The report's documents hold all it needs of docs and digests from
+	// here on (at 10^6 documents they take some 230 MB).
+	docs, digests = nil, nil
+	rin.SideA = sideA(cfg.sideA, rin.Docs)
 	for i, s := range skipped {
 		rin.Skipped[i] = report.Skipped{Path: s.Path, Reason: s.Reason}
 	}
@@ -251,16 +257,31 @@ func run(ctx context.Context, cfg Config) (*report.Result, error) {
 	if err != nil {
 		return nil, err
 	}
-	if err := giveTexts(res, docs, store, cfg.TextPairs); err != nil {
+	if err := giveTexts(res, store, cfg.TextPairs); err != nil {
 		return nil, err
 	}
 	return res, nil
 }
 
+// letGo collects the garbage of the stage that ended and returns it to
+// the system before the next stage makes its large buffers, when the run
+// has a memory bound (memory > 0). Without it the reading's garbage (its
+// per-file results and the walk's names, some 300 MB at 10^6 documents)
+// was still held when the engine made its sorting buffers (another 300
+// MB): with the heap at the runtime's soft limit, the collector lagged
+// and the peak RSS went 65 MiB over a bound of 1 GiB; the same holds for
+// the fingerprints and the engine's buffers when the report's documents
+// come. It costs one full collection (about a second at 10^6 documents).
+func letGo(memory int64) {
+	if memory > 0 {
+		debug.FreeOSMemory()
+	}
+}
+
 // giveTexts fills res.Texts for the documents of the first pairs ranked
 // pairs (the HTML page's side-by-side views), from the store; the other
 // documents' texts are marked as not needed.
-func giveTexts(res *report.Result, docs []corpus.Document, store *quotedStore, pairs int) error {
+func giveTexts(res *report.Result, store *quotedStore, pairs int) error {
 	res.Texts = make([]report.SourceText, len(res.Documents))
 	for i := range res.Texts {
 		res.Texts[i].Missing = "not needed for the pairs shown side by side"
@@ -272,9 +293,10 @@ func giveTexts(res *report.Result, docs []corpus.Document, store *quotedStore, p
 	for _, p := range res.Pairs[:min(pairs, len(res.Pairs))] {
 		id[p.A], id[p.B] = -1, -1
 	}
-	for i, d := range docs {
-		if _, ok := id[d.Path]; ok {
-			id[d.Path] = i
+	for i := range res.Documents { // in the order of the run's documents
+		p := res.Documents[i].Path
+		if _, ok := id[p]; ok {
+			id[p] = i
 		}
 	}
 	for _, i := range id {
@@ -291,20 +313,40 @@ func giveTexts(res *report.Result, docs []corpus.Document, store *quotedStore, p
 }
 
 // docDigest is what a scan keeps of a document after splitting it.
+// It is held for every document from the reading to the report (64
+// bytes), so what few documents have is behind a pointer; and it is
+// handed to the reading by pointer, which holds it twice at its end (once
+// per file, then in the run's order: 8 bytes each, not 64).
 type docDigest struct {
 	set   []uint64 // distinct unit fingerprints, sorted: the engine's view
 	sum   uint64   // xxhash64 of the text, to know it when it is read again
-	size  int      // bytes of text
+	spool int64    // where the units are in the run's unitSpool
+	size  uint32   // bytes of text (32 bits, as a unit's offsets into it are: shingle.Unit)
 	words int32
 	units int32 // units in text order
-	spool int64 // where the units are in the run's unitSpool
-	// spooled is how many bytes they take there.
+	// spooled is how many bytes the units take in the unitSpool.
 	spooled uint32
-	notes   []string
+	rare    *digestRare // nil: no notes, not a report
+}
+
+// digestRare is what a digest holds for few documents.
+type digestRare struct {
+	notes []string
 	// report: the text holds the caution every reprise report carries:
 	// an earlier report, not a document (setReportsAside).
 	report bool
 }
+
+// notes are the document's notes (SplitNotes).
+func (g *docDigest) notes() []string {
+	if g.rare == nil {
+		return nil
+	}
+	return g.rare.notes
+}
+
+// isReport reports whether the text is an earlier report of reprise.
+func (g *docDigest) isReport() bool { return g.rare != nil && g.rare.report }
 
 // splitterPool lends each reading worker a Splitter and a unit buffer.
 type splitterPool struct{ pool sync.Pool }
@@ -334,7 +376,7 @@ func (p *splitterPool) put(b *splitterBuf) { p.pool.Put(b) }
 
 // digest splits d's lent text and returns what the scan keeps of it, with
 // its units written to spool; the text is kept only when keepText asks.
-func (p *splitterPool) digest(d *corpus.Document, loan *corpus.Loan, effective shingle.Options, keepText func(path string) bool, spool *unitSpool) docDigest {
+func (p *splitterPool) digest(d *corpus.Document, loan *corpus.Loan, effective shingle.Options, keepText func(path string) bool, spool *unitSpool) *docDigest {
 	text := loan.Text()
 	b, units, st := p.units(text)
 	set := make([]uint64, len(units))
@@ -344,12 +386,16 @@ func (p *splitterPool) digest(d *corpus.Document, loan *corpus.Loan, effective s
 	at, spooled := spool.add(units, &b.enc)
 	p.put(b)
 	slices.Sort(set)
-	set = slices.Clip(slices.Compact(set))
-	g := docDigest{
-		report: isRepriseReport(text),
-		set:    set, sum: xxhash.Sum64String(text), size: len(text),
+	if set = slices.Compact(set); len(set) < cap(set) {
+		set = slices.Clone(set) // the allocation heldBytes charges, not the units'
+	}
+	g := &docDigest{
+		set: set, sum: xxhash.Sum64String(text), size: uint32(len(text)),
 		words: int32(st.Words), units: int32(len(units)), spool: at, spooled: spooled,
-		notes: SplitNotes(d.Notes, st, text, effective),
+	}
+	notes, isReport := SplitNotes(d.Notes, st, text, effective), isRepriseReport(text)
+	if notes != nil || isReport {
+		g.rare = &digestRare{notes: notes, report: isReport}
 	}
 	if keepText != nil && keepText(d.Path) {
 		loan.Keep()
@@ -388,7 +434,7 @@ func quotedDocuments(eng *pairs.Result, n, nearCopyPairs int) []int {
 // reading wrote to spool. A document whose text is not the one first read
 // (it changed, vanished or became unreadable during the run) is an error:
 // its passages' offsets would point into another text.
-func readAgain(ctx context.Context, cfg Config, docs []corpus.Document, digests []docDigest, ids []int, spool *unitSpool, store *quotedStore) error {
+func readAgain(ctx context.Context, cfg Config, docs []corpus.Document, digests []*docDigest, ids []int, spool *unitSpool, store *quotedStore) error {
 	if len(ids) == 0 {
 		return store.done()
 	}
@@ -417,8 +463,8 @@ func readAgain(ctx context.Context, cfg Config, docs []corpus.Document, digests 
 		if cfg.Progress != nil {
 			cfg.Progress(Progress{Stage: StageReread, Done: int(done.Add(1)), Total: len(ids)})
 		}
-		g := &digests[i]
-		if len(text) != g.size || xxhash.Sum64String(text) != g.sum {
+		g := digests[i]
+		if len(text) != int(g.size) || xxhash.Sum64String(text) != g.sum {
 			mu.Lock()
 			differs[d.Path] = true
 			mu.Unlock()
@@ -474,7 +520,7 @@ func readAgain(ctx context.Context, cfg Config, docs []corpus.Document, digests 
 }
 
 // sideA turns a test on paths into report.Input.SideA (nil for nil).
-func sideA(byPath func(string) bool, docs []corpus.Document) func(int) bool {
+func sideA(byPath func(string) bool, docs []report.Doc) func(int) bool {
 	if byPath == nil {
 		return nil
 	}
@@ -504,13 +550,13 @@ func isRepriseReport(text string) bool {
 // setReportsAside moves the documents that are reports of reprise (an
 // earlier run's -o file inside the scanned folder) to the skipped inputs,
 // with the reason, and renumbers the others.
-func setReportsAside(docs []corpus.Document, digests []docDigest, skipped []corpus.Skipped) ([]corpus.Document, []docDigest, []corpus.Skipped) {
-	if !slices.ContainsFunc(digests, func(g docDigest) bool { return g.report }) {
+func setReportsAside(docs []corpus.Document, digests []*docDigest, skipped []corpus.Skipped) ([]corpus.Document, []*docDigest, []corpus.Skipped) {
+	if !slices.ContainsFunc(digests, (*docDigest).isReport) {
 		return docs, digests, skipped
 	}
 	k := 0
 	for i := range docs {
-		if digests[i].report {
+		if digests[i].isReport() {
 			skipped = append(skipped, corpus.Skipped{Path: docs[i].Path, Reason: "a report written by reprise (it holds the report's caution): not read as a document"})
 			continue
 		}

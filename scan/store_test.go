@@ -108,17 +108,18 @@ func TestUnitSpoolGivesBackWhatWasAdded(t *testing.T) {
 }
 
 // TestQuotedFit: the quoted documents are held in memory with no bound,
-// or when they take at most half of what the bound leaves.
+// or when they take at most half of what the bound leaves after the
+// runtime's share (an eighth) and what the report holds.
 func TestQuotedFit(t *testing.T) {
-	digests := []docDigest{{size: 1000, units: 10}, {size: 5000, units: 40}, {size: 3000, units: 20}}
+	digests := []*docDigest{{size: 1000, units: 10}, {size: 5000, units: 40}, {size: 3000, units: 20}}
 	need := quotedBytes(1000, 10) + quotedBytes(3000, 20) // documents 0 and 2: 4720 bytes
 	for _, tc := range []struct {
 		memory, held int64
 		want         bool
 	}{
 		{0, 1 << 40, true},
-		{2*need + 100, 100, true},
-		{2*need + 99, 100, false},
+		{8 * (2*need + 100) / 7, 100, true}, // 8 * 9540 / 7 = 10902: 9540 after its eighth
+		{8*(2*need+100)/7 - 2, 100, false},
 		{100, 200, false},
 	} {
 		if got := quotedFit(tc.memory, tc.held, digests, []int{0, 2}); got != tc.want {

@@ -75,6 +75,10 @@ type options struct {
 	seed   uint64
 	extra  []string
 	copies copyPlan
+	// budgets: measure the scan at each --memory (-budgets) instead of
+	// against the word count, with other as a second binary side by side.
+	budgets []string
+	other   string
 }
 
 // copyPlan replaces documents of a corpus by copies of one text, each with
@@ -102,7 +106,14 @@ func run() error {
 	flag.IntVar(&o.copies.count, "copies", 0, "also measure each size with this many documents replaced by copies of -copy-text, side by side with the corpus without them")
 	copyText := flag.String("copy-text", "", "-copies: the text copied (a text file, or an SPDX license JSON file: its licenseText)")
 	flag.IntVar(&o.copies.edits, "copy-edits", 3, "-copies: words changed in each copy, each in another line")
+	budgets := flag.String("budgets", "", "measure each size at these --memory sizes, comma-separated (e.g. 1GiB,0): wall time, peak RSS against the bound plus 64 MiB, and whether the JSON reports are byte-identical")
+	flag.StringVar(&o.other, "other", "", "-budgets: also run this reprise binary (e.g. built from an earlier commit), alternating with the current build")
 	flag.Parse()
+	for _, b := range strings.Split(*budgets, ",") {
+		if b = strings.TrimSpace(b); b != "" {
+			o.budgets = append(o.budgets, b)
+		}
+	}
 	if o.copies.count > 0 {
 		if err := o.copies.load(*copyText); err != nil {
 			return err
@@ -158,6 +169,9 @@ func run() error {
 
 	if o.copies.count > 0 {
 		return measureCopies(g, bin, o)
+	}
+	if len(o.budgets) > 0 {
+		return measureBudgets(g, bin, o)
 	}
 	var prev *result
 	for _, n := range o.sizes {
