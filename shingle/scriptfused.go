@@ -1,0 +1,244 @@
+package shingle
+
+import (
+	"slices"
+	"unicode/utf8"
+
+	"golang.org/x/text/unicode/norm"
+)
+
+// The fused pass over the script table. For a sentence outside the Latin
+// fused set (fused.go), emit used to walk it twice more after the sentence
+// segmenter: countWords (tableFirstWord segment by segment) and the
+// normalizer (scriptNormal), each decoding every rune and looking it up.
+// fuseScript does both in one walk: one decode (decodeEntry, inline for the
+// one-, two- and three-byte forms) and one table look-up per rune feed the
+// word segmenter, the hyphen joins of countWordsSegments and the
+// normalization of scriptNormal, each run as it runs there.
+//
+// The two walks it replaces skip text in two places, each on its own
+// terms: the counter skips a hyphen (and a line break after it) that joins
+// two words, and the normalizer skips a hyphen and line break after a
+// letter (prepare's rule). Here each keeps its own skip mark (wskip,
+// nskip), so that either may skip bytes the other reads.
+//
+// Anything either walk would hand to the reference (a rune the table
+// marks slow for the word rules or for normalization, a composition or a
+// reordering of marks, invalid UTF-8, a rune above U+FFFF) makes fuseScript
+// give up, and the sentence goes the two-walk way, which stays as it was.
+// TestFuseScriptMatchesTwoWalks checks it against the two walks and the
+// reference on random texts and on the UDHR declarations.
+
+// decodeEntry returns the table entry of the rune at s[i:] and its size,
+// or size 0 when the rune is not in the table: invalid UTF-8, U+FFFD, a
+// rune above U+FFFF (what entryAt calls slowEntry).
+func decodeEntry(s string, i int) (uint32, int) {
+	c := s[i]
+	if c < utf8.RuneSelf {
+		return scriptEntry(rune(c)), 1
+	}
+	if c < 0xE0 {
+		if c >= 0xC2 && i+1 < len(s) && s[i+1]&0xC0 == 0x80 {
+			return scriptEntry(rune(c&0x1F)<<6 | rune(s[i+1]&0x3F)), 2
+		}
+		return 0, 0
+	}
+	if c < 0xF0 && i+2 < len(s) {
+		d, f := s[i+1], s[i+2]
+		if d&0xC0 == 0x80 && f&0xC0 == 0x80 && (c != 0xE0 || d >= 0xA0) && (c != 0xED || d < 0xA0) {
+			if r := rune(c&0x0F)<<12 | rune(d&0x3F)<<6 | rune(f&0x3F); r != utf8.RuneError {
+				return scriptEntry(r), 3
+			}
+		}
+	}
+	return 0, 0
+}
+
+// fuseScript appends the normalized form of s to dst (what
+// normalizer.append gives) and returns it with the number of words of s
+// (what countWords gives), in one walk, when the table decides every rune
+// of s for both. Otherwise ok is false and dst is returned as it was.
+func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
+	base := len(dst)
+	dst = slices.Grow(dst, len(s))
+
+	// The counter (countWordsSegments over tableFirstWord).
+	state := -1     // word segmenter state; -1: the next rune starts a text
+	wordy := false  // the current segment holds a word rune
+	joined := false // the previous word ended in a joining hyphen
+	n := 0
+	wskip := 0 // the counter ignores the runes before this offset
+
+	// The normalizer (scriptNormal).
+	space := false      // a separator since the last written rune
+	prevLetter := false // the last rune kept was a letter
+	prevCCC := -1       // combining class of the last rune kept if a mark, else -1
+	var prev rune       // the last rune kept
+	nskip := 0          // the normalizer ignores the runes before this offset
+
+	for i := 0; i < len(s); {
+		e, size := decodeEntry(s, i)
+		if size == 0 {
+			return dst[:base], 0, false
+		}
+		if i >= wskip {
+			p := int(e & entWB >> entWBShift)
+			if state < 0 {
+				// The first rune of a text (or after a join): tableFirstWord
+				// with state -1.
+				if p == wpSlow {
+					return dst[:base], 0, false
+				}
+				wordy = e&entWordy != 0
+				if i+size < len(s) {
+					if state, _, ok = wordStep(-1, p, s[i+size:]); !ok {
+						return dst[:base], 0, false
+					}
+				}
+			} else {
+				var brk bool
+				if state, brk, ok = wordStep(state, p, s[i+size:]); !ok {
+					return dst[:base], 0, false
+				}
+				switch {
+				case !brk:
+					wordy = wordy || e&entWordy != 0
+				case !wordy:
+					// A segment without a word rune ended before i.
+					joined = false
+					wordy = e&entWordy != 0
+				default:
+					// A word ended before i.
+					if !joined {
+						n++
+					}
+					joined = false
+					if k := hyphenJoin(s, i, size); k > 0 {
+						wskip, state, joined = k, -1, true
+					} else {
+						wordy = e&entWordy != 0
+					}
+				}
+			}
+		}
+		if i < nskip {
+			i += size
+			continue
+		}
+		if size == 1 {
+			c := s[i]
+			if c == '-' && prevLetter {
+				if k := lineBreakJoin(s[i+1:]); k > 0 {
+					nskip = i + 1 + k
+					i++
+					continue
+				}
+			}
+			i++
+			prevCCC, prev = -1, rune(c)
+			if 'A' <= c && c <= 'Z' {
+				c += 'a' - 'A'
+			}
+			prevLetter = 'a' <= c && c <= 'z'
+			if isASCIISeparator(c) {
+				space = true
+				continue
+			}
+			if space && len(dst) > base {
+				dst = append(dst, ' ')
+			}
+			space = false
+			dst = append(dst, c)
+			continue
+		}
+		if e&entNSlow != 0 {
+			return dst[:base], 0, false
+		}
+		kind := e >> entNormShift & 3
+		if kind == normDrop {
+			i += size
+			continue
+		}
+		r := runeOf(s, i, size)
+		if r == 0x2010 && prevLetter {
+			if k := lineBreakJoin(s[i+size:]); k > 0 {
+				nskip = i + size + k
+				i += size
+				continue
+			}
+		}
+		if e&entCompose != 0 && (e&entMark != 0 && prevCCC >= 0 || inRuneList(scriptComposeFirst, prev) >= 0) {
+			return dst[:base], 0, false
+		}
+		prev = r
+		prevLetter = e&entLetter != 0
+		if e&entMark != 0 {
+			ccc := int(norm.NFC.PropertiesString(s[i : i+size]).CCC())
+			if ccc < prevCCC {
+				return dst[:base], 0, false
+			}
+			prevCCC = ccc
+		} else {
+			prevCCC = -1
+		}
+		if kind == normSep {
+			space = true
+			i += size
+			continue
+		}
+		if space && len(dst) > base {
+			dst = append(dst, ' ')
+		}
+		space = false
+		switch d := rune(int32(e) >> entDelta); {
+		case kind == normKeep:
+			dst = append(dst, s[i:i+size]...)
+		case d != 0:
+			dst = utf8.AppendRune(dst, r+d)
+		default:
+			k := inRuneList(scriptFormRunes, r)
+			from := 0
+			if k > 0 {
+				from = runeListAt(scriptFormEnds, k-1)
+			}
+			form := scriptForms[from:runeListAt(scriptFormEnds, k)]
+			dst = append(dst, form...)
+			last, _ := utf8.DecodeLastRuneInString(form)
+			if ccc := int(norm.NFC.PropertiesString(string(last)).CCC()); ccc != 0 {
+				prevCCC = ccc
+			}
+		}
+		i += size
+	}
+	if wordy && !joined {
+		n++
+	}
+	return dst, n, true
+}
+
+// runeOf returns the rune of the valid size-byte sequence at s[i:] (two or
+// three bytes, as decodeEntry accepted it).
+func runeOf(s string, i, size int) rune {
+	if size == 2 {
+		return rune(s[i]&0x1F)<<6 | rune(s[i+1]&0x3F)
+	}
+	return rune(s[i]&0x0F)<<12 | rune(s[i+1]&0x3F)<<6 | rune(s[i+2]&0x3F)
+}
+
+// hyphenJoin is countWordsSegments' rule after a word: if the rune at
+// s[i:] (of size bytes) is a joining hyphen followed by a word rune, or by a
+// line break and a lower-case letter, it returns where the next word
+// starts; else 0.
+func hyphenJoin(s string, i, size int) int {
+	if c := s[i]; c != '-' && c != 0xE2 || !isHyphen(s[i:]) {
+		return 0
+	}
+	after := i + size
+	if r, _ := utf8.DecodeRuneInString(s[after:]); isWordRune(r) {
+		return after
+	}
+	if k := lineBreakJoin(s[after:]); k > 0 {
+		return after + k
+	}
+	return 0
+}
