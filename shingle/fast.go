@@ -268,6 +268,14 @@ func sbStep(s, p int) (int, bool, int) {
 	return sbBase(p), true, 110 // SB11
 }
 
+// sbInside has bit p set for the Sentence_Break properties p that, in the
+// states ssAny, ssUpper and ssLower, never break and need no look-ahead
+// (sbStep gives sbBase(p), no boundary, rule 70 or 9990; SB5 keeps the
+// state over Extend and Format): all but CR, LF, Sep, ATerm, STerm and
+// sbpSlow.
+const sbInside = 1<<sbpOther | 1<<sbpSp | 1<<sbpLower | 1<<sbpUpper | 1<<sbpNumeric | 1<<sbpClose |
+	1<<sbpSContinue | 1<<sbpFormat | 1<<sbpExtend | 1<<sbpOLetter
+
 // fastFirstSentence returns the length of the first UAX #29 sentence of b,
 // or ok false when deciding it needs a rune outside the fast set.
 func fastFirstSentence(b []byte) (n int, ok bool) {
@@ -287,21 +295,41 @@ func fastFirstSentence(b []byte) (n int, ok bool) {
 	}
 	for {
 		if state == ssAny || state == ssUpper || state == ssLower {
-			// Inside a sentence, an ASCII rune other than CR, LF and the
-			// terminators never breaks and leaves the state its own base:
-			// skip the run in one tight loop.
-			start := length
-			for uint(length)+8 <= uint(len(b)) {
-				if stops := sbStops(binary.LittleEndian.Uint64(b[length:])); stops != 0 {
-					length += bits.TrailingZeros64(stops) >> 3
-					break
+			// Inside a sentence, a rune other than CR, LF, a paragraph
+			// separator and the terminators never breaks and leaves the
+			// state its own base (or, Extend and Format, as it was): skip
+			// the run in one tight loop, eight bytes at a time over ASCII,
+			// by the script table over the rest.
+			for uint(length) < uint(len(b)) {
+				if b[length] >= utf8.RuneSelf {
+					e, l := decodeEntry(b, length)
+					if l == 0 {
+						break
+					}
+					p := int(e & entSB)
+					if sbInside>>p&1 == 0 {
+						break
+					}
+					if p != sbpExtend && p != sbpFormat {
+						state = sbBase(p)
+					}
+					length += l
+					continue
 				}
-				length += 8
-			}
-			for uint(length) < uint(len(b)) && sbStop[b[length]] == 0 {
-				length++
-			}
-			if length > start {
+				start := length
+				for uint(length)+8 <= uint(len(b)) {
+					if stops := sbStops(binary.LittleEndian.Uint64(b[length:])); stops != 0 {
+						length += bits.TrailingZeros64(stops) >> 3
+						break
+					}
+					length += 8
+				}
+				for uint(length) < uint(len(b)) && sbStop[b[length]] == 0 {
+					length++
+				}
+				if length == start {
+					break // CR, LF or a terminator
+				}
 				// The skipped bytes are ASCII; the mask spares a bounds check.
 				state = sbBase(int(asciiSB[b[length-1]&0x7F]))
 			}

@@ -31,8 +31,9 @@ import (
 
 // decodeEntry returns the table entry of the rune at s[i:] and its size,
 // or size 0 when the rune is not in the table: invalid UTF-8, U+FFFD, a
-// rune above U+FFFF (what entryAt calls slowEntry).
-func decodeEntry(s string, i int) (uint32, int) {
+// rune above U+FFFF (what entryAt calls slowEntry). It serves strings
+// (fuseScript) and byte slices (fastFirstSentence).
+func decodeEntry[T string | []byte](s T, i int) (uint32, int) {
 	c := s[i]
 	if c < utf8.RuneSelf {
 		return scriptEntry(rune(c)), 1
