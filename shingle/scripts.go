@@ -92,6 +92,7 @@ func scriptEntry(r rune) uint32 {
 	i := int(r>>6) * 2
 	blk := int(scriptIndex[i]) | int(scriptIndex[i+1])<<8
 	j := (blk<<6 | int(r&63)) * 4
+	_ = scriptBlocks[j+3] // one bounds check for the four bytes
 	return uint32(scriptBlocks[j]) | uint32(scriptBlocks[j+1])<<8 |
 		uint32(scriptBlocks[j+2])<<16 | uint32(scriptBlocks[j+3])<<24
 }
