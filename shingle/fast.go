@@ -301,9 +301,13 @@ func fastFirstSentence(b []byte) (n int, ok bool) {
 			// the run in one tight loop, eight bytes at a time over ASCII,
 			// by the script table over the rest.
 			for uint(length) < uint(len(b)) {
-				if b[length] >= utf8.RuneSelf {
-					e, l := decodeEntry(b, length)
-					if l == 0 {
+				if c := b[length]; c >= utf8.RuneSelf {
+					// decodeEntry, with its two-byte case inline.
+					var e uint32
+					l := 2
+					if c-0xC2 < 0xE0-0xC2 && length+1 < len(b) && b[length+1]&0xC0 == 0x80 {
+						e = scriptEntry(rune(c&0x1F)<<6 | rune(b[length+1]&0x3F))
+					} else if e, l = decodeEntry(b, length); l == 0 {
 						break
 					}
 					p := int(e & entSB)

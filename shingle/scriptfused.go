@@ -78,8 +78,14 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 	nskip := 0          // the normalizer ignores the runes before this offset
 
 	for i := 0; i < len(s); {
-		e, size := decodeEntry(s, i)
-		if size == 0 {
+		// decodeEntry, with its one- and two-byte cases inline.
+		var e uint32
+		size := 1
+		if c := s[i]; c < utf8.RuneSelf {
+			e = scriptEntry(rune(c))
+		} else if c-0xC2 < 0xE0-0xC2 && i+1 < len(s) && s[i+1]&0xC0 == 0x80 {
+			e, size = scriptEntry(rune(c&0x1F)<<6|rune(s[i+1]&0x3F)), 2
+		} else if e, size = decodeEntry(s, i); size == 0 {
 			return dst[:base], 0, false
 		}
 		if i >= wskip {
@@ -194,8 +200,10 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 		}
 		space = false
 		switch d := rune(int32(e) >> entDelta); {
+		case kind == normKeep && size == 2:
+			dst = append(dst, s[i], s[i+1]) // no call, as a copy of s[i:i+2] makes
 		case kind == normKeep:
-			dst = append(dst, s[i:i+size]...)
+			dst = append(dst, s[i], s[i+1], s[i+2])
 		case d != 0:
 			dst = utf8.AppendRune(dst, r+d)
 		default:
