@@ -300,15 +300,24 @@ func fastFirstSentence(b []byte) (n int, ok bool) {
 			// state its own base (or, Extend and Format, as it was): skip
 			// the run in one tight loop, eight bytes at a time over ASCII,
 			// by the script table over the rest.
+		skip:
 			for uint(length) < uint(len(b)) {
 				if c := b[length]; c >= utf8.RuneSelf {
-					// decodeEntry, with its two-byte case inline.
+					// decodeEntry, inline but for the rarer forms (as in
+					// fuseScript).
 					var e uint32
 					l := 2
-					if c-0xC2 < 0xE0-0xC2 && length+1 < len(b) && b[length+1]&0xC0 == 0x80 {
+					switch {
+					case c-0xC2 < 0xE0-0xC2 && length+1 < len(b) && b[length+1]&0xC0 == 0x80:
 						e = scriptEntry(rune(c&0x1F)<<6 | rune(b[length+1]&0x3F))
-					} else if e, l = decodeEntry(b, length); l == 0 {
-						break
+					case (c-0xE1 < 0xED-0xE1 || c-0xEE < 2) && length+2 < len(b) &&
+						b[length+1]&0xC0 == 0x80 && b[length+2]&0xC0 == 0x80 &&
+						(c != 0xEF || b[length+1] != 0xBF || b[length+2] != 0xBD): // not U+FFFD
+						e, l = scriptEntry(rune(c&0x0F)<<12|rune(b[length+1]&0x3F)<<6|rune(b[length+2]&0x3F)), 3
+					default:
+						if e, l = decodeEntry(b, length); l == 0 {
+							break skip
+						}
 					}
 					p := int(e & entSB)
 					if sbInside>>p&1 == 0 {

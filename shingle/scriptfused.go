@@ -78,16 +78,28 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 	nskip := 0          // the normalizer ignores the runes before this offset
 
 	for i := 0; i < len(s); {
-		// decodeEntry, with its one- and two-byte cases inline.
-		var e uint32
+		// decodeEntry inline, but for the three-byte forms that start
+		// with 0xE0 or 0xED (which have their own limits on the second
+		// byte) and invalid UTF-8.
+		c := s[i]
+		r := rune(c)
 		size := 1
-		if c := s[i]; c < utf8.RuneSelf {
-			e = scriptEntry(rune(c))
-		} else if c-0xC2 < 0xE0-0xC2 && i+1 < len(s) && s[i+1]&0xC0 == 0x80 {
-			e, size = scriptEntry(rune(c&0x1F)<<6|rune(s[i+1]&0x3F)), 2
-		} else if e, size = decodeEntry(s, i); size == 0 {
-			return dst[:base], 0, false
+		switch {
+		case c < utf8.RuneSelf:
+		case c-0xC2 < 0xE0-0xC2 && i+1 < len(s) && s[i+1]&0xC0 == 0x80:
+			r, size = rune(c&0x1F)<<6|rune(s[i+1]&0x3F), 2
+		case (c-0xE1 < 0xED-0xE1 || c-0xEE < 2) && i+2 < len(s) && s[i+1]&0xC0 == 0x80 && s[i+2]&0xC0 == 0x80:
+			r, size = rune(c&0x0F)<<12|rune(s[i+1]&0x3F)<<6|rune(s[i+2]&0x3F), 3
+			if r == utf8.RuneError {
+				return dst[:base], 0, false
+			}
+		default:
+			if _, size = decodeEntry(s, i); size == 0 {
+				return dst[:base], 0, false
+			}
+			r = runeOf(s, i, size)
 		}
+		e := scriptEntry(r)
 		if i >= wskip {
 			p := int(e & entWB >> entWBShift)
 			if state < 0 {
@@ -168,7 +180,6 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 			i += size
 			continue
 		}
-		r := runeOf(s, i, size)
 		if r == 0x2010 && prevLetter {
 			if k := lineBreakJoin(s[i+size:]); k > 0 {
 				nskip = i + size + k
