@@ -310,8 +310,7 @@ func fastFirstSentence(b []byte) (n int, ok bool) {
 					switch {
 					case c-0xC2 < 0xE0-0xC2 && length+1 < len(b) && b[length+1]&0xC0 == 0x80:
 						e = scriptEntry(rune(c&0x1F)<<6 | rune(b[length+1]&0x3F))
-					case (c-0xE1 < 0xED-0xE1 || c-0xEE < 2) && length+2 < len(b) &&
-						b[length+1]&0xC0 == 0x80 && b[length+2]&0xC0 == 0x80 &&
+					case c-0xE0 < 0x10 && length+2 < len(b) && threeByteOK(c, b[length+1], b[length+2]) &&
 						(c != 0xEF || b[length+1] != 0xBF || b[length+2] != 0xBD): // not U+FFFD
 						e, l = scriptEntry(rune(c&0x0F)<<12|rune(b[length+1]&0x3F)<<6|rune(b[length+2]&0x3F)), 3
 					default:

@@ -78,9 +78,7 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 	nskip := 0          // the normalizer ignores the runes before this offset
 
 	for i := 0; i < len(s); {
-		// decodeEntry inline, but for the three-byte forms that start
-		// with 0xE0 or 0xED (which have their own limits on the second
-		// byte) and invalid UTF-8.
+		// decodeEntry inline, but for invalid UTF-8 and four-byte forms.
 		c := s[i]
 		r := rune(c)
 		size := 1
@@ -88,7 +86,7 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 		case c < utf8.RuneSelf:
 		case c-0xC2 < 0xE0-0xC2 && i+1 < len(s) && s[i+1]&0xC0 == 0x80:
 			r, size = rune(c&0x1F)<<6|rune(s[i+1]&0x3F), 2
-		case (c-0xE1 < 0xED-0xE1 || c-0xEE < 2) && i+2 < len(s) && s[i+1]&0xC0 == 0x80 && s[i+2]&0xC0 == 0x80:
+		case c-0xE0 < 0x10 && i+2 < len(s) && threeByteOK(c, s[i+1], s[i+2]):
 			r, size = rune(c&0x0F)<<12|rune(s[i+1]&0x3F)<<6|rune(s[i+2]&0x3F), 3
 			if r == utf8.RuneError {
 				return dst[:base], 0, false
@@ -100,25 +98,21 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 			r = runeOf(s, i, size)
 		}
 		e := scriptEntry(r)
-		if e&fuseQuick == 0 && state >= 0 && !space && i >= wskip && i >= nskip {
-			// The common case inside a word: a rune that continues the
-			// segment in the same state (a letter after a letter) and is
-			// its own normalized form, not a mark: what the steps below
-			// do for it, without their tests.
-			if t := wordTab[state&15<<5|int(e&entWB>>entWBShift)]; int(t) == state {
-				wordy = wordy || e&entWordy != 0
-				prev, prevLetter, prevCCC = r, e&entLetter != 0, -1
-				switch size {
-				case 1:
-					dst = append(dst, c)
-				case 2:
-					dst = append(dst, c, s[i+1])
-				default:
-					dst = append(dst, c, s[i+1], s[i+2])
-				}
-				i += size
-				continue
+		if e&fuseQuick == 0 && state >= 0 && !space && i >= wskip && i >= nskip &&
+			int(wordTab[state&15<<5|int(e&entWB>>entWBShift)]) == state {
+			// The common case inside a word (see quickRun).
+			var last rune
+			var lastE, all uint32
+			from := i
+			if dst, i, last, lastE, all = quickRun(dst, s, i, state); i == from {
+				// quickRun stopped at once, which it does not on the runes
+				// let in here; should the two tests ever disagree, this
+				// keeps the loop from running in place.
+				return dst[:base], 0, false
 			}
+			wordy = wordy || all&entWordy != 0
+			prev, prevLetter, prevCCC = last, lastE&entLetter != 0, -1
+			continue
 		}
 		if i >= wskip {
 			p := int(e & entWB >> entWBShift)
@@ -258,10 +252,63 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 	return dst, n, true
 }
 
+// quickRun is fuseScript's quick step, in a loop of its own (so that its
+// few variables stay in registers): from s[i:], while each rune continues
+// the word segment in the same state (a letter after a letter: wordTab
+// gives state, no break) and is its own normalized form and not a mark
+// (fuseQuick), it appends the rune to dst. It returns dst, where it
+// stopped, the last rune taken and its entry, and the OR of the entries
+// taken. The rune at i must qualify.
+func quickRun(dst []byte, s string, i, state int) (out []byte, end int, last rune, lastE, all uint32) {
+	for i < len(s) {
+		c := s[i]
+		r := rune(c)
+		size := 1
+		switch {
+		case c < utf8.RuneSelf:
+		case c-0xC2 < 0xE0-0xC2 && i+1 < len(s) && s[i+1]&0xC0 == 0x80:
+			r, size = rune(c&0x1F)<<6|rune(s[i+1]&0x3F), 2
+		case c-0xE0 < 0x10 && i+2 < len(s) && threeByteOK(c, s[i+1], s[i+2]):
+			r, size = rune(c&0x0F)<<12|rune(s[i+1]&0x3F)<<6|rune(s[i+2]&0x3F), 3
+		default:
+			return dst, i, last, lastE, all
+		}
+		e := scriptEntry(r)
+		if e&fuseQuick != 0 || int(wordTab[state&15<<5|int(e&entWB>>entWBShift)]) != state || r == utf8.RuneError {
+			break
+		}
+		switch size {
+		case 1:
+			dst = append(dst, c)
+		case 2:
+			dst = append(dst, c, s[i+1])
+		default:
+			dst = append(dst, c, s[i+1], s[i+2])
+		}
+		last, lastE, all = r, e, all|e
+		i += size
+	}
+	return dst, i, last, lastE, all
+}
+
 // fuseQuick masks the entry bits that keep a rune off fuseScript's quick
 // step: a normalized form other than the rune itself, normalization by
 // the reference, a combining mark, a rune that may compose.
 const fuseQuick = 3<<entNormShift | entNSlow | entMark | entCompose
+
+// threeByteOK reports whether c d f, c in 0xE0-0xEF, is valid UTF-8: both
+// continuation bytes, not overlong (0xE0 needs d >= 0xA0), not a surrogate
+// (0xED needs d < 0xA0).
+func threeByteOK(c, d, f byte) bool {
+	lo, hi := byte(0x80), byte(0xBF)
+	switch c {
+	case 0xE0:
+		lo = 0xA0
+	case 0xED:
+		hi = 0x9F
+	}
+	return lo <= d && d <= hi && f&0xC0 == 0x80
+}
 
 // runeOf returns the rune of the valid size-byte sequence at s[i:] (two or
 // three bytes, as decodeEntry accepted it).
