@@ -75,6 +75,7 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 	prevLetter := false // the last rune kept was a letter
 	prevCCC := -1       // combining class of the last rune kept if a mark, else -1
 	var prev rune       // the last rune kept
+	marks := 0          // marks and composing runes in a row
 	nskip := 0          // the normalizer ignores the runes before this offset
 
 	for i := 0; i < len(s); {
@@ -111,7 +112,7 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 				return dst[:base], 0, false
 			}
 			wordy = wordy || all&entWordy != 0
-			prev, prevLetter, prevCCC = last, lastE&entLetter != 0, -1
+			prev, prevLetter, prevCCC, marks = last, lastE&entLetter != 0, -1, 0
 			continue
 		}
 		if i >= wskip {
@@ -170,7 +171,7 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 				}
 			}
 			i++
-			prevCCC, prev = -1, rune(c)
+			prevCCC, prev, marks = -1, rune(c), 0
 			if 'A' <= c && c <= 'Z' {
 				c += 'a' - 'A'
 			}
@@ -206,6 +207,11 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 		}
 		prev = r
 		prevLetter = e&entLetter != 0
+		if e&(entMark|entCompose) == 0 {
+			marks = 0
+		} else if marks++; marks >= maxMarkRun {
+			return dst[:base], 0, false // NFKC may insert U+034F (see maxMarkRun)
+		}
 		if e&entMark != 0 {
 			ccc := int(norm.NFC.PropertiesString(s[i : i+size]).CCC())
 			if ccc < prevCCC {

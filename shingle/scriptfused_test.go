@@ -3,6 +3,7 @@ package shingle
 import (
 	"bytes"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"pgregory.net/rapid"
@@ -118,6 +119,8 @@ func TestFuseScriptCases(t *testing.T) {
 		{"а.б а:б 1.2 1,2 א\"ב א'ב", true},   // mids (the look-ahead)
 		{"\u0410", true},                     // one rune
 		{"-", true},
+		{strings.Repeat("\u094d", 30) + "\u1161", false}, // NFKC inserts U+034F after 30 non-starters
+		{"\u0915" + strings.Repeat("\u093c", 25), false},
 		{"а-", true},
 	} {
 		if ok := checkFuseScript(t, &n, c.s); c.fast && !ok {
