@@ -24,10 +24,11 @@ import (
 //
 // Anything either walk would hand to the reference (a rune the table
 // marks slow for the word rules or for normalization, a composition or a
-// reordering of marks, invalid UTF-8, a rune above U+FFFF) makes fuseScript
-// give up, and the sentence goes the two-walk way, which stays as it was.
-// TestFuseScriptMatchesTwoWalks checks it against the two walks and the
-// reference on random texts and on the UDHR declarations.
+// reordering of marks, 20 marks in a row, invalid UTF-8, a rune above
+// U+FFFF) makes fuseScript give up, and the sentence goes the two-walk way,
+// which stays as it was. TestFuseScriptCases, TestFuseScriptRandom and
+// TestFuseScriptUDHR check it against the two walks and the reference, by
+// hand, on random texts and on the UDHR declarations.
 
 // decodeEntry returns the table entry of the rune at s[i:] and its size,
 // or size 0 when the rune is not in the table: invalid UTF-8, U+FFFD, a
