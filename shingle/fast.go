@@ -268,6 +268,14 @@ func sbStep(s, p int) (int, bool, int) {
 	return sbBase(p), true, 110 // SB11
 }
 
+// sbInside has bit p set for the Sentence_Break properties p that, in the
+// states ssAny, ssUpper and ssLower, never break and need no look-ahead
+// (sbStep gives sbBase(p), no boundary, rule 70 or 9990; SB5 keeps the
+// state over Extend and Format): all but CR, LF, Sep, ATerm, STerm and
+// sbpSlow.
+const sbInside = 1<<sbpOther | 1<<sbpSp | 1<<sbpLower | 1<<sbpUpper | 1<<sbpNumeric | 1<<sbpClose |
+	1<<sbpSContinue | 1<<sbpFormat | 1<<sbpExtend | 1<<sbpOLetter
+
 // fastFirstSentence returns the length of the first UAX #29 sentence of b,
 // or ok false when deciding it needs a rune outside the fast set.
 func fastFirstSentence(b []byte) (n int, ok bool) {
@@ -287,21 +295,53 @@ func fastFirstSentence(b []byte) (n int, ok bool) {
 	}
 	for {
 		if state == ssAny || state == ssUpper || state == ssLower {
-			// Inside a sentence, an ASCII rune other than CR, LF and the
-			// terminators never breaks and leaves the state its own base:
-			// skip the run in one tight loop.
-			start := length
-			for uint(length)+8 <= uint(len(b)) {
-				if stops := sbStops(binary.LittleEndian.Uint64(b[length:])); stops != 0 {
-					length += bits.TrailingZeros64(stops) >> 3
-					break
+			// Inside a sentence, a rune other than CR, LF, a paragraph
+			// separator and the terminators never breaks and leaves the
+			// state its own base (or, Extend and Format, as it was): skip
+			// the run in one tight loop, eight bytes at a time over ASCII,
+			// by the script table over the rest.
+		skip:
+			for uint(length) < uint(len(b)) {
+				if c := b[length]; c >= utf8.RuneSelf {
+					// decodeEntry, inline but for the rarer forms (as in
+					// fuseScript).
+					var e uint32
+					l := 2
+					switch {
+					case c-0xC2 < 0xE0-0xC2 && length+1 < len(b) && b[length+1]&0xC0 == 0x80:
+						e = scriptEntry(rune(c&0x1F)<<6 | rune(b[length+1]&0x3F))
+					case c-0xE0 < 0x10 && length+2 < len(b) && threeByteOK(c, b[length+1], b[length+2]) &&
+						(c != 0xEF || b[length+1] != 0xBF || b[length+2] != 0xBD): // not U+FFFD
+						e, l = scriptEntry(rune(c&0x0F)<<12|rune(b[length+1]&0x3F)<<6|rune(b[length+2]&0x3F)), 3
+					default:
+						if e, l = decodeEntry(b, length); l == 0 {
+							break skip
+						}
+					}
+					p := int(e & entSB)
+					if sbInside>>p&1 == 0 {
+						break
+					}
+					if p != sbpExtend && p != sbpFormat {
+						state = sbBase(p)
+					}
+					length += l
+					continue
 				}
-				length += 8
-			}
-			for uint(length) < uint(len(b)) && sbStop[b[length]] == 0 {
-				length++
-			}
-			if length > start {
+				start := length
+				for uint(length)+8 <= uint(len(b)) {
+					if stops := sbStops(binary.LittleEndian.Uint64(b[length:])); stops != 0 {
+						length += bits.TrailingZeros64(stops) >> 3
+						break
+					}
+					length += 8
+				}
+				for uint(length) < uint(len(b)) && sbStop[b[length]] == 0 {
+					length++
+				}
+				if length == start {
+					break // CR, LF or a terminator
+				}
 				// The skipped bytes are ASCII; the mask spares a bounds check.
 				state = sbBase(int(asciiSB[b[length-1]&0x7F]))
 			}

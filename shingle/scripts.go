@@ -92,6 +92,7 @@ func scriptEntry(r rune) uint32 {
 	i := int(r>>6) * 2
 	blk := int(scriptIndex[i]) | int(scriptIndex[i+1])<<8
 	j := (blk<<6 | int(r&63)) * 4
+	_ = scriptBlocks[j+3] // one bounds check for the four bytes
 	return uint32(scriptBlocks[j]) | uint32(scriptBlocks[j+1])<<8 |
 		uint32(scriptBlocks[j+2])<<16 | uint32(scriptBlocks[j+3])<<24
 }
@@ -431,7 +432,8 @@ func scriptNormal(dst []byte, s string) ([]byte, bool) {
 	space := false      // a separator since the last written rune
 	prevLetter := false // prepare's: the last rune kept was a letter
 	prevCCC := -1       // combining class of the last rune kept if a mark, else -1
-	var prev rune       // the last rune kept (NFKC sees it before the next)
+	var prev rune       // the last rune kept
+	marks := 0          // marks and composing runes in a row (NFKC sees it before the next)
 	for i := 0; i < len(s); {
 		c := s[i]
 		if c < utf8.RuneSelf {
@@ -442,7 +444,7 @@ func scriptNormal(dst []byte, s string) ([]byte, bool) {
 				}
 			}
 			i++
-			prevCCC, prev = -1, rune(c)
+			prevCCC, prev, marks = -1, rune(c), 0
 			if 'A' <= c && c <= 'Z' {
 				c += 'a' - 'A'
 			}
@@ -485,6 +487,11 @@ func scriptNormal(dst []byte, s string) ([]byte, bool) {
 		}
 		prev = r
 		prevLetter = e&entLetter != 0
+		if e&(entMark|entCompose) == 0 {
+			marks = 0
+		} else if marks++; marks >= maxMarkRun {
+			return dst[:base], false // NFKC may insert U+034F (see maxMarkRun)
+		}
 		if e&entMark != 0 {
 			ccc := int(norm.NFC.PropertiesString(s[i : i+size]).CCC())
 			if ccc < prevCCC {
@@ -527,6 +534,16 @@ func scriptNormal(dst []byte, s string) ([]byte, bool) {
 	}
 	return dst, true
 }
+
+// maxMarkRun is how many marks (or runes that may compose with the rune
+// before) in a row the table's normalization takes: x/text's NFKC inserts
+// U+034F COMBINING GRAPHEME JOINER after 30 non-starters in a row (the
+// Stream-Safe Text Format of UAX #15, which golang.org/x/text/unicode/norm
+// applies), and a run of 30 can include a few non-starters hidden in the
+// decomposition of the rune before the marks (at most a handful: U+1FB7
+// has two); 20 leaves room for those, and text with 20 marks in a row goes
+// to the reference. Found by FuzzScriptsSameUnits (testdata/fuzz).
+const maxMarkRun = 20
 
 // runeListAt returns the i-th entry of a list of two-byte big-endian values.
 func runeListAt(list string, i int) int {

