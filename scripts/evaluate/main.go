@@ -743,17 +743,7 @@ func title(w string) string {
 func edit(sentences []string, rate float64, shuffle bool, vocab []string, rng *rand.Rand) string {
 	out := make([]string, 0, len(sentences))
 	for _, s := range sentences {
-		toks := strings.Fields(s)
-		// Keep the sentence's final punctuation on the last word.
-		last := toks[len(toks)-1]
-		tail := last
-		if k := strings.LastIndexFunc(last, func(r rune) bool { return unicode.IsLetter(r) || unicode.IsDigit(r) }); k >= 0 {
-			_, size := utf8.DecodeRuneInString(last[k:])
-			tail = last[k+size:]
-			toks[len(toks)-1] = last[:k+size]
-		} else {
-			toks = toks[:len(toks)-1]
-		}
+		toks, tail := wordsAndTail(s)
 		x := rate * float64(len(toks))
 		n := int(x)
 		if rng.Float64() < x-float64(n) {
@@ -816,16 +806,7 @@ func rewrite(sentences []string, vocab []string, syn synonyms, rng *rand.Rand) s
 	}
 	var out []sentence
 	for _, s := range sentences {
-		toks := strings.Fields(s)
-		last := toks[len(toks)-1]
-		tail := last
-		if k := strings.LastIndexFunc(last, func(r rune) bool { return unicode.IsLetter(r) || unicode.IsDigit(r) }); k >= 0 {
-			_, size := utf8.DecodeRuneInString(last[k:])
-			tail = last[k+size:]
-			toks[len(toks)-1] = last[:k+size]
-		} else {
-			toks = toks[:len(toks)-1]
-		}
+		toks, tail := wordsAndTail(s)
 		x := float64(len(toks)) / 3
 		n := int(x)
 		if rng.Float64() < x-float64(n) {
@@ -905,4 +886,21 @@ func rewrite(sentences []string, vocab []string, syn synonyms, rng *rand.Rand) s
 		parts[i] = strings.Join(s.toks, " ") + s.tail
 	}
 	return strings.Join(parts, " ")
+}
+
+// wordsAndTail splits a sentence into its words, the sentence's final
+// punctuation taken off the last word and returned apart (so that edits
+// keep it at the end).
+func wordsAndTail(s string) (toks []string, tail string) {
+	toks = strings.Fields(s)
+	last := toks[len(toks)-1]
+	tail = last
+	if k := strings.LastIndexFunc(last, func(r rune) bool { return unicode.IsLetter(r) || unicode.IsDigit(r) }); k >= 0 {
+		_, size := utf8.DecodeRuneInString(last[k:])
+		tail = last[k+size:]
+		toks[len(toks)-1] = last[:k+size]
+	} else {
+		toks = toks[:len(toks)-1]
+	}
+	return toks, tail
 }
