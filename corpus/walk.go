@@ -104,8 +104,7 @@ func (w *walker) dir(osPath, display, abs string) {
 			return
 		}
 		name := e.Name()
-		d := joinDisplay(display, name)
-		op, ap := joinOS(osPath, name), filepath.Join(abs, name)
+		op, d, ap := childNames(osPath, display, abs, name)
 		if w.skipped(name, d) {
 			continue
 		}
@@ -184,6 +183,28 @@ func matchAny(globs []string, s string) bool {
 		}
 	}
 	return false
+}
+
+// childNames returns the three names of the entry name of a folder: the
+// name to open, the displayed name and the cleaned absolute one (see
+// entry). Every file's names are kept until the reading ends (at 10^6
+// files, three strings each of some 60 bytes), so they share one
+// allocation where their text allows: the displayed name is often the end
+// of the absolute one (a relative folder argument such as "essays/") or
+// equal to it (an absolute one), and the name to open is the displayed one
+// where the separator is "/" and the folder's two names are the same.
+func childNames(osPath, display, abs, name string) (op, d, ap string) {
+	ap = filepath.Join(abs, name)
+	d = joinDisplay(display, name)
+	if strings.HasSuffix(ap, d) {
+		d = ap[len(ap)-len(d):]
+	}
+	if filepath.Separator == '/' && osPath == display {
+		op = d // joinOS and joinDisplay join alike here
+	} else {
+		op = joinOS(osPath, name)
+	}
+	return op, d, ap
 }
 
 // joinOS joins a folder path as given and a name without cleaning the

@@ -4,9 +4,11 @@ package corpus
 
 import (
 	"os"
+	"path/filepath"
 	"reflect"
 	"syscall"
 	"testing"
+	"unsafe"
 )
 
 func TestPipesAreListedNotOpened(t *testing.T) {
@@ -53,3 +55,32 @@ func TestDotDotAfterALinkIsResolvedByTheSystem(t *testing.T) {
 
 // makeFifo makes a named pipe (an irregular file) at p.
 func makeFifo(p string) error { return syscall.Mkfifo(p, 0o644) }
+
+// TestChildNamesShareOneAllocation: the three names of a folder's entry
+// are the plain joins (joinOS, joinDisplay, filepath.Join), and where
+// their text allows they are one string's bytes, not three copies (the
+// walk keeps every file's names until the reading ends).
+func TestChildNamesShareOneAllocation(t *testing.T) {
+	for _, c := range []struct {
+		osPath, display, abs string
+		shared               bool // the displayed name is the end of the absolute one
+	}{
+		{"/srv/essays", "/srv/essays", "/srv/essays", true},
+		{"essays/", "essays/", "/home/ana/essays", true},
+		{"essays", "essays", "/home/ana/essays", true},
+		{".", ".", "/home/ana", false}, // "./a.txt" is not the end of "/home/ana/a.txt"
+		{"link/../essays", "link/../essays", "/home/ana/essays", false},
+	} {
+		op, d, ap := childNames(c.osPath, c.display, c.abs, "a.txt")
+		if op != joinOS(c.osPath, "a.txt") || d != joinDisplay(c.display, "a.txt") || ap != filepath.Join(c.abs, "a.txt") {
+			t.Errorf("%+v: got %q %q %q", c, op, d, ap)
+		}
+		end := unsafe.StringData(ap[len(ap)-len(d):])
+		if got := unsafe.StringData(d) == end; got != c.shared {
+			t.Errorf("%+v: displayed name shares the absolute one's bytes: %v, want %v", c, got, c.shared)
+		}
+		if unsafe.StringData(op) != unsafe.StringData(d) {
+			t.Errorf("%+v: the name to open is a second copy of the displayed one", c)
+		}
+	}
+}
