@@ -4,9 +4,9 @@ package corpus
 
 import "time"
 
-// threadTime: no per-thread processor clock here; the wall clock is used
-// (see the Linux version).
-func threadTime() (time.Duration, bool) { return 0, false }
+// processTime: no processor clock here; the wall clock is used (see the
+// Linux version).
+func processTime() (time.Duration, bool) { return 0, false }
 
-// threadFaults: no per-thread fault count here.
-func threadFaults() int64 { return 0 }
+// processFaults: no fault count here.
+func processFaults() int64 { return 0 }

@@ -248,7 +248,14 @@ func (b *emailBody) walk(in *input, ct, cte, disp string, r io.Reader, depth int
 	case "quoted-printable":
 		r = quotedprintable.NewReader(r)
 	}
-	data, err := io.ReadAll(io.LimitReader(r, in.opt.MaxMemberBytes+1))
+	// Read into room for the whole message at once (a part is never
+	// larger than the message it is in; a base64 one is smaller): io.ReadAll
+	// grows its buffer a quarter at a time, copying a large body about
+	// five times over.
+	var buf bytes.Buffer
+	buf.Grow(int(min(int64(len(in.raw)), in.opt.MaxMemberBytes+1)) + bytes.MinRead)
+	_, err := buf.ReadFrom(io.LimitReader(r, in.opt.MaxMemberBytes+1))
+	data := buf.Bytes()
 	if err != nil {
 		return refuse("damaged e-mail body: " + err.Error())
 	}

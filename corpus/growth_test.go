@@ -4,7 +4,6 @@ import (
 	"bytes"
 	"fmt"
 	"runtime"
-	"runtime/debug"
 	"slices"
 	"strings"
 	"testing"
@@ -74,16 +73,16 @@ func BenchmarkHostileGrowth(b *testing.B) {
 }
 
 // BenchmarkHostileRatios reports, per shape, t2n/n and t4n/2n (time of
-// one read at 2n over n, 4n over 2n: medians over the rounds, each read
-// after a collection so that none pays for another's garbage, with the
-// collector off during the read), the time per input byte at each size
-// (nsB-n, nsB-2n, nsB-4n), a2n/n and a4n/2n (bytes allocated by one read,
-// counted by the runtime) and f4n/2n (page faults of one read, Linux). The
-// time is the processor time of the reading thread (threadTime; the wall
-// clock where there is none): on a shared machine the wall clock also
-// counts the time other work held the processor, which made single ratios
-// swing from 0.5 to 6 between runs. It leaves out the collector's
-// background work, which the allocated bytes stand for.
+// one read at 2n over n, 4n over 2n: medians over the rounds, the reads
+// run with the collector on, as reprise runs them; see hostileRatios), the
+// time per input byte at each size (nsB-n, nsB-2n, nsB-4n), a2n/n and
+// a4n/2n (bytes allocated by one read, counted by the runtime) and
+// faults-at-4n (page faults of the process during one 4n read, Linux). The
+// time is the processor time of the whole process (processTime; the wall
+// clock where there is none), so that the collection a read's garbage
+// costs is charged to it: on a shared machine the wall clock also counts
+// the time other work held the processor, which made single ratios swing
+// from 0.5 to 6 between runs.
 //
 // Each shape is measured at two scales. "big" is n = Shape.Base, files of
 // 0.5 to 2.5 MiB at n that allocate up to 55 MiB at 4n: past the caches,
@@ -131,15 +130,11 @@ func allocOf(tb testing.TB, s hostile.Shape, raw []byte, opt *Options) float64 {
 // rounds, and reports the metrics of BenchmarkHostileRatios.
 func hostileRatios(b *testing.B, s hostile.Shape, n int, opt *Options) {
 	clock := func() time.Duration {
-		if t, ok := threadTime(); ok {
+		if t, ok := processTime(); ok {
 			return t
 		}
 		return time.Duration(time.Now().UnixNano())
 	}
-	// Each sub-benchmark runs on a goroutine of its own: it is this one
-	// that must stay on its thread for threadTime and threadFaults.
-	runtime.LockOSThread()
-	defer runtime.UnlockOSThread()
 	var raws [3][]byte
 	for k := range raws {
 		raws[k] = makeShape(b, s, n<<k)
@@ -150,21 +145,32 @@ func hostileRatios(b *testing.B, s hostile.Shape, n int, opt *Options) {
 		alloc[k] = allocOf(b, s, raw, opt)
 	}
 	var times, faults [3][]float64
-	// The collector is off during a timed read (and runs between reads):
-	// how many cycles a read of a given size triggers, and how much of
-	// their marking falls on the reading thread, depends on the heap it
-	// starts from, which made single ratios of the shapes that allocate
-	// most swing from 1.5 to 5.
-	defer debug.SetGCPercent(debug.SetGCPercent(-1))
+	// The reads run as reprise runs them, with the collector on and no
+	// collection forced between them. A collection forced before every
+	// read (and the collector off during it, as an earlier version did)
+	// made the largest size of every shape 1.5 to 4 times slower per byte
+	// than the two smaller ones, even for reads of a few kilobytes that
+	// run from the cache: the largest read had to take its memory back
+	// from the runtime each time, which is the harness's cost, not the
+	// extractor's. With the collector on, a read may pay for collecting an
+	// earlier read's garbage, and a heap sized for the previous, smaller
+	// read must grow again: each timed read follows an untimed one of the
+	// same size, so that it starts from the heap a run of such files
+	// settles at. The sizes are read in a rotating order (round r starts
+	// at size r mod 3), so that each follows each of the others equally
+	// often, and the median over the rounds is taken.
+	round := 0
 	for b.Loop() {
-		for k, raw := range raws {
-			runtime.GC()
-			f0 := threadFaults()
+		for j := range raws {
+			k := (round + j) % len(raws)
+			extractShape(b, s, raws[k], opt, newDeadline(opt.FileTimeout)) // the heap settles at this size
+			f0 := processFaults()
 			start := clock()
-			extractShape(b, s, raw, opt, newDeadline(opt.FileTimeout))
+			extractShape(b, s, raws[k], opt, newDeadline(opt.FileTimeout))
 			times[k] = append(times[k], float64(clock()-start))
-			faults[k] = append(faults[k], float64(threadFaults()-f0))
+			faults[k] = append(faults[k], float64(processFaults()-f0))
 		}
+		round++
 	}
 	median := func(v []float64) float64 {
 		slices.Sort(v)

@@ -175,6 +175,10 @@ func trimBlankEnd(b []byte, s, e int) int {
 }
 
 func (m *mdBlanker) splitLines(b []byte) {
+	// One allocation: at most one line per line end, and a last one.
+	if n := bytes.Count(b, []byte{'\n'}) + bytes.Count(b, []byte{'\r'}) + 1; cap(m.lines) < n {
+		m.lines = make([]mdLine, 0, n)
+	}
 	m.lines = m.lines[:0]
 	start := 0
 	if bytes.HasPrefix(b, []byte(bomUTF8)) {

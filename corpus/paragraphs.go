@@ -1,6 +1,7 @@
 package corpus
 
 import (
+	"slices"
 	"strings"
 	"unicode/utf8"
 )
@@ -54,12 +55,15 @@ func (w *paraWriter) word(s string) {
 	if w.full {
 		return
 	}
+	if need := len(s) + 2; w.b.Cap()-w.b.Len() < need {
+		w.b.Grow(max(w.b.Len(), need)) // doubled, as appendDoubling does
+	}
 	if !w.open {
 		if w.b.Len() > 0 {
 			w.b.WriteString("\n\n")
 		}
 		w.para++
-		w.marks = append(w.marks, Mark{Offset: w.b.Len(), Page: w.page, Chapter: w.chapter, Paragraph: w.para})
+		w.marks = appendDoubling(w.marks, Mark{Offset: w.b.Len(), Page: w.page, Chapter: w.chapter, Paragraph: w.para})
 		w.open = true
 	} else if w.space {
 		if w.newline {
@@ -149,4 +153,17 @@ func isSpaceRune(r rune) bool {
 		return true
 	}
 	return r >= 0x2000 && r <= 0x200A
+}
+
+// appendDoubling appends v to s, doubling the capacity when it is full.
+// append grows a slice of more than 256 entries by about a quarter at a
+// time, so a slice of one entry per paragraph of a large file (a 32-byte
+// Mark) is allocated and copied about five times its final size in all;
+// doubled, about twice. One read's allocations then grow in proportion to
+// the file (BENCHMARKS.md, "Hostile inputs").
+func appendDoubling[E any](s []E, v E) []E {
+	if len(s) == cap(s) {
+		s = slices.Grow(s, max(len(s), 16))
+	}
+	return append(s, v)
 }

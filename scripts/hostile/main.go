@@ -12,8 +12,8 @@
 // through the extractor as Read runs it, the three sizes in alternation,
 // -benchtime rounds) -count times, and prints, from the medians, a Markdown
 // table: at the "big" scale (n = the shape's base, files of 0.5 to 2.5 MiB)
-// the growth per doubling of the time (processor time of the reading
-// thread, on Linux), the time per input byte at n, 2n and 4n, and the
+// the growth per doubling of the time (processor time of the process, the
+// collector on as reprise runs, on Linux), the time per input byte at n, 2n and 4n, and the
 // growth of the allocated bytes; at the "cache" scale (the largest n whose
 // 4n read touches at most 512 KiB, input and allocations, so that it runs
 // from the second-level cache) the growth of the time. Linear code gives
