@@ -145,7 +145,8 @@ func charsetReader(cs string, r io.Reader) (io.Reader, error) {
 }
 
 func (emailText) extract(in *input) (extraction, error) {
-	msg, err := mail.ReadMessage(bytes.NewReader(in.raw))
+	raw, fields := narrowHeader(in.raw)
+	msg, err := mail.ReadMessage(bytes.NewReader(raw))
 	if err != nil {
 		return extraction{}, refuse("malformed e-mail: " + err.Error())
 	}
@@ -159,6 +160,9 @@ func (emailText) extract(in *input) (extraction, error) {
 		return extraction{}, err
 	}
 	var notes []string
+	if fields > 0 {
+		notes = append(notes, fmt.Sprintf("header of %d fields: only the subject and the MIME fields were read (more than %d)", fields, maxHeaderFields))
+	}
 	var body, encName string
 	switch {
 	case b.hasPlain:
@@ -195,6 +199,65 @@ func (emailText) extract(in *input) (extraction, error) {
 		encName = "us-ascii"
 	}
 	return extraction{Text: text, Encoding: encName, Notes: notes}, nil
+}
+
+// maxHeaderFields is the most header fields a message's header is read
+// with whole. Saved messages have tens (a long chain of Received fields
+// some hundreds); net/mail keeps every field in a map, which for a
+// header of 10^5 fields is read from memory rather than cache.
+const maxHeaderFields = 1000
+
+// narrowHeader returns raw as it is when its header has at most
+// maxHeaderFields fields. Otherwise it returns a copy whose header keeps
+// only the fields the extractor reads (Subject, MIME-Version,
+// Content-Type, Content-Transfer-Encoding, each with its folded lines),
+// followed by the body as it was, and the number of fields of the
+// original header. Lines of the header that are not fields (no colon) go
+// with the fields dropped, so such a message is read where net/mail would
+// have refused it.
+func narrowHeader(raw []byte) ([]byte, int) {
+	end := len(raw) // the header's end: the blank line, or the whole file
+	fields := 0
+	for p := 0; p < len(raw); {
+		line := raw[p:]
+		if line[0] == '\n' || (line[0] == '\r' && len(line) > 1 && line[1] == '\n') {
+			end = p
+			break
+		}
+		if line[0] != ' ' && line[0] != '\t' {
+			fields++
+		}
+		n := bytes.IndexByte(line, '\n')
+		if n < 0 {
+			break
+		}
+		p += n + 1
+	}
+	if fields <= maxHeaderFields {
+		return raw, 0
+	}
+	out := make([]byte, 0, 1024+len(raw)-end)
+	keep := false
+	for p := 0; p < end; {
+		line := raw[p:end]
+		if n := bytes.IndexByte(line, '\n'); n >= 0 {
+			line = line[:n+1]
+		}
+		p += len(line)
+		if line[0] != ' ' && line[0] != '\t' {
+			keep = false
+			for _, f := range [...]string{"subject:", "mime-version:", "content-type:", "content-transfer-encoding:"} {
+				if hasFoldPrefix(line, f) {
+					keep = true
+					break
+				}
+			}
+		}
+		if keep {
+			out = append(out, line...)
+		}
+	}
+	return append(out, raw[end:]...), fields
 }
 
 // walk visits one MIME entity and, for a multipart, its parts.
