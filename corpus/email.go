@@ -133,6 +133,7 @@ type emailBody struct {
 	hasPlain        bool
 	hasHTML         bool
 	others          int // attachments and parts of other types, not read
+	narrowed        int // parts whose Content-Type was read for charset and boundary only
 	parts           int
 }
 
@@ -175,6 +176,13 @@ func (emailText) extract(in *input) (extraction, error) {
 		}
 		body, encName = w.b.String(), cs
 		notes = append(notes, "body read from the HTML part (no plain-text part)")
+	}
+	if b.narrowed > 0 {
+		parts := "MIME parts"
+		if b.narrowed == 1 {
+			parts = "MIME part"
+		}
+		notes = append(notes, fmt.Sprintf("%d %s with a Content-Type of more than %d parameters: only charset and boundary were read", b.narrowed, parts, maxMediaParams))
 	}
 	if b.others > 0 {
 		notes = append(notes, fmt.Sprintf("%d attachments or other parts not read", b.others))
@@ -260,6 +268,47 @@ func narrowHeader(raw []byte) ([]byte, int) {
 	return append(out, raw[end:]...), fields
 }
 
+// maxMediaParams is the most parameters a Content-Type is parsed with
+// whole. A part's type has one to three (charset, boundary, format);
+// mime.ParseMediaType keeps every one in a map.
+const maxMediaParams = 100
+
+// narrowMediaType returns ct as it is when it has at most maxMediaParams
+// parameters, and otherwise the media type with only the parameters the
+// extractor reads (charset and boundary, RFC 2046; with their RFC 2231
+// continuations "charset*0", "boundary*"), in their order. Parameters are
+// split at the semicolons outside quoted strings (RFC 2045 5.1).
+func narrowMediaType(ct string) string {
+	if strings.Count(ct, ";") <= maxMediaParams {
+		return ct
+	}
+	var pieces []string
+	quoted, start := false, 0
+	for i := 0; i < len(ct); i++ {
+		switch c := ct[i]; {
+		case c == '\\' && quoted:
+			i++
+		case c == '"':
+			quoted = !quoted
+		case c == ';' && !quoted:
+			pieces = append(pieces, ct[start:i])
+			start = i + 1
+		}
+	}
+	pieces = append(pieces, ct[start:])
+	kept := pieces[:1]
+	for _, p := range pieces[1:] {
+		name := strings.ToLower(strings.TrimSpace(p))
+		if i := strings.IndexAny(name, "=*"); i >= 0 {
+			name = strings.TrimSpace(name[:i])
+		}
+		if name == "charset" || name == "boundary" {
+			kept = append(kept, p)
+		}
+	}
+	return strings.Join(kept, ";")
+}
+
 // walk visits one MIME entity and, for a multipart, its parts.
 func (b *emailBody) walk(in *input, ct, cte, disp string, r io.Reader, depth int) error {
 	b.parts++
@@ -271,6 +320,10 @@ func (b *emailBody) walk(in *input, ct, cte, disp string, r io.Reader, depth int
 	}
 	if b.parts > in.opt.MaxMembers {
 		return refuse(fmt.Sprintf("e-mail has more than %d MIME parts (--max-members)", in.opt.MaxMembers))
+	}
+	if n := narrowMediaType(ct); len(n) != len(ct) {
+		ct = n
+		b.narrowed++
 	}
 	media, params := "text/plain", map[string]string{}
 	if ct != "" {

@@ -53,3 +53,35 @@ func TestLongHeaderIsNarrowed(t *testing.T) {
 		}
 	}
 }
+
+// TestLongMediaTypeIsNarrowed: a Content-Type of more than maxMediaParams
+// parameters is read for its charset and boundary only (RFC 2046 5.1.1,
+// 4.1.2), and the document says so; a quoted ";" does not split a
+// parameter (RFC 2045 5.1).
+func TestLongMediaTypeIsNarrowed(t *testing.T) {
+	opt := testOptions(t)
+	var ct strings.Builder
+	ct.WriteString(`multipart/mixed; note="a;b"`)
+	for k := range maxMediaParams {
+		fmt.Fprintf(&ct, ";\n p%d=v", k)
+		if k == 40 {
+			ct.WriteString(";\n boundary=\"=sep=\"")
+		}
+	}
+	msg := "From: ana@example.org\nSubject: Budget\nMIME-Version: 1.0\nContent-Type: " + ct.String() + "\n\n" +
+		"--=sep=\nContent-Type: text/plain; charset=utf-8\n\nThe café budget was approved.\n--=sep=--\n"
+	got := extractBytes(t, "m.eml", []byte(msg), opt)
+	if len(got) != 1 || got[0].reason != "" {
+		t.Fatalf("%+v", got)
+	}
+	if want := "Budget\n\nThe café budget was approved."; got[0].Text != want {
+		t.Errorf("text %q, want %q", got[0].Text, want)
+	}
+	note := fmt.Sprintf("1 MIME part with a Content-Type of more than %d parameters: only charset and boundary were read", maxMediaParams)
+	if !slices.Contains(got[0].Notes, note) {
+		t.Errorf("notes %q, want %q among them", got[0].Notes, note)
+	}
+	if n := narrowMediaType(`text/plain; a="x;y"; charset=utf-8`); n != `text/plain; a="x;y"; charset=utf-8` {
+		t.Errorf("a short type was changed: %q", n)
+	}
+}
