@@ -203,7 +203,7 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 				continue
 			}
 		}
-		if e&entCompose != 0 && (e&entMark != 0 && prevCCC >= 0 || inRuneList(scriptComposeFirst, prev) >= 0) {
+		if e&entCompose != 0 && (e&entMark != 0 && prevCCC >= 0 || scriptEntry(prev)&entFirst != 0) {
 			return dst[:base], 0, false
 		}
 		prev = r
@@ -214,7 +214,7 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 			return dst[:base], 0, false // NFKC may insert U+034F (see maxMarkRun)
 		}
 		if e&entMark != 0 {
-			ccc := int(norm.NFC.PropertiesString(s[i : i+size]).CCC())
+			ccc := int(e >> entCCC)
 			if ccc < prevCCC {
 				return dst[:base], 0, false
 			}

@@ -83,7 +83,9 @@ const (
 	bitNSlow   = 1 << 13
 	bitMark    = 1 << 14
 	bitCompose = 1 << 15
-	shiftDelta = 16
+	bitFirst   = 1 << 16
+	shiftDelta = 17
+	shiftCCC   = 24
 )
 
 var rangeRE = regexp.MustCompile(`\{0x([0-9A-F]+), 0x([0-9A-F]+), pr(\w+)\}`)
@@ -190,6 +192,9 @@ func Generate(dir string) ([]byte, error) {
 			}
 		}
 	}
+	for _, r := range first {
+		entries[r] |= bitFirst
+	}
 	return render(entries, forms, first), nil
 }
 
@@ -215,6 +220,11 @@ func normEntry(r rune, composes map[rune]bool, fold cases.Caser) (uint32, string
 	}
 	if ccc != 0 && form != s || form == "" {
 		return e | bitNSlow, ""
+	}
+	if ccc != 0 {
+		// A mark kept as it is (the only kind of mark not sent to the
+		// reference): its combining class in the bits a delta would use.
+		e |= uint32(ccc) << shiftCCC
 	}
 	seps, kept := 0, 0
 	for i, f := range form {
@@ -255,7 +265,7 @@ func normEntry(r rune, composes map[rune]bool, fold cases.Caser) (uint32, string
 	}, form)
 	f, size := utf8.DecodeRuneInString(form)
 	d := f - r
-	if size != len(form) || d < -(1<<15) || d >= 1<<15 || d == 0 {
+	if size != len(form) || d < -(1<<14) || d >= 1<<14 || d == 0 {
 		// Delta 0 sends the reader to the form list.
 		return e | normDelta<<shiftNorm, form
 	}
