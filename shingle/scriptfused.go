@@ -103,17 +103,17 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 		if e&fuseQuick == 0 && state >= 0 && !space && i >= wskip && i >= nskip &&
 			int(wordTab[state&15<<5|int(e&entWB>>entWBShift)]) == state {
 			// The common case inside a word (see quickRun).
-			var last rune
-			var lastE, all uint32
-			from := i
-			if dst, i, last, lastE, all = quickRun(dst, s, i, state); i == from {
+			var all uint32
+			from, lastAt := i, 0
+			if dst, i, lastAt, all = quickRun(dst, s, i, state); i == from {
 				// quickRun stopped at once, which it does not on the runes
 				// let in here; should the two tests ever disagree, this
 				// keeps the loop from running in place.
 				return dst[:base], 0, false
 			}
 			wordy = wordy || all&entWordy != 0
-			prev, prevLetter, prevCCC, marks = last, lastE&entLetter != 0, -1, 0
+			prev = runeOf(s, lastAt, i-lastAt)
+			prevLetter, prevCCC, marks = scriptEntry(prev)&entLetter != 0, -1, 0
 			continue
 		}
 		if i >= wskip {
@@ -264,38 +264,65 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 // the word segment in the same state (a letter after a letter: wordTab
 // gives state, no break) and is its own normalized form and not a mark
 // (fuseQuick), it appends the rune to dst. It returns dst, where it
-// stopped, the last rune taken and its entry, and the OR of the entries
+// stopped, where the last rune taken starts, and the OR of the entries
 // taken. The rune at i must qualify.
-func quickRun(dst []byte, s string, i, state int) (out []byte, end int, last rune, lastE, all uint32) {
-	for i < len(s) {
+//
+// The loop is written for the two- and three-byte letters of the
+// alphabetic scripts and of Han and Hangul: the room for the run is made
+// once (a taken rune's form is the rune, so the run's form is as long as
+// the run), and U+FFFD and the surrogates, which decode
+// here, stop the run by their slow entries (fuseQuick); an overlong
+// three-byte form stops it by r < 0x800.
+func quickRun(dst []byte, s string, i, state int) (out []byte, end, lastAt int, all uint32) {
+	if room := len(s) - i; cap(dst)-len(dst) < room {
+		dst = slices.Grow(dst, room)
+	}
+	j := len(dst)
+	buf := dst[:cap(dst)]
+	row := state & 15 << 5
+	lastAt = i
+	for uint(i) < uint(len(s)) {
 		c := s[i]
-		r := rune(c)
-		size := 1
+		var e uint32
+		size := 2
 		switch {
+		case c-0xC2 < 0xE0-0xC2:
+			if i+1 >= len(s) || s[i+1]&0xC0 != 0x80 {
+				return buf[:j], i, lastAt, all
+			}
+			e = scriptEntry(rune(c&0x1F)<<6 | rune(s[i+1]&0x3F))
+		case c-0xE0 < 0x10:
+			if i+2 >= len(s) {
+				return buf[:j], i, lastAt, all
+			}
+			d, f := s[i+1], s[i+2]
+			r := rune(c&0x0F)<<12 | rune(d&0x3F)<<6 | rune(f&0x3F)
+			if d&0xC0 != 0x80 || f&0xC0 != 0x80 || r < 0x800 {
+				return buf[:j], i, lastAt, all
+			}
+			e, size = scriptEntry(r), 3
 		case c < utf8.RuneSelf:
-		case c-0xC2 < 0xE0-0xC2 && i+1 < len(s) && s[i+1]&0xC0 == 0x80:
-			r, size = rune(c&0x1F)<<6|rune(s[i+1]&0x3F), 2
-		case c-0xE0 < 0x10 && i+2 < len(s) && threeByteOK(c, s[i+1], s[i+2]):
-			r, size = rune(c&0x0F)<<12|rune(s[i+1]&0x3F)<<6|rune(s[i+2]&0x3F), 3
+			e, size = scriptEntry(rune(c)), 1
 		default:
-			return dst, i, last, lastE, all
+			return buf[:j], i, lastAt, all
 		}
-		e := scriptEntry(r)
-		if e&fuseQuick != 0 || int(wordTab[state&15<<5|int(e&entWB>>entWBShift)]) != state || r == utf8.RuneError {
+		if e&fuseQuick != 0 || int(wordTab[row|int(e>>entWBShift&31)]) != state {
 			break
 		}
 		switch size {
 		case 1:
-			dst = append(dst, c)
+			buf[j] = c
 		case 2:
-			dst = append(dst, c, s[i+1])
+			buf[j], buf[j+1] = c, s[i+1]
 		default:
-			dst = append(dst, c, s[i+1], s[i+2])
+			buf[j], buf[j+1], buf[j+2] = c, s[i+1], s[i+2]
 		}
-		last, lastE, all = r, e, all|e
+		all |= e
+		lastAt = i
 		i += size
+		j += size
 	}
-	return dst, i, last, lastE, all
+	return buf[:j], i, lastAt, all
 }
 
 // fuseQuick masks the entry bits that keep a rune off fuseScript's quick
@@ -317,10 +344,13 @@ func threeByteOK(c, d, f byte) bool {
 	return lo <= d && d <= hi && f&0xC0 == 0x80
 }
 
-// runeOf returns the rune of the valid size-byte sequence at s[i:] (two or
-// three bytes, as decodeEntry accepted it).
+// runeOf returns the rune of the valid size-byte sequence at s[i:] (one,
+// two or three bytes, as decodeEntry accepted it).
 func runeOf(s string, i, size int) rune {
-	if size == 2 {
+	switch size {
+	case 1:
+		return rune(s[i])
+	case 2:
 		return rune(s[i]&0x1F)<<6 | rune(s[i+1]&0x3F)
 	}
 	return rune(s[i]&0x0F)<<12 | rune(s[i+1]&0x3F)<<6 | rune(s[i+2]&0x3F)
