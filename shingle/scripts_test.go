@@ -44,7 +44,8 @@ func TestScriptTablesUpToDate(t *testing.T) {
 // a look-up elsewhere: a kept mark's canonical combining class (bits
 // 24-31) against golang.org/x/text's (the reference normalization's
 // library, UnicodeData.txt field 3), and the compose-first bit against the
-// list scriptComposeFirst.
+// list scriptComposeFirst; and the sentence stop bits (scriptSBStops)
+// against the entries' Sentence_Break properties.
 func TestScriptTableClassBits(t *testing.T) {
 	marks, firsts := 0, 0
 	for r := rune(0); r <= 0xFFFF; r++ {
@@ -67,6 +68,9 @@ func TestScriptTableClassBits(t *testing.T) {
 		}
 		if e&entFirst != 0 {
 			firsts++
+		}
+		if got, want := scriptSBStops[r>>3]>>(r&7)&1 != 0, sbInside>>(e&entSB)&1 == 0; got != want {
+			t.Fatalf("U+%04X: sentence stop bit %v, Sentence_Break %d", r, got, e&entSB)
 		}
 	}
 	if marks < 500 || firsts < 500 {

@@ -365,6 +365,30 @@ func render(entries []uint32, forms map[rune]string, first []rune) []byte {
 			fmt.Fprintf(&buf, "\t\"%s\"%s", line, end)
 		}
 	}
+	// The sentence stops (fast.go's fastFirstSentence), one bit a code
+	// point: CR, LF, Sep, ATerm, STerm or slow.
+	stops := make([]byte, len(entries)/8)
+	for r, e := range entries {
+		switch e & 0xF {
+		case sbValues["CR"], sbValues["LF"], sbValues["Sep"], sbValues["ATerm"], sbValues["STerm"], sbSlow:
+			stops[r>>3] |= 1 << (r & 7)
+		}
+	}
+	buf.WriteString("\n// scriptSBStops has bit r&7 of byte r>>3 set when the Sentence_Break\n")
+	buf.WriteString("// property of r is CR, LF, Sep, ATerm, STerm or slow: the runes that end\n")
+	buf.WriteString("// fastFirstSentence's skip loop.\n")
+	buf.WriteString("const scriptSBStops = \"\" +\n")
+	for i := 0; i < len(stops); i += 32 {
+		line = line[:0]
+		for _, v := range stops[i : i+32] {
+			line = fmt.Appendf(line, "\\x%02x", v)
+		}
+		end := " +\n"
+		if i+32 == len(stops) {
+			end = "\n"
+		}
+		fmt.Fprintf(&buf, "\t\"%s\"%s", line, end)
+	}
 	var keys []rune
 	for r := range forms {
 		keys = append(keys, r)
