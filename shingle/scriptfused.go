@@ -100,18 +100,25 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 			r = runeOf(s, i, size)
 		}
 		e := scriptEntry(r)
-		if e&fuseQuick == 0 && state >= 0 && !space && i >= wskip && i >= nskip &&
-			int(wordTab[state&15<<5|int(e&entWB>>entWBShift)]) == state {
-			// The common case inside a word (see quickRun).
-			var all uint32
-			from, lastAt := i, 0
-			if dst, i, lastAt, all = quickRun(dst, s, i, state); i == from {
+		if state >= 0 && !space && i >= wskip && i >= nskip && quickTakes(e, state, wordy) {
+			// The common case inside a word, and from word to word where
+			// nothing but a space or a break lies between (see quickRun).
+			from, lastAt, crossed := i, 0, 0
+			if dst, i, lastAt, wordy, crossed = quickRun(dst, s, i, state, wordy); i == from {
 				// quickRun stopped at once, which it does not on the runes
 				// let in here; should the two tests ever disagree, this
 				// keeps the loop from running in place.
 				return dst[:base], 0, false
 			}
-			wordy = wordy || all&entWordy != 0
+			if crossed > 0 {
+				// Each word boundary crossed ended a word; the first one
+				// ends the word a hyphen may have joined to the one before.
+				if joined {
+					crossed--
+				}
+				n += crossed
+				joined = false
+			}
 			prev = runeOf(s, lastAt, i-lastAt)
 			prevLetter, prevCCC, marks = scriptEntry(prev)&entLetter != 0, -1, 0
 			continue
@@ -260,69 +267,122 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 }
 
 // quickRun is fuseScript's quick step, in a loop of its own (so that its
-// few variables stay in registers): from s[i:], while each rune continues
-// the word segment in the same state (a letter after a letter: wordTab
-// gives state, no break) and is its own normalized form and not a mark
-// (fuseQuick), it appends the rune to dst. It returns dst, where it
-// stopped, where the last rune taken starts, and the OR of the entries
-// taken. The rune at i must qualify.
+// few variables stay in registers). From s[i:], in word-segmenter state
+// state, it takes each rune that is its own normalized form and not a mark
+// (fuseQuick) and that either
+//
+//   - continues the word segment in the same state (a letter after a
+//     letter: wordTab gives state, no break), or
+//   - starts a new segment in the same state after a wordy one, being wordy
+//     itself (an ideograph after an ideograph: wordTab gives a break and
+//     state), or does so after one ASCII space (a letter after "letter "),
+//
+// and appends its form, the rune (and the space as a space), to dst. In
+// the second case the segment before was a word (it was wordy; a space or
+// a wordy rune is no joining hyphen): crossed counts them. It returns dst,
+// where it stopped, where the last rune taken starts, whether the segment
+// it ends in is wordy (as wordy is for the segment at i) and crossed. The
+// rune at i must qualify (quickTakes).
 //
 // The loop is written for the two- and three-byte letters of the
 // alphabetic scripts and of Han and Hangul: the room for the run is made
-// once (a taken rune's form is the rune, so the run's form is as long as
-// the run), and U+FFFD and the surrogates, which decode
+// once (a taken rune's form is the rune and a space a space, so the run's
+// form is as long as the run), and U+FFFD and the surrogates, which decode
 // here, stop the run by their slow entries (fuseQuick); an overlong
 // three-byte form stops it by r < 0x800.
-func quickRun(dst []byte, s string, i, state int) (out []byte, end, lastAt int, all uint32) {
+func quickRun(dst []byte, s string, i, state int, wordy bool) (out []byte, end, lastAt int, segWordy bool, crossed int) {
 	if room := len(s) - i; cap(dst)-len(dst) < room {
 		dst = slices.Grow(dst, room)
 	}
-	j := len(dst)
+	j0 := len(dst)
+	j := j0
 	buf := dst[:cap(dst)]
-	row := state & 15 << 5
 	lastAt = i
 	for uint(i) < uint(len(s)) {
-		c := s[i]
+		at := i // where the rune starts: after a space, the byte after it
+		if s[i] == ' ' {
+			// A space ends a wordy segment before a rune that starts one
+			// in the same state; the form of the space is a space, written
+			// after some rune of this run (so the form is not empty).
+			if !wordy || j == j0 {
+				break
+			}
+			at++
+		}
+		if at >= len(s) {
+			break
+		}
+		c := s[at]
 		var e uint32
 		size := 2
 		switch {
 		case c-0xC2 < 0xE0-0xC2:
-			if i+1 >= len(s) || s[i+1]&0xC0 != 0x80 {
-				return buf[:j], i, lastAt, all
+			if at+1 >= len(s) || s[at+1]&0xC0 != 0x80 {
+				return buf[:j], i, lastAt, wordy, crossed
 			}
-			e = scriptEntry(rune(c&0x1F)<<6 | rune(s[i+1]&0x3F))
+			e = scriptEntry(rune(c&0x1F)<<6 | rune(s[at+1]&0x3F))
 		case c-0xE0 < 0x10:
-			if i+2 >= len(s) {
-				return buf[:j], i, lastAt, all
+			if at+2 >= len(s) {
+				return buf[:j], i, lastAt, wordy, crossed
 			}
-			d, f := s[i+1], s[i+2]
+			d, f := s[at+1], s[at+2]
 			r := rune(c&0x0F)<<12 | rune(d&0x3F)<<6 | rune(f&0x3F)
 			if d&0xC0 != 0x80 || f&0xC0 != 0x80 || r < 0x800 {
-				return buf[:j], i, lastAt, all
+				return buf[:j], i, lastAt, wordy, crossed
 			}
 			e, size = scriptEntry(r), 3
 		case c < utf8.RuneSelf:
 			e, size = scriptEntry(rune(c)), 1
 		default:
-			return buf[:j], i, lastAt, all
+			return buf[:j], i, lastAt, wordy, crossed
 		}
-		if e&fuseQuick != 0 || int(wordTab[row|int(e>>entWBShift&31)]) != state {
-			break
+		if at > i {
+			// After the space: the state is WSegSpace, and the rune must
+			// break into state, be wordy and be its own form.
+			if e&fuseQuick != 0 || e&entWordy == 0 ||
+				int(wordTab[wsWSegSpace<<5|int(e>>entWBShift&31)]) != wtBreak|state {
+				break
+			}
+			crossed++
+			buf[j] = ' '
+			j++
+		} else {
+			t := int(wordTab[state&15<<5|int(e>>entWBShift&31)])
+			switch {
+			case e&fuseQuick != 0:
+				return buf[:j], i, lastAt, wordy, crossed
+			case t == state:
+				wordy = wordy || e&entWordy != 0
+			case t == wtBreak|state && wordy && e&entWordy != 0:
+				crossed++
+			default:
+				return buf[:j], i, lastAt, wordy, crossed
+			}
 		}
 		switch size {
 		case 1:
 			buf[j] = c
 		case 2:
-			buf[j], buf[j+1] = c, s[i+1]
+			buf[j], buf[j+1] = c, s[at+1]
 		default:
-			buf[j], buf[j+1], buf[j+2] = c, s[i+1], s[i+2]
+			buf[j], buf[j+1], buf[j+2] = c, s[at+1], s[at+2]
 		}
-		all |= e
-		lastAt = i
-		i += size
+		lastAt = at
+		i = at + size
 		j += size
 	}
-	return buf[:j], i, lastAt, all
+	return buf[:j], i, lastAt, wordy, crossed
+}
+
+// quickTakes reports whether quickRun takes a rune of entry e first, in
+// state state after a segment that is wordy or not: the test of its loop
+// for a rune not after a space.
+func quickTakes(e uint32, state int, wordy bool) bool {
+	if e&fuseQuick != 0 {
+		return false
+	}
+	t := int(wordTab[state&15<<5|int(e>>entWBShift&31)])
+	return t == state || t == wtBreak|state && wordy && e&entWordy != 0
 }
 
 // fuseQuick masks the entry bits that keep a rune off fuseScript's quick

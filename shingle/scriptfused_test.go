@@ -122,6 +122,15 @@ func TestFuseScriptCases(t *testing.T) {
 		{strings.Repeat("\u094d", 30) + "\u1161", false}, // NFKC inserts U+034F after 30 non-starters
 		{"\u0915" + strings.Repeat("\u093c", 25), false},
 		{"а-", true},
+		// quickRun from word to word: over one space, over a break.
+		{"Жук-жук идёт дальше", true},              // the first word crossed was joined
+		{"слово  слово слово-\nслово слово", true}, // two spaces; a join at a line end
+		{"中文中文，中文 中文", true},                       // ideographs, a separator, a space
+		{"한국어 한국어 אבג דהו カタカナ カタカナ", true},        // Hangul, Hebrew, Katakana states
+		{"12 34 ab cd Жук Ab слово \u0301", true},  // digits, ASCII letters, upper case, a mark
+		{"слово 中 中 слово", true},                  // from one state into another
+		{"слово ", true},
+		{"\u02c2 \u02c2 \u02c2а а", true}, // ALetter that is no word rune
 	} {
 		if ok := checkFuseScript(t, &n, c.s); c.fast && !ok {
 			t.Errorf("%+q: fuseScript gave up", c.s)
