@@ -120,7 +120,14 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 				joined = false
 			}
 			prev = runeOf(s, lastAt, i-lastAt)
-			prevLetter, prevCCC, marks = scriptEntry(prev)&entLetter != 0, -1, 0
+			le := scriptEntry(prev)
+			prevLetter, prevCCC, marks = le&entLetter != 0, -1, 0
+			if le&entMark != 0 {
+				prevCCC = int(le >> entCCC)
+			}
+			if le&(entMark|entCompose) != 0 {
+				marks = 1 // after a rune that is neither (quickRun)
+			}
 			continue
 		}
 		if i >= wskip {
@@ -277,6 +284,10 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 //     itself (an ideograph after an ideograph: wordTab gives a break and
 //     state), or does so after one ASCII space (a letter after "letter "),
 //
+// and, as an exception to "not a mark", a combining mark or composing rune
+// continuing the segment right after a taken rune that is neither, and
+// that does not compose with it (a virama or a vowel sign after a letter),
+//
 // and appends its form, the rune (and the space as a space), to dst. In
 // the second case the segment before was a word (it was wordy; a space or
 // a wordy rune is no joining hyphen): crossed counts them. It returns dst,
@@ -298,6 +309,7 @@ func quickRun(dst []byte, s string, i, state int, wordy bool) (out []byte, end, 
 	j := j0
 	buf := dst[:cap(dst)]
 	lastAt = i
+	prevE := uint32(entMark) // the entry of the last rune taken; none yet, taken as a mark
 	for uint(i) < uint(len(s)) {
 		at := i // where the rune starts: after a space, the byte after it
 		if s[i] == ' ' {
@@ -349,8 +361,18 @@ func quickRun(dst []byte, s string, i, state int, wordy bool) (out []byte, end, 
 		} else {
 			t := int(wordTab[state&15<<5|int(e>>entWBShift&31)])
 			switch {
-			case e&fuseQuick != 0:
+			case e&fuseQuick&^(entMark|entCompose) != 0:
 				return buf[:j], i, lastAt, wordy, crossed
+			case e&(entMark|entCompose) != 0:
+				// A mark or composing rune kept as it is (a virama, a
+				// vowel sign), after a rune of this run that is neither:
+				// fuseScript's normalizer checks then come down to "it
+				// does not compose with that rune" (bit entFirst of it);
+				// it cannot be out of order, nor the 20th in a row. It
+				// must continue the segment.
+				if prevE&(entMark|entCompose) != 0 || e&entCompose != 0 && prevE&entFirst != 0 || t != state {
+					return buf[:j], i, lastAt, wordy, crossed
+				}
 			case t == state:
 				wordy = wordy || e&entWordy != 0
 			case t == wtBreak|state && wordy && e&entWordy != 0:
@@ -367,7 +389,7 @@ func quickRun(dst []byte, s string, i, state int, wordy bool) (out []byte, end, 
 		default:
 			buf[j], buf[j+1], buf[j+2] = c, s[at+1], s[at+2]
 		}
-		lastAt = at
+		lastAt, prevE = at, e
 		i = at + size
 		j += size
 	}

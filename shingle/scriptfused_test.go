@@ -131,6 +131,14 @@ func TestFuseScriptCases(t *testing.T) {
 		{"слово 中 中 слово", true},                  // from one state into another
 		{"слово ", true},
 		{"\u02c2 \u02c2 \u02c2а а", true}, // ALetter that is no word rune
+		// quickRun over one mark or composing rune after a letter.
+		{"কা কা ক\u09cd\u09cd ক\u09cdষ", true},     // U+09BE composes, but not with a letter; two viramas
+		{"ক\u09c7\u09be", false},                   // U+09C7 U+09BE compose to U+09CB
+		{"க்கா தமிழ் கொ", true},                    // Tamil pulli and U+0BBE
+		{"क\u093c\u0300 क\u0300\u093c", false},     // in order, then out of order
+		{"a\u0301", false},                         // composes with the ASCII letter
+		{"\u0436\u0301 \u0436\u0308", false},       // ж is a first rune (ж U+0308 is U+04DD)
+		{strings.Repeat("\u0915\u094d", 30), true}, // mark, letter, mark...
 	} {
 		if ok := checkFuseScript(t, &n, c.s); c.fast && !ok {
 			t.Errorf("%+q: fuseScript gave up", c.s)
