@@ -103,6 +103,17 @@ func hasTerminator(text string) bool {
 			i += 2
 			continue
 		}
+		if c-0xE0 < 0x10 && i+2 < len(text) && text[i+1]&0xC0 == 0x80 && text[i+2]&0xC0 == 0x80 {
+			// Three bytes (Indic, Thai, Han, kana, Hangul): the same, but
+			// for the forms that are not runes (overlong, surrogates).
+			if r := runeOf(text, i, 3); r >= 0x800 && (r < 0xD800 || r > 0xDFFF) {
+				if isTerminatorRune(r) {
+					return true
+				}
+				i += 3
+				continue
+			}
+		}
 		r, size := utf8.DecodeRuneInString(text[i:])
 		if isTerminatorRune(r) {
 			return true

@@ -93,8 +93,9 @@ func TestHasTerminatorMatches(t *testing.T) {
 			t.Fatalf("U+%04X: hasTerminator %v, isTerminator %v", r, got, want)
 		}
 	}
-	for _, s := range []string{"\xd0", "\xd0.", "\xd0\xd0", "a\xe0\x80\x80", "\xc2\x85"} {
-		want := strings.ContainsAny(s, ".!?")
+	for _, s := range []string{"\xd0", "\xd0.", "\xd0\xd0", "a\xe0\x80\x80", "\xc2\x85", "\xe0\x80\xae",
+		"\xed\xa0\x80", "\xe3\x80", "\xe3\x80\x82", "\xe3\x80\x82"[:2]} {
+		want := strings.ContainsAny(s, ".!?") || strings.Contains(s, "\u3002")
 		if got := hasTerminator(s); got != want {
 			t.Errorf("%q: hasTerminator %v, want %v", s, got, want)
 		}

@@ -313,13 +313,16 @@ func fastFirstSentence(b []byte) (n int, ok bool) {
 					switch {
 					case c-0xC2 < 0xE0-0xC2 && length+1 < len(b) && b[length+1]&0xC0 == 0x80:
 						r = rune(c&0x1F)<<6 | rune(b[length+1]&0x3F)
-					case c-0xE0 < 0x10 && length+2 < len(b) && threeByteOK(c, b[length+1], b[length+2]):
+					case c-0xE0 < 0x10 && length+2 < len(b) && b[length+1]&0xC0 == 0x80 && b[length+2]&0xC0 == 0x80:
 						r, l = rune(c&0x0F)<<12|rune(b[length+1]&0x3F)<<6|rune(b[length+2]&0x3F), 3
+						if r < 0x800 {
+							break skip // overlong
+						}
 					default:
 						break skip
 					}
 					if scriptSBStops[r>>3&0x1FFF]>>(r&7)&1 != 0 {
-						break // U+FFFD is a stop (its entry is slow)
+						break // U+FFFD and the surrogates are stops (their entries are slow)
 					}
 					length += l
 					continue
