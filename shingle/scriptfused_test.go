@@ -131,6 +131,14 @@ func TestFuseScriptCases(t *testing.T) {
 		{"слово 中 中 слово", true},                  // from one state into another
 		{"слово ", true},
 		{"\u02c2 \u02c2 \u02c2а а", true}, // ALetter that is no word rune
+		// quickRun between words: one space is crossed, other separators are not.
+		{"слово, слово; слово: слово,слово 1,2 1, 2 а.б а. б", true},
+		{"слово - слово слово-слово слово -слово", true},             // hyphens are not crossed
+		{"слово\u2010слово слово\u2011слово слово\u2014слово", true}, // U+2010, U+2011, an em dash
+		{"слово ,, слово слово\n\nслово слово\r\nслово", true},       // three separators; line breaks
+		{"中文，中文、中文 中文", true},
+		{"слово_слово слово _слово слово \u200bслово", true}, // ExtendNumLet; ZWSP is dropped
+		{"слово' слово \" слово", true},
 		// quickRun over one mark or composing rune after a letter.
 		{"কা কা ক\u09cd\u09cd ক\u09cdষ", true},     // U+09BE composes, but not with a letter; two viramas
 		{"ক\u09c7\u09be", false},                   // U+09C7 U+09BE compose to U+09CB
