@@ -14,7 +14,13 @@
 //     rune, or a combining mark that normalization changes, is marked for
 //     the reference path;
 //   - whether it is a letter and whether it makes a word segment a word
-//     (unicode.IsLetter, and isWordRune of words.go).
+//     (unicode.IsLetter, and isWordRune of words.go);
+//   - for a combining mark kept as it is, its canonical combining class, and
+//     for every rune whether a composing rune may be joined to it, so that
+//     the walks need no x/text call or list search for either.
+//
+// Beside the table it writes scriptSBStops, one bit per code point: the
+// Sentence_Break properties that end the sentence segmenter's skip loop.
 //
 // The command in cmd/ writes the file: from the module root,
 // go run ./shingle/internal/gentables/cmd -o shingle/scripttables.go
