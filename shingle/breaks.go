@@ -92,6 +92,28 @@ func hasTerminator(text string) bool {
 			i++
 			continue
 		}
+		if c-0xC2 < 0xE0-0xC2 && i+1 < len(text) && text[i+1]&0xC0 == 0x80 {
+			// A two-byte rune (the alphabetic scripts), decoded inline:
+			// isTerminatorRune's test (TestScriptTableMatchesReference
+			// checks the table's terminators against isTerminator).
+			p := scriptEntry(rune(c&0x1F)<<6|rune(text[i+1]&0x3F)) & entSB
+			if p == sbpATerm || p == sbpSTerm || p == sbpSlow && isTerminator(runeOf(text, i, 2)) {
+				return true
+			}
+			i += 2
+			continue
+		}
+		if c-0xE0 < 0x10 && i+2 < len(text) && text[i+1]&0xC0 == 0x80 && text[i+2]&0xC0 == 0x80 {
+			// Three bytes (Indic, Thai, Han, kana, Hangul): the same, but
+			// for the forms that are not runes (overlong, surrogates).
+			if r := runeOf(text, i, 3); r >= 0x800 && (r < 0xD800 || r > 0xDFFF) {
+				if isTerminatorRune(r) {
+					return true
+				}
+				i += 3
+				continue
+			}
+		}
 		r, size := utf8.DecodeRuneInString(text[i:])
 		if isTerminatorRune(r) {
 			return true
@@ -120,19 +142,37 @@ func isTrimmable(r rune) bool {
 	return unicode.IsSpace(r) || unicode.Is(unicode.Cf, r)
 }
 
+// trimmableRune is isTrimmable by the script table where it answers: a
+// format character is what the table drops (normDrop: Cf), and white space
+// outside ASCII is Sentence_Break Sp, Sep, CR or LF (UAX #29 defines Sp as
+// White_Space but Sep, CR and LF). TestTrimmableRuneMatches checks every
+// code point of the table against isTrimmable.
+func trimmableRune(r rune) bool {
+	if r < utf8.RuneSelf {
+		return r == ' ' || r == '\t' || r == '\n' || r == '\r' || r == '\v' || r == '\f'
+	}
+	if r <= 0xFFFF {
+		if e := scriptEntry(r); e&entSB != sbpSlow {
+			const spaces = 1<<sbpSp | 1<<sbpSep | 1<<sbpCR | 1<<sbpLF
+			return e>>entNormShift&3 == normDrop || spaces>>(e&entSB)&1 != 0
+		}
+	}
+	return isTrimmable(r)
+}
+
 // trimSpan narrows [start, end) of text past trimmable runes at both ends.
 // Invalid bytes are never trimmed.
 func trimSpan(text string, start, end int) (int, int) {
 	for start < end {
 		r, size := utf8.DecodeRuneInString(text[start:end])
-		if r == utf8.RuneError || !isTrimmable(r) {
+		if r == utf8.RuneError || !trimmableRune(r) {
 			break
 		}
 		start += size
 	}
 	for end > start {
 		r, size := utf8.DecodeLastRuneInString(text[start:end])
-		if r == utf8.RuneError || !isTrimmable(r) {
+		if r == utf8.RuneError || !trimmableRune(r) {
 			break
 		}
 		end -= size

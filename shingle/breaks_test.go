@@ -1,6 +1,7 @@
 package shingle
 
 import (
+	"strings"
 	"testing"
 
 	"pgregory.net/rapid"
@@ -67,4 +68,36 @@ func TestUnwrap(t *testing.T) {
 	rapid.Check(t, func(rt *rapid.T) {
 		check(rt, rapid.StringOf(rapid.SampledFrom([]rune("ab \t\n\r\n\r\v\f"))).Draw(rt, "text"))
 	})
+}
+
+// TestTrimmableRuneMatches checks the table's answer to isTrimmable (Go's
+// unicode tables: White_Space and General_Category Cf) on every code point.
+func TestTrimmableRuneMatches(t *testing.T) {
+	for r := rune(0); r <= 0x10FFFF; r++ {
+		if got, want := trimmableRune(r), isTrimmable(r); got != want {
+			t.Fatalf("U+%04X: trimmableRune %v, isTrimmable %v", r, got, want)
+		}
+	}
+}
+
+// TestHasTerminatorMatches checks hasTerminator against isTerminator (Go's
+// unicode tables: Sentence_Terminal, and the four ATerm code points of UAX
+// #29 table 4) for every code point between two-byte letters, and on
+// invalid UTF-8.
+func TestHasTerminatorMatches(t *testing.T) {
+	for r := rune(0); r <= 0x10FFFF; r++ {
+		if 0xD800 <= r && r <= 0xDFFF {
+			continue
+		}
+		if got, want := hasTerminator("\u0436"+string(r)+"\u0436"), isTerminator(r); got != want {
+			t.Fatalf("U+%04X: hasTerminator %v, isTerminator %v", r, got, want)
+		}
+	}
+	for _, s := range []string{"\xd0", "\xd0.", "\xd0\xd0", "a\xe0\x80\x80", "\xc2\x85", "\xe0\x80\xae",
+		"\xed\xa0\x80", "\xe3\x80", "\xe3\x80\x82", "\xe3\x80\x82"[:2]} {
+		want := strings.ContainsAny(s, ".!?") || strings.Contains(s, "\u3002")
+		if got := hasTerminator(s); got != want {
+			t.Errorf("%q: hasTerminator %v, want %v", s, got, want)
+		}
+	}
 }

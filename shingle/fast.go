@@ -299,31 +299,30 @@ func fastFirstSentence(b []byte) (n int, ok bool) {
 			// separator and the terminators never breaks and leaves the
 			// state its own base (or, Extend and Format, as it was): skip
 			// the run in one tight loop, eight bytes at a time over ASCII,
-			// by the script table over the rest.
+			// by the script table's stop bits (scriptSBStops) over the
+			// rest; the state is that of the run's last rune, found once
+			// the run ends (skippedState).
+			from := length
 		skip:
 			for uint(length) < uint(len(b)) {
 				if c := b[length]; c >= utf8.RuneSelf {
 					// decodeEntry, inline but for the rarer forms (as in
-					// fuseScript).
-					var e uint32
+					// fuseScript); those end the run.
+					var r rune
 					l := 2
 					switch {
 					case c-0xC2 < 0xE0-0xC2 && length+1 < len(b) && b[length+1]&0xC0 == 0x80:
-						e = scriptEntry(rune(c&0x1F)<<6 | rune(b[length+1]&0x3F))
-					case c-0xE0 < 0x10 && length+2 < len(b) && threeByteOK(c, b[length+1], b[length+2]) &&
-						(c != 0xEF || b[length+1] != 0xBF || b[length+2] != 0xBD): // not U+FFFD
-						e, l = scriptEntry(rune(c&0x0F)<<12|rune(b[length+1]&0x3F)<<6|rune(b[length+2]&0x3F)), 3
-					default:
-						if e, l = decodeEntry(b, length); l == 0 {
-							break skip
+						r = rune(c&0x1F)<<6 | rune(b[length+1]&0x3F)
+					case c-0xE0 < 0x10 && length+2 < len(b) && b[length+1]&0xC0 == 0x80 && b[length+2]&0xC0 == 0x80:
+						r, l = rune(c&0x0F)<<12|rune(b[length+1]&0x3F)<<6|rune(b[length+2]&0x3F), 3
+						if r < 0x800 {
+							break skip // overlong
 						}
+					default:
+						break skip
 					}
-					p := int(e & entSB)
-					if sbInside>>p&1 == 0 {
-						break
-					}
-					if p != sbpExtend && p != sbpFormat {
-						state = sbBase(p)
+					if scriptSBStops[r>>3&0x1FFF]>>(r&7)&1 != 0 {
+						break // U+FFFD and the surrogates are stops (their entries are slow)
 					}
 					length += l
 					continue
@@ -342,9 +341,8 @@ func fastFirstSentence(b []byte) (n int, ok bool) {
 				if length == start {
 					break // CR, LF or a terminator
 				}
-				// The skipped bytes are ASCII; the mask spares a bounds check.
-				state = sbBase(int(asciiSB[b[length-1]&0x7F]))
 			}
+			state = skippedState(b[from:length], state)
 			if len(b) <= length {
 				return len(b), true
 			}
@@ -382,6 +380,27 @@ func fastFirstSentence(b []byte) (n int, ok bool) {
 			return len(b), true
 		}
 	}
+}
+
+// skippedState returns the segmenter state after the run run of
+// fastFirstSentence's skip loop, entered in state: sbBase of the property
+// of its last rune that is not Extend or Format, or state when there is
+// none. Every rune of run is ASCII or a two- or three-byte rune of the
+// script table whose property is not slow.
+func skippedState(run []byte, state int) int {
+	for len(run) > 0 {
+		if c := run[len(run)-1]; c < utf8.RuneSelf {
+			// ASCII holds no Extend or Format; the mask spares a bounds
+			// check.
+			return sbBase(int(asciiSB[c&0x7F]))
+		}
+		r, size := utf8.DecodeLastRune(run)
+		if p := int(scriptEntry(r&0xFFFF) & entSB); p != sbpExtend && p != sbpFormat {
+			return sbBase(p)
+		}
+		run = run[:len(run)-size]
+	}
+	return state
 }
 
 // sb8Lower runs SB8's look-ahead from a rune of property p followed by rest:

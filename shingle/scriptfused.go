@@ -100,20 +100,34 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 			r = runeOf(s, i, size)
 		}
 		e := scriptEntry(r)
-		if e&fuseQuick == 0 && state >= 0 && !space && i >= wskip && i >= nskip &&
-			int(wordTab[state&15<<5|int(e&entWB>>entWBShift)]) == state {
-			// The common case inside a word (see quickRun).
-			var last rune
-			var lastE, all uint32
-			from := i
-			if dst, i, last, lastE, all = quickRun(dst, s, i, state); i == from {
+		if state >= 0 && !space && i >= wskip && i >= nskip && quickTakes(e, state, wordy) {
+			// The common case inside a word, and from word to word where
+			// nothing but a space or a break lies between (see quickRun).
+			from, lastAt, crossed := i, 0, 0
+			if dst, i, lastAt, wordy, crossed = quickRun(dst, s, i, state, wordy); i == from {
 				// quickRun stopped at once, which it does not on the runes
 				// let in here; should the two tests ever disagree, this
 				// keeps the loop from running in place.
 				return dst[:base], 0, false
 			}
-			wordy = wordy || all&entWordy != 0
-			prev, prevLetter, prevCCC, marks = last, lastE&entLetter != 0, -1, 0
+			if crossed > 0 {
+				// Each word boundary crossed ended a word; the first one
+				// ends the word a hyphen may have joined to the one before.
+				if joined {
+					crossed--
+				}
+				n += crossed
+				joined = false
+			}
+			prev = runeOf(s, lastAt, i-lastAt)
+			le := scriptEntry(prev)
+			prevLetter, prevCCC, marks = le&entLetter != 0, -1, 0
+			if le&entMark != 0 {
+				prevCCC = int(le >> entCCC)
+			}
+			if le&(entMark|entCompose) != 0 {
+				marks = 1 // after a rune that is neither (quickRun)
+			}
 			continue
 		}
 		if i >= wskip {
@@ -203,7 +217,7 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 				continue
 			}
 		}
-		if e&entCompose != 0 && (e&entMark != 0 && prevCCC >= 0 || inRuneList(scriptComposeFirst, prev) >= 0) {
+		if e&entCompose != 0 && (e&entMark != 0 && prevCCC >= 0 || scriptEntry(prev)&entFirst != 0) {
 			return dst[:base], 0, false
 		}
 		prev = r
@@ -214,7 +228,7 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 			return dst[:base], 0, false // NFKC may insert U+034F (see maxMarkRun)
 		}
 		if e&entMark != 0 {
-			ccc := int(norm.NFC.PropertiesString(s[i : i+size]).CCC())
+			ccc := int(e >> entCCC)
 			if ccc < prevCCC {
 				return dst[:base], 0, false
 			}
@@ -260,42 +274,137 @@ func fuseScript(dst []byte, s string) (out []byte, words int, ok bool) {
 }
 
 // quickRun is fuseScript's quick step, in a loop of its own (so that its
-// few variables stay in registers): from s[i:], while each rune continues
-// the word segment in the same state (a letter after a letter: wordTab
-// gives state, no break) and is its own normalized form and not a mark
-// (fuseQuick), it appends the rune to dst. It returns dst, where it
-// stopped, the last rune taken and its entry, and the OR of the entries
-// taken. The rune at i must qualify.
-func quickRun(dst []byte, s string, i, state int) (out []byte, end int, last rune, lastE, all uint32) {
-	for i < len(s) {
-		c := s[i]
-		r := rune(c)
-		size := 1
-		switch {
-		case c < utf8.RuneSelf:
-		case c-0xC2 < 0xE0-0xC2 && i+1 < len(s) && s[i+1]&0xC0 == 0x80:
-			r, size = rune(c&0x1F)<<6|rune(s[i+1]&0x3F), 2
-		case c-0xE0 < 0x10 && i+2 < len(s) && threeByteOK(c, s[i+1], s[i+2]):
-			r, size = rune(c&0x0F)<<12|rune(s[i+1]&0x3F)<<6|rune(s[i+2]&0x3F), 3
-		default:
-			return dst, i, last, lastE, all
+// few variables stay in registers). From s[i:], in word-segmenter state
+// state, it takes each rune that is its own normalized form and not a mark
+// (fuseQuick) and that either
+//
+//   - continues the word segment in the same state (a letter after a
+//     letter: wordTab gives state, no break), or
+//   - starts a new segment in the same state after a wordy one, being wordy
+//     itself (an ideograph after an ideograph: wordTab gives a break and
+//     state), or does so after one ASCII space (a letter after "letter "),
+//
+// and, as an exception to "not a mark", a combining mark or composing rune
+// continuing the segment right after a taken rune that is neither, and
+// that does not compose with it (a virama or a vowel sign after a letter),
+//
+// and appends its form, the rune (and the space as a space), to dst. In
+// the second case the segment before was a word (it was wordy; a space or
+// a wordy rune is no joining hyphen): crossed counts them. It returns dst,
+// where it stopped, where the last rune taken starts, whether the segment
+// it ends in is wordy (as wordy is for the segment at i) and crossed. The
+// rune at i must qualify (quickTakes).
+//
+// The loop is written for the two- and three-byte letters of the
+// alphabetic scripts and of Han and Hangul: the room for the run is made
+// once (a taken rune's form is the rune and a space a space, so the run's
+// form is as long as the run), and U+FFFD and the surrogates, which decode
+// here, stop the run by their slow entries (fuseQuick); an overlong
+// three-byte form stops it by r < 0x800.
+func quickRun(dst []byte, s string, i, state int, wordy bool) (out []byte, end, lastAt int, segWordy bool, crossed int) {
+	if room := len(s) - i; cap(dst)-len(dst) < room {
+		dst = slices.Grow(dst, room)
+	}
+	j0 := len(dst)
+	j := j0
+	buf := dst[:cap(dst)]
+	lastAt = i
+	prevE := uint32(entMark) // the entry of the last rune taken; none yet, taken as a mark
+	for uint(i) < uint(len(s)) {
+		at := i // where the rune starts: after a space, the byte after it
+		if s[i] == ' ' {
+			// A space ends a wordy segment before a rune that starts one
+			// in the same state; the form of the space is a space, written
+			// after some rune of this run (so the form is not empty).
+			if !wordy || j == j0 {
+				break
+			}
+			at++
 		}
-		e := scriptEntry(r)
-		if e&fuseQuick != 0 || int(wordTab[state&15<<5|int(e&entWB>>entWBShift)]) != state || r == utf8.RuneError {
+		if at >= len(s) {
 			break
+		}
+		c := s[at]
+		var e uint32
+		size := 2
+		switch {
+		case c-0xC2 < 0xE0-0xC2:
+			if at+1 >= len(s) || s[at+1]&0xC0 != 0x80 {
+				return buf[:j], i, lastAt, wordy, crossed
+			}
+			e = scriptEntry(rune(c&0x1F)<<6 | rune(s[at+1]&0x3F))
+		case c-0xE0 < 0x10:
+			if at+2 >= len(s) {
+				return buf[:j], i, lastAt, wordy, crossed
+			}
+			d, f := s[at+1], s[at+2]
+			r := rune(c&0x0F)<<12 | rune(d&0x3F)<<6 | rune(f&0x3F)
+			if d&0xC0 != 0x80 || f&0xC0 != 0x80 || r < 0x800 {
+				return buf[:j], i, lastAt, wordy, crossed
+			}
+			e, size = scriptEntry(r), 3
+		case c < utf8.RuneSelf:
+			e, size = scriptEntry(rune(c)), 1
+		default:
+			return buf[:j], i, lastAt, wordy, crossed
+		}
+		if at > i {
+			// After the space: the state is WSegSpace, and the rune must
+			// break into state, be wordy and be its own form.
+			if e&fuseQuick != 0 || e&entWordy == 0 ||
+				int(wordTab[wsWSegSpace<<5|int(e>>entWBShift&31)]) != wtBreak|state {
+				break
+			}
+			crossed++
+			buf[j] = ' '
+			j++
+		} else {
+			t := int(wordTab[state&15<<5|int(e>>entWBShift&31)])
+			switch {
+			case e&fuseQuick&^(entMark|entCompose) != 0:
+				return buf[:j], i, lastAt, wordy, crossed
+			case e&(entMark|entCompose) != 0:
+				// A mark or composing rune kept as it is (a virama, a
+				// vowel sign), after a rune of this run that is neither:
+				// fuseScript's normalizer checks then come down to "it
+				// does not compose with that rune" (bit entFirst of it);
+				// it cannot be out of order, nor the 20th in a row. It
+				// must continue the segment.
+				if prevE&(entMark|entCompose) != 0 || e&entCompose != 0 && prevE&entFirst != 0 || t != state {
+					return buf[:j], i, lastAt, wordy, crossed
+				}
+			case t == state:
+				wordy = wordy || e&entWordy != 0
+			case t == wtBreak|state && wordy && e&entWordy != 0:
+				crossed++
+			default:
+				return buf[:j], i, lastAt, wordy, crossed
+			}
 		}
 		switch size {
 		case 1:
-			dst = append(dst, c)
+			buf[j] = c
 		case 2:
-			dst = append(dst, c, s[i+1])
+			buf[j], buf[j+1] = c, s[at+1]
 		default:
-			dst = append(dst, c, s[i+1], s[i+2])
+			buf[j], buf[j+1], buf[j+2] = c, s[at+1], s[at+2]
 		}
-		last, lastE, all = r, e, all|e
-		i += size
+		lastAt, prevE = at, e
+		i = at + size
+		j += size
 	}
-	return dst, i, last, lastE, all
+	return buf[:j], i, lastAt, wordy, crossed
+}
+
+// quickTakes reports whether quickRun takes a rune of entry e first, in
+// state state after a segment that is wordy or not: the test of its loop
+// for a rune not after a space.
+func quickTakes(e uint32, state int, wordy bool) bool {
+	if e&fuseQuick != 0 {
+		return false
+	}
+	t := int(wordTab[state&15<<5|int(e>>entWBShift&31)])
+	return t == state || t == wtBreak|state && wordy && e&entWordy != 0
 }
 
 // fuseQuick masks the entry bits that keep a rune off fuseScript's quick
@@ -317,10 +426,13 @@ func threeByteOK(c, d, f byte) bool {
 	return lo <= d && d <= hi && f&0xC0 == 0x80
 }
 
-// runeOf returns the rune of the valid size-byte sequence at s[i:] (two or
-// three bytes, as decodeEntry accepted it).
+// runeOf returns the rune of the valid size-byte sequence at s[i:] (one,
+// two or three bytes, as decodeEntry accepted it).
 func runeOf(s string, i, size int) rune {
-	if size == 2 {
+	switch size {
+	case 1:
+		return rune(s[i])
+	case 2:
 		return rune(s[i]&0x1F)<<6 | rune(s[i+1]&0x3F)
 	}
 	return rune(s[i]&0x0F)<<12 | rune(s[i+1]&0x3F)<<6 | rune(s[i+2]&0x3F)

@@ -122,6 +122,31 @@ func TestFuseScriptCases(t *testing.T) {
 		{strings.Repeat("\u094d", 30) + "\u1161", false}, // NFKC inserts U+034F after 30 non-starters
 		{"\u0915" + strings.Repeat("\u093c", 25), false},
 		{"а-", true},
+		// quickRun from word to word: over one space, over a break.
+		{"Жук-жук идёт дальше", true},              // the first word crossed was joined
+		{"слово  слово слово-\nслово слово", true}, // two spaces; a join at a line end
+		{"中文中文，中文 中文", true},                       // ideographs, a separator, a space
+		{"한국어 한국어 אבג דהו カタカナ カタカナ", true},        // Hangul, Hebrew, Katakana states
+		{"12 34 ab cd Жук Ab слово \u0301", true},  // digits, ASCII letters, upper case, a mark
+		{"слово 中 中 слово", true},                  // from one state into another
+		{"слово ", true},
+		{"\u02c2 \u02c2 \u02c2а а", true}, // ALetter that is no word rune
+		// quickRun between words: one space is crossed, other separators are not.
+		{"слово, слово; слово: слово,слово 1,2 1, 2 а.б а. б", true},
+		{"слово - слово слово-слово слово -слово", true},             // hyphens are not crossed
+		{"слово\u2010слово слово\u2011слово слово\u2014слово", true}, // U+2010, U+2011, an em dash
+		{"слово ,, слово слово\n\nслово слово\r\nслово", true},       // three separators; line breaks
+		{"中文，中文、中文 中文", true},
+		{"слово_слово слово _слово слово \u200bслово", true}, // ExtendNumLet; ZWSP is dropped
+		{"слово' слово \" слово", true},
+		// quickRun over one mark or composing rune after a letter.
+		{"কা কা ক\u09cd\u09cd ক\u09cdষ", true},     // U+09BE composes, but not with a letter; two viramas
+		{"ক\u09c7\u09be", false},                   // U+09C7 U+09BE compose to U+09CB
+		{"க்கா தமிழ் கொ", true},                    // Tamil pulli and U+0BBE
+		{"क\u093c\u0300 क\u0300\u093c", false},     // in order, then out of order
+		{"a\u0301", false},                         // composes with the ASCII letter
+		{"\u0436\u0301 \u0436\u0308", false},       // ж is a first rune (ж U+0308 is U+04DD)
+		{strings.Repeat("\u0915\u094d", 30), true}, // mark, letter, mark...
 	} {
 		if ok := checkFuseScript(t, &n, c.s); c.fast && !ok {
 			t.Errorf("%+q: fuseScript gave up", c.s)

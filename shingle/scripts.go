@@ -52,14 +52,21 @@ import (
 //	bit   13    normalization is not per-rune: use the reference
 //	bit   14    canonical combining class is not 0
 //	bit   15    canonical composition may join it to the rune before
-//	bits 16-31  for "another form": the form (one rune) minus the rune,
+//	bit   16    a rune with bit 15 after it may be joined to it
+//	            (it is in scriptComposeFirst)
+//	bits 17-31  for "another form": the form (one rune) minus the rune,
 //	            signed; 0 when the form is in the form list (scriptForms)
+//	bits 24-31  for a combining mark (bit 14, always kept as it is): its
+//	            canonical combining class
 //
 // Two sorted lists complete it: the forms that are more than one rune or
 // too far from the rune (Thai SARA AM is two runes, fullwidth letters are
 // 65,248 code points from theirs), and the runes a composing rune may be
-// joined to (scriptComposeFirst): a composing rune after one of these, or
-// after a combining mark, sends the text to the reference.
+// joined to (scriptComposeFirst, also bit 16): a composing rune after one
+// of these, or after a combining mark, sends the text to the reference.
+// Bits 16 and 24-31 spare the walks a binary search in that list for each
+// composing rune (U+09BE, the commonest Bengali vowel sign, and U+0BBE in
+// Tamil compose) and an x/text call for each mark's class (the viramas).
 //
 // Thai, Lao, Khmer and Myanmar: UAX #29 leaves their words to a dictionary,
 // which uniseg (and so the reference) does not have: their letters are
@@ -79,7 +86,9 @@ const (
 	entNSlow     = 1 << 13
 	entMark      = 1 << 14
 	entCompose   = 1 << 15
-	entDelta     = 16
+	entFirst     = 1 << 16
+	entDelta     = 17
+	entCCC       = 24
 
 	normKeep  = 0
 	normSep   = 1
@@ -479,7 +488,7 @@ func scriptNormal(dst []byte, s string) ([]byte, bool) {
 				continue
 			}
 		}
-		if e&entCompose != 0 && (e&entMark != 0 && prevCCC >= 0 || inRuneList(scriptComposeFirst, prev) >= 0) {
+		if e&entCompose != 0 && (e&entMark != 0 && prevCCC >= 0 || scriptEntry(prev)&entFirst != 0) {
 			// It may compose with prev, or, being a mark, with a starter
 			// before the marks in between (a starter composes only with
 			// the rune next to it).
@@ -493,7 +502,7 @@ func scriptNormal(dst []byte, s string) ([]byte, bool) {
 			return dst[:base], false // NFKC may insert U+034F (see maxMarkRun)
 		}
 		if e&entMark != 0 {
-			ccc := int(norm.NFC.PropertiesString(s[i : i+size]).CCC())
+			ccc := int(e >> entCCC)
 			if ccc < prevCCC {
 				return dst[:base], false
 			}

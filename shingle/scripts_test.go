@@ -9,6 +9,7 @@ import (
 	"unicode/utf8"
 
 	"github.com/rivo/uniseg"
+	"golang.org/x/text/unicode/norm"
 	"pgregory.net/rapid"
 
 	"reprise/shingle/internal/gentables"
@@ -36,6 +37,44 @@ func TestScriptTablesUpToDate(t *testing.T) {
 	}
 	if !bytes.Equal(got, want) {
 		t.Fatal("scripttables.go is out of date: go generate ./shingle")
+	}
+}
+
+// TestScriptTableClassBits checks the two fields the walks read in place of
+// a look-up elsewhere: a kept mark's canonical combining class (bits
+// 24-31) against golang.org/x/text's (the reference normalization's
+// library, UnicodeData.txt field 3), and the compose-first bit against the
+// list scriptComposeFirst; and the sentence stop bits (scriptSBStops)
+// against the entries' Sentence_Break properties.
+func TestScriptTableClassBits(t *testing.T) {
+	marks, firsts := 0, 0
+	for r := rune(0); r <= 0xFFFF; r++ {
+		if 0xD800 <= r && r <= 0xDFFF {
+			continue
+		}
+		e := scriptEntry(r)
+		ccc := int(norm.NFC.PropertiesString(string(r)).CCC())
+		if (e&entMark != 0) != (ccc != 0) {
+			t.Fatalf("U+%04X: mark bit %v, x/text class %d", r, e&entMark != 0, ccc)
+		}
+		if e&entMark != 0 && e&entNSlow == 0 {
+			marks++
+			if got := int(e >> entCCC); got != ccc {
+				t.Fatalf("U+%04X: class %d in the table, %d in x/text", r, got, ccc)
+			}
+		}
+		if got, want := e&entFirst != 0, inRuneList(scriptComposeFirst, r) >= 0; got != want {
+			t.Fatalf("U+%04X: compose-first bit %v, in scriptComposeFirst %v", r, got, want)
+		}
+		if e&entFirst != 0 {
+			firsts++
+		}
+		if got, want := scriptSBStops[r>>3]>>(r&7)&1 != 0, sbInside>>(e&entSB)&1 == 0; got != want {
+			t.Fatalf("U+%04X: sentence stop bit %v, Sentence_Break %d", r, got, e&entSB)
+		}
+	}
+	if marks < 500 || firsts < 500 {
+		t.Fatalf("%d kept marks, %d compose-first runes: table not filled", marks, firsts)
 	}
 }
 

@@ -14,7 +14,13 @@
 //     rune, or a combining mark that normalization changes, is marked for
 //     the reference path;
 //   - whether it is a letter and whether it makes a word segment a word
-//     (unicode.IsLetter, and isWordRune of words.go).
+//     (unicode.IsLetter, and isWordRune of words.go);
+//   - for a combining mark kept as it is, its canonical combining class, and
+//     for every rune whether a composing rune may be joined to it, so that
+//     the walks need no x/text call or list search for either.
+//
+// Beside the table it writes scriptSBStops, one bit per code point: the
+// Sentence_Break properties that end the sentence segmenter's skip loop.
 //
 // The command in cmd/ writes the file: from the module root,
 // go run ./shingle/internal/gentables/cmd -o shingle/scripttables.go
@@ -83,7 +89,9 @@ const (
 	bitNSlow   = 1 << 13
 	bitMark    = 1 << 14
 	bitCompose = 1 << 15
-	shiftDelta = 16
+	bitFirst   = 1 << 16
+	shiftDelta = 17
+	shiftCCC   = 24
 )
 
 var rangeRE = regexp.MustCompile(`\{0x([0-9A-F]+), 0x([0-9A-F]+), pr(\w+)\}`)
@@ -190,6 +198,9 @@ func Generate(dir string) ([]byte, error) {
 			}
 		}
 	}
+	for _, r := range first {
+		entries[r] |= bitFirst
+	}
 	return render(entries, forms, first), nil
 }
 
@@ -215,6 +226,11 @@ func normEntry(r rune, composes map[rune]bool, fold cases.Caser) (uint32, string
 	}
 	if ccc != 0 && form != s || form == "" {
 		return e | bitNSlow, ""
+	}
+	if ccc != 0 {
+		// A mark kept as it is (the only kind of mark not sent to the
+		// reference): its combining class in the bits a delta would use.
+		e |= uint32(ccc) << shiftCCC
 	}
 	seps, kept := 0, 0
 	for i, f := range form {
@@ -255,7 +271,7 @@ func normEntry(r rune, composes map[rune]bool, fold cases.Caser) (uint32, string
 	}, form)
 	f, size := utf8.DecodeRuneInString(form)
 	d := f - r
-	if size != len(form) || d < -(1<<15) || d >= 1<<15 || d == 0 {
+	if size != len(form) || d < -(1<<14) || d >= 1<<14 || d == 0 {
 		// Delta 0 sends the reader to the form list.
 		return e | normDelta<<shiftNorm, form
 	}
@@ -354,6 +370,30 @@ func render(entries []uint32, forms map[rune]string, first []rune) []byte {
 			}
 			fmt.Fprintf(&buf, "\t\"%s\"%s", line, end)
 		}
+	}
+	// The sentence stops (fast.go's fastFirstSentence), one bit a code
+	// point: CR, LF, Sep, ATerm, STerm or slow.
+	stops := make([]byte, len(entries)/8)
+	for r, e := range entries {
+		switch e & 0xF {
+		case sbValues["CR"], sbValues["LF"], sbValues["Sep"], sbValues["ATerm"], sbValues["STerm"], sbSlow:
+			stops[r>>3] |= 1 << (r & 7)
+		}
+	}
+	buf.WriteString("\n// scriptSBStops has bit r&7 of byte r>>3 set when the Sentence_Break\n")
+	buf.WriteString("// property of r is CR, LF, Sep, ATerm, STerm or slow: the runes that end\n")
+	buf.WriteString("// fastFirstSentence's skip loop.\n")
+	buf.WriteString("const scriptSBStops = \"\" +\n")
+	for i := 0; i < len(stops); i += 32 {
+		line = line[:0]
+		for _, v := range stops[i : i+32] {
+			line = fmt.Appendf(line, "\\x%02x", v)
+		}
+		end := " +\n"
+		if i+32 == len(stops) {
+			end = "\n"
+		}
+		fmt.Fprintf(&buf, "\t\"%s\"%s", line, end)
 	}
 	var keys []rune
 	for r := range forms {
