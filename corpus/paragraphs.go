@@ -1,7 +1,6 @@
 package corpus
 
 import (
-	"slices"
 	"strings"
 	"unicode/utf8"
 )
@@ -56,7 +55,10 @@ func (w *paraWriter) word(s string) {
 		return
 	}
 	if need := len(s) + 2; w.b.Cap()-w.b.Len() < need {
-		w.b.Grow(max(w.b.Len(), need)) // doubled, as appendDoubling does
+		// Builder.Grow makes the capacity twice the old one plus need:
+		// doubled, as appendDoubling does, so that the text of a file twice
+		// as long takes one more step, not one more or none.
+		w.b.Grow(need)
 	}
 	if !w.open {
 		if w.b.Len() > 0 {
@@ -163,7 +165,11 @@ func isSpaceRune(r rune) bool {
 // the file (BENCHMARKS.md, "Hostile inputs").
 func appendDoubling[E any](s []E, v E) []E {
 	if len(s) == cap(s) {
-		s = slices.Grow(s, max(len(s), 16))
+		// make, not slices.Grow: growslice would round 2*cap up by its own
+		// steps, to between 2 and 2.5 times.
+		grown := make([]E, len(s), max(2*cap(s), 16))
+		copy(grown, s)
+		s = grown
 	}
 	return append(s, v)
 }

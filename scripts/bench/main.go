@@ -107,6 +107,7 @@ func run() error {
 	copyText := flag.String("copy-text", "", "-copies: the text copied (a text file, or an SPDX license JSON file: its licenseText)")
 	flag.IntVar(&o.copies.edits, "copy-edits", 3, "-copies: words changed in each copy, each in another line")
 	budgets := flag.String("budgets", "", "measure each size at these --memory sizes, comma-separated (e.g. 1GiB,0): wall time, peak RSS against the bound plus 64 MiB, and whether the JSON reports are byte-identical")
+	scriptsRow := flag.Bool("scripts", false, "measure the first of -sizes written in each of 14 scripts (letters mapped) against the Latin corpus, time per MB side by side (e.g. -sizes 5000)")
 	flag.StringVar(&o.other, "other", "", "-budgets: also run this reprise binary (e.g. built from an earlier commit), alternating with the current build")
 	flag.Parse()
 	for _, b := range strings.Split(*budgets, ",") {
@@ -169,6 +170,9 @@ func run() error {
 
 	if o.copies.count > 0 {
 		return measureCopies(g, bin, o)
+	}
+	if *scriptsRow {
+		return measureScripts(g, bin, o, o.sizes[0])
 	}
 	if len(o.budgets) > 0 {
 		return measureBudgets(g, bin, o)
