@@ -128,15 +128,22 @@ type sentenceSpan struct {
 	start, end int
 }
 
-// termText is a text cut into sentences and tokens.
+// termText is a text cut into sentences and tokens. Terms are found a
+// sentence at a time, when first asked for (fill): the alignment reads only
+// the sentences near the engine's evidence, often a small part of a long
+// document, and folding and hashing words is most of the cost of cutting.
 type termText struct {
+	text      string
 	tokens    []token
 	sentences []sentenceSpan
+	filled    []bool // sentence k's tokens have their terms
+	buf       []byte
 }
 
-// newTermText cuts text into sentences and words (step 1).
+// newTermText cuts text into sentences and words (step 1); their terms
+// come with fill.
 func newTermText(text string) *termText {
-	t := &termText{}
+	t := &termText{text: text}
 	sentStart := -1
 	lo := 0
 	closeSentence := func(end int) {
@@ -145,7 +152,6 @@ func newTermText(text string) *termText {
 		}
 		sentStart, lo = -1, len(t.tokens)
 	}
-	var buf []byte
 	i := 0
 	for i < len(text) {
 		r, size := rune(text[i]), 1
@@ -154,14 +160,12 @@ func newTermText(text string) *termText {
 		}
 		if isTermRune(r) {
 			start := i
-			buf = buf[:0]
 			for i < len(text) {
 				r, size = rune(text[i]), 1
 				if r >= utf8.RuneSelf {
 					r, size = utf8.DecodeRuneInString(text[i:])
 				}
 				if isTermRune(r) {
-					buf = utf8.AppendRune(buf, unicode.ToLower(r))
 					i += size
 					continue
 				}
@@ -177,7 +181,7 @@ func newTermText(text string) *termText {
 			if sentStart < 0 {
 				sentStart = start
 			}
-			t.tokens = append(t.tokens, token{start: int32(start), end: int32(i), term: termOf(buf)})
+			t.tokens = append(t.tokens, token{start: int32(start), end: int32(i)})
 			continue
 		}
 		switch r {
@@ -212,7 +216,52 @@ func newTermText(text string) *termText {
 			}
 		}
 	}
+	t.filled = make([]bool, len(t.sentences))
 	return t
+}
+
+// fill gives the tokens of sentence k their terms: each word folded to
+// lower case (the letters and digits of its bytes, so a word hyphenated
+// across a line break is the whole word), then termOf.
+func (t *termText) fill(k int) {
+	if t.filled[k] {
+		return
+	}
+	t.filled[k] = true
+	s := t.sentences[k]
+	for x := s.lo; x < s.hi; x++ {
+		tok := &t.tokens[x]
+		w := t.text[tok.start:tok.end]
+		t.buf = t.buf[:0]
+		for i := 0; i < len(w); {
+			c := w[i]
+			if c < utf8.RuneSelf {
+				switch {
+				case 'A' <= c && c <= 'Z':
+					t.buf = append(t.buf, c+'a'-'A')
+				case 'a' <= c && c <= 'z' || '0' <= c && c <= '9':
+					t.buf = append(t.buf, c)
+				}
+				i++
+				continue
+			}
+			r, size := utf8.DecodeRuneInString(w[i:])
+			if isTermRune(r) {
+				t.buf = utf8.AppendRune(t.buf, unicode.ToLower(r))
+			}
+			i += size
+		}
+		tok.term = termOf(t.buf)
+	}
+}
+
+// fillWithin gives terms to the tokens of every sentence overlapping the
+// bytes [start, end).
+func (t *termText) fillWithin(start, end int) {
+	k, _ := slices.BinarySearchFunc(t.sentences, start, func(s sentenceSpan, b int) int { return cmp.Compare(s.end, b+1) })
+	for ; k < len(t.sentences) && t.sentences[k].start < end; k++ {
+		t.fill(k)
+	}
 }
 
 func lastNonSpace(text string, i int) int {
@@ -250,7 +299,7 @@ func hyphenBreak(s string) int {
 
 // termOf returns the term of a folded word, 0 for none.
 func termOf(w []byte) uint64 {
-	if utf8.RuneCount(w) < 3 || isStopWord(string(w)) {
+	if utf8.RuneCount(w) < 3 || len(w) <= maxStopWord && isStopWord(string(w)) {
 		return 0
 	}
 	w = stem(w)
@@ -298,6 +347,10 @@ var stopWords = func() map[string]struct{} {
 	}
 	return m
 }()
+
+// maxStopWord is the bytes of the longest stop word: a longer word is not
+// looked up.
+const maxStopWord = len("themselves")
 
 func isStopWord(w string) bool {
 	_, ok := stopWords[w]
@@ -366,6 +419,7 @@ func rewordedPassages(rw *Reworded, a, b *quoted, ta, tb *termText, minWords int
 			if 2*setAside > words {
 				continue
 			}
+			t.fill(k)
 			out[k] = bag{terms: slices.Clone(distinct(t, s)), ok: true}
 			for _, term := range out[k].terms {
 				sf[term]++
@@ -603,6 +657,8 @@ func (p *rewordedPassage) explain(ta, tb *termText) {
 		}
 		return m
 	}
+	ta.fillWithin(p.aStart, p.aEnd)
+	tb.fillWithin(p.bStart, p.bEnd)
 	wa, wb := ta.within(p.aStart, p.aEnd), tb.within(p.bStart, p.bEnd)
 	sa, sb := setOf(wa), setOf(wb)
 	p.aTerms, p.bTerms = len(sa), len(sb)
@@ -744,6 +800,16 @@ func unitsWithin(x, y *quoted, start, end int) int {
 	return n
 }
 
+// termText returns q's text cut into sentences and words, cut on first
+// use and kept: a document is the first of many pairs (BuildContext loads
+// it once for all of them), and only one goroutine aligns its pairs.
+func (q *quoted) termText() *termText {
+	if q.terms == nil {
+		q.terms = newTermText(q.text)
+	}
+	return q.terms
+}
+
 // errUnconfirmed: the sentence alignment found no passage in a pair the
 // engine gave; the pair is not reported.
 var errUnconfirmed = errors.New("report: no reworded passage confirms the pair")
@@ -752,7 +818,7 @@ var errUnconfirmed = errors.New("report: no reworded passage confirms the pair")
 // sentence alignment, each with its explanation, and the pair's scores.
 func alignReworded(p *Pair, aSpans, bSpans *[]span, ch *Chaining, a, b *quoted, shared, textLimit int) error {
 	da, db := a.doc, b.doc
-	ta, tb := newTermText(a.text), newTermText(b.text)
+	ta, tb := a.termText(), b.termText()
 	passages := withChains(rewordedPassages(ch.Reworded, a, b, ta, tb, ch.MinWords), a, b, max(0, ch.Gap), ch.MinWords)
 	if len(passages) == 0 {
 		return errUnconfirmed

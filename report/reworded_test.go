@@ -143,14 +143,30 @@ func TestTermText(t *testing.T) {
 	if w := text[tt.tokens[1].start:tt.tokens[1].end]; w != "exam-\nple" {
 		t.Errorf("word hyphenated across a line break: %q", w)
 	}
+	tt.fill(0)
 	if tt.tokens[1].term != termOf([]byte("example")) {
 		t.Error("the hyphenated word's term is not that of the whole word")
+	}
+	if w := text[tt.tokens[8].start:tt.tokens[8].end]; w != "paragraph" || tt.tokens[8].term != 0 {
+		t.Errorf("token 8 %q has a term before its sentence is filled", w)
+	}
+	tt.fillWithin(len(text)-5, len(text))
+	if tt.tokens[8].term != termOf([]byte("paragraph")) {
+		t.Error("fillWithin left the last sentence without terms")
 	}
 	if termOf([]byte("the")) != 0 || termOf([]byte("it")) != 0 {
 		t.Error("function words and short words give a term")
 	}
 	if termOf([]byte("walked")) != termOf([]byte("walks")) || termOf([]byte("walking")) != termOf([]byte("walk")) {
 		t.Error("suffixes are not removed alike")
+	}
+}
+
+func TestStopWordsFitTheLengthBound(t *testing.T) {
+	for w := range stopWords {
+		if len(w) > maxStopWord {
+			t.Errorf("stop word %q is longer than maxStopWord (%d): termOf would not look it up", w, maxStopWord)
+		}
 	}
 }
 
