@@ -113,6 +113,18 @@ type Explained struct {
 	BTerms int `json:"b_terms"`
 }
 
+// verbatimWords is the shortest verbatim run (every word in a matched
+// shingle, in the same order on both sides) shown as a passage when
+// MinWords is larger, if it holds two whole sentences or more on each
+// side: a copied fragment of a few short sentences ("So sorry. Limited
+// interests. So sorry.") shares too few content words to seed, and is as
+// plainly copied as a long one, while one shared sentence may be a common
+// saying (the sentence unit, too, asks two shared sentences by default).
+// Ten words were chosen on the tuning corpus (EVALUATION.md, seed 11:
+// eight gave the same figures; eight without the two-sentence condition
+// reported a dateline two unrelated newspaper texts share).
+const verbatimWords = 10
+
 // maxPostings bounds the B sentences walked for one term.
 const maxPostings = 64
 
@@ -366,8 +378,7 @@ type bag struct {
 
 // rewordedPassages is the alignment of one pair of documents for
 // reworded copies (steps 2 to 4 of the comment above).
-func rewordedPassages(rw *Reworded, a, b *quoted, ta, tb *termText, minWords int) []rewordedPassage {
-	ea, eb := evidence(a, b, ta), evidence(b, a, tb)
+func rewordedPassages(rw *Reworded, a, b *quoted, ta, tb *termText, ea, eb []bool, minWords int) []rewordedPassage {
 	gap := rw.gap()
 	near := func(ev []bool) []bool {
 		out := make([]bool, len(ev))
@@ -591,31 +602,30 @@ func rewordedPassages(rw *Reworded, a, b *quoted, ta, tb *termText, minWords int
 // passage overlapping one of ps in both documents widens it, any other is
 // a passage of its own. Verbatim and lightly edited stretches so keep the
 // exact edges chaining gives them, whatever the sentences do.
-func withChains(ps []rewordedPassage, a, b *quoted, gap, minWords int) []rewordedPassage {
+func withChains(ps []rewordedPassage, a, b *quoted, ta, tb *termText, gap, minWords int) []rewordedPassage {
 	ua, ub := a.units, b.units
 	for _, l := range chainPassages(&a.seq, &b.seq, ua, ub, gap, 0) {
 		aWords := int(ua[l.aLast].Pos+ua[l.aLast].Words) - int(ua[l.aFirst].Pos)
 		bWords := int(ub[l.bLast].Pos+ub[l.bLast].Words) - int(ub[l.bFirst].Pos)
+		// A verbatim run (every word but the last K-1 starts a matched
+		// shingle) of two whole sentences or more needs only
+		// verbatimWords words.
+		k := int(ua[l.aFirst].Words)
+		if l.n+k-1 >= max(aWords, bWords) && min(aWords, bWords) >= min(minWords, verbatimWords) &&
+			ta.wholeSentences(int(ua[l.aFirst].Start), int(ua[l.aLast].End)) >= 2 &&
+			tb.wholeSentences(int(ub[l.bFirst].Start), int(ub[l.bLast].End)) >= 2 {
+			ps = joinChain(ps, rewordedPassage{aStart: int(ua[l.aFirst].Start), aEnd: int(ua[l.aLast].End),
+				bStart: int(ub[l.bFirst].Start), bEnd: int(ub[l.bLast].End)})
+			continue
+		}
 		// Dense chains only: a third of the words starting a matched
 		// shingle (a verbatim run has nearly all, a light edit more than
 		// half), not common phrases chained across wide gaps.
 		if aWords < max(minWords, 1) || bWords < max(minWords, 1) || 3*l.n < max(aWords, bWords) {
 			continue
 		}
-		c := rewordedPassage{aStart: int(ua[l.aFirst].Start), aEnd: int(ua[l.aLast].End),
-			bStart: int(ub[l.bFirst].Start), bEnd: int(ub[l.bLast].End)}
-		joined := false
-		for k := range ps {
-			p := &ps[k]
-			if c.aStart < p.aEnd && p.aStart < c.aEnd && c.bStart < p.bEnd && p.bStart < c.bEnd {
-				p.aStart, p.aEnd = min(p.aStart, c.aStart), max(p.aEnd, c.aEnd)
-				p.bStart, p.bEnd = min(p.bStart, c.bStart), max(p.bEnd, c.bEnd)
-				joined = true
-			}
-		}
-		if !joined {
-			ps = append(ps, c)
-		}
+		ps = joinChain(ps, rewordedPassage{aStart: int(ua[l.aFirst].Start), aEnd: int(ua[l.aLast].End),
+			bStart: int(ub[l.bFirst].Start), bEnd: int(ub[l.bLast].End)})
 	}
 	slices.SortFunc(ps, func(x, y rewordedPassage) int {
 		return cmp.Or(cmp.Compare(x.aStart, y.aStart), cmp.Compare(x.bStart, y.bStart),
@@ -627,6 +637,147 @@ func withChains(ps []rewordedPassage, a, b *quoted, gap, minWords int) []reworde
 	})
 }
 
+// joinChain widens every passage of ps that c overlaps in both documents
+// to cover c, or adds c when it overlaps none.
+func joinChain(ps []rewordedPassage, c rewordedPassage) []rewordedPassage {
+	joined := false
+	for k := range ps {
+		p := &ps[k]
+		if c.aStart < p.aEnd && p.aStart < c.aEnd && c.bStart < p.bEnd && p.bStart < c.bEnd {
+			p.aStart, p.aEnd = min(p.aStart, c.aStart), max(p.aEnd, c.aEnd)
+			p.bStart, p.bEnd = min(p.bStart, c.bStart), max(p.bEnd, c.bEnd)
+			joined = true
+		}
+	}
+	if !joined {
+		ps = append(ps, c)
+	}
+	return ps
+}
+
+// trimToEvidence drops, on each side of each passage, the sentences at
+// its ends that barely agree with the other side: fewer than half of their
+// words lie in a counted unit found on the other side of the passage. It
+// does so only when more than two thirds of the side's sentences agree so
+// (chosen on seed 11, EVALUATION.md: a half trimmed heavy copies, which
+// keep shingles in many sentences but not in all). A
+// copy that kept most of its words keeps nearly every word of every
+// sentence in a shared shingle; a sentence at the edge without is a
+// neighbour the extension took in because it speaks of the same things
+// (the source's own next sentence), not a copy. A reworded copy, many of
+// whose sentences keep no shingle, is left whole.
+func trimToEvidence(ps []rewordedPassage, a, b *quoted, ta, tb *termText) {
+	ua, ub := a.units, b.units
+	where := b.seq.positions()
+	// sentencesOf returns the sentences of t that bytes [start, end) touch.
+	sentencesOf := func(t *termText, start, end int) (int, int) {
+		lo, _ := slices.BinarySearchFunc(t.sentences, start, func(s sentenceSpan, b int) int { return cmp.Compare(s.end, b+1) })
+		hi := lo - 1
+		for hi+1 < len(t.sentences) && t.sentences[hi+1].start < end {
+			hi++
+		}
+		return lo, hi
+	}
+	// mark sets the tokens of t from first on that lie in [start, end).
+	mark := func(t *termText, marks []bool, first, start, end int) {
+		x, _ := slices.BinarySearchFunc(t.tokens, start, func(tok token, s int) int { return cmp.Compare(int(tok.start), s) })
+		for ; x < len(t.tokens) && int(t.tokens[x].start) < end; x++ {
+			if x-first >= 0 && x-first < len(marks) {
+				marks[x-first] = true
+			}
+		}
+	}
+	trim := func(t *termText, marks []bool, lo, hi int, start, end *int) {
+		first := t.sentences[lo].lo
+		agrees := func(k int) bool {
+			s, n := t.sentences[k], 0
+			for x := s.lo; x < s.hi; x++ {
+				if marks[x-first] {
+					n++
+				}
+			}
+			return 2*n >= s.hi-s.lo
+		}
+		n := 0
+		for k := lo; k <= hi; k++ {
+			if agrees(k) {
+				n++
+			}
+		}
+		if hi == lo || 3*n <= 2*(hi-lo+1) {
+			return
+		}
+		l, h := lo, hi
+		for !agrees(l) {
+			l++
+		}
+		for !agrees(h) {
+			h--
+		}
+		if l > lo {
+			*start = max(*start, t.sentences[l].start)
+		}
+		if h < hi {
+			*end = min(*end, t.sentences[h].end)
+		}
+	}
+	for k := range ps {
+		p := &ps[k]
+		aLo, aHi := sentencesOf(ta, p.aStart, p.aEnd)
+		bLo, bHi := sentencesOf(tb, p.bStart, p.bEnd)
+		if aHi < aLo || bHi < bLo {
+			continue
+		}
+		aFirst, bFirst := ta.sentences[aLo].lo, tb.sentences[bLo].lo
+		marksA := make([]bool, ta.sentences[aHi].hi-aFirst)
+		marksB := make([]bool, tb.sentences[bHi].hi-bFirst)
+		i, _ := slices.BinarySearchFunc(ua, p.aStart, func(u shingle.Unit, s int) int { return cmp.Compare(int(u.Start), s) })
+		for ; i < len(ua) && int(ua[i].Start) < p.aEnd; i++ {
+			if !a.seq.counted[i] {
+				continue
+			}
+			for _, j := range where[ua[i].Hash] {
+				u := ub[j]
+				if int(u.Start) < p.bStart || int(u.Start) >= p.bEnd {
+					continue
+				}
+				mark(ta, marksA, aFirst, int(ua[i].Start), int(ua[i].End))
+				mark(tb, marksB, bFirst, int(u.Start), int(u.End))
+			}
+		}
+		trim(ta, marksA, aLo, aHi, &p.aStart, &p.aEnd)
+		trim(tb, marksB, bLo, bHi, &p.bStart, &p.bEnd)
+	}
+}
+
+// widenToPunctuation takes into each side of each passage the marks
+// written against its first and last word: an opening quotation mark or
+// bracket before it, closing marks and final punctuation after it, up to
+// white space or the next word.
+func widenToPunctuation(ps []rewordedPassage, a, b string) {
+	widen := func(text string, start, end *int) {
+		for *start > 0 {
+			r, size := utf8.DecodeLastRuneInString(text[:*start])
+			if unicode.IsSpace(r) || isTermRune(r) || !(unicode.Is(unicode.Ps, r) || unicode.Is(unicode.Pi, r) || r == '"' || r == '\'') {
+				break
+			}
+			*start -= size
+		}
+		for *end < len(text) {
+			r, size := utf8.DecodeRuneInString(text[*end:])
+			if unicode.IsSpace(r) || isTermRune(r) || !unicode.IsPunct(r) || r == '-' || unicode.Is(unicode.Ps, r) || unicode.Is(unicode.Pi, r) {
+				break
+			}
+			*end += size
+		}
+	}
+	for k := range ps {
+		p := &ps[k]
+		widen(a, &p.aStart, &p.aEnd)
+		widen(b, &p.bStart, &p.bEnd)
+	}
+}
+
 // rewordedPassage is one passage in byte offsets, with the shared words'
 // spans (absolute offsets) on each side.
 type rewordedPassage struct {
@@ -634,6 +785,17 @@ type rewordedPassage struct {
 	seeds                      int
 	aShared, bShared           []span
 	terms, aTerms, bTerms      int
+}
+
+// wholeSentences counts the sentences of t all of whose words lie inside
+// the bytes [start, end).
+func (t *termText) wholeSentences(start, end int) int {
+	k, _ := slices.BinarySearchFunc(t.sentences, start, func(s sentenceSpan, b int) int { return cmp.Compare(s.start, b) })
+	n := 0
+	for ; k < len(t.sentences) && int(t.tokens[t.sentences[k].hi-1].end) <= end; k++ {
+		n++
+	}
+	return n
 }
 
 // within returns the tokens of t inside the bytes [start, end).
@@ -819,10 +981,14 @@ var errUnconfirmed = errors.New("report: no reworded passage confirms the pair")
 func alignReworded(p *Pair, aSpans, bSpans *[]span, ch *Chaining, a, b *quoted, shared, textLimit int) error {
 	da, db := a.doc, b.doc
 	ta, tb := a.termText(), b.termText()
-	passages := withChains(rewordedPassages(ch.Reworded, a, b, ta, tb, ch.MinWords), a, b, max(0, ch.Gap), ch.MinWords)
+	ea, eb := evidence(a, b, ta), evidence(b, a, tb)
+	passages := rewordedPassages(ch.Reworded, a, b, ta, tb, ea, eb, ch.MinWords)
+	passages = withChains(passages, a, b, ta, tb, max(0, ch.Gap), ch.MinWords)
 	if len(passages) == 0 {
 		return errUnconfirmed
 	}
+	trimToEvidence(passages, a, b, ta, tb)
+	widenToPunctuation(passages, a.text, b.text)
 	*p = Pair{A: da.Path, B: db.Path, Shared: shared}
 	for _, r := range passages {
 		r.explain(ta, tb)
