@@ -21,7 +21,7 @@ import (
 // words replaced, its sentences reordered, split and joined keeps few such
 // runs: the engine may still pair the two documents, but the chains cover
 // only scattered pieces. For such pairs (Chaining.Reworded) the alignment
-// works on sentences and their content words instead, in four steps:
+// works on sentences and their content words instead, in five steps:
 //
 //  1. Terms. Both texts are cut into sentences (at a full stop, question
 //     or exclamation mark followed by white space, and at blank lines) and
@@ -52,6 +52,16 @@ import (
 //     left with no passage is not reported (Summary.Unconfirmed counts
 //     them): the engine's lower threshold makes it a candidate, the
 //     alignment confirms it.
+//  5. Exact edges. Dense chains of exact shingle matches (chain.go) join
+//     the passages (withChains), so verbatim and lightly edited stretches
+//     keep the edges chaining gives them; a verbatim run of two whole
+//     sentences or more needs only verbatimWords words, not MinWords. Then
+//     each side of a passage most of whose sentences agree with the other
+//     side word for word loses the edge sentences that do not
+//     (trimToEvidence: the extension of step 3 takes in a source's own
+//     neighbouring sentence when it speaks of the same things), and takes
+//     in the quotation marks and final punctuation written against its
+//     first and last word.
 //
 // Each passage carries its explanation (Explained): B's side of the text
 // and the words of either side whose term the other side of the passage
@@ -598,10 +608,12 @@ func rewordedPassages(rw *Reworded, a, b *quoted, ta, tb *termText, ea, eb []boo
 
 // withChains adds to ps the chained passages of exact shingle matches
 // (chain.go) that span at least minWords words in both documents, with a
-// matched shingle starting at one word in three or more: a
-// passage overlapping one of ps in both documents widens it, any other is
-// a passage of its own. Verbatim and lightly edited stretches so keep the
-// exact edges chaining gives them, whatever the sentences do.
+// matched shingle starting at one word in three or more, and the verbatim
+// runs of two whole sentences on each side and verbatimWords words (ta and
+// tb give the sentences): a passage overlapping one of ps in both
+// documents widens it, any other is a passage of its own. Verbatim and
+// lightly edited stretches so keep the exact edges chaining gives them,
+// whatever the sentences do.
 func withChains(ps []rewordedPassage, a, b *quoted, ta, tb *termText, gap, minWords int) []rewordedPassage {
 	ua, ub := a.units, b.units
 	for _, l := range chainPassages(&a.seq, &b.seq, ua, ub, gap, 0) {
