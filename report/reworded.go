@@ -165,7 +165,9 @@ type termText struct {
 // newTermText cuts text into sentences and words (step 1); their terms
 // come with fill.
 func newTermText(text string) *termText {
-	t := &termText{text: text}
+	// About one word in six bytes of English prose: room for most texts'
+	// words at once (growing the slice was a third of the cutting).
+	t := &termText{text: text, tokens: make([]token, 0, len(text)/6+1)}
 	sentStart := -1
 	lo := 0
 	closeSentence := func(end int) {
@@ -180,14 +182,14 @@ func newTermText(text string) *termText {
 		if r >= utf8.RuneSelf {
 			r, size = utf8.DecodeRuneInString(text[i:])
 		}
-		if isTermRune(r) {
+		if r < utf8.RuneSelf && isASCIITermByte(byte(r)) || r >= utf8.RuneSelf && isTermRune(r) {
 			start := i
 			for i < len(text) {
 				r, size = rune(text[i]), 1
 				if r >= utf8.RuneSelf {
 					r, size = utf8.DecodeRuneInString(text[i:])
 				}
-				if isTermRune(r) {
+				if r < utf8.RuneSelf && isASCIITermByte(byte(r)) || r >= utf8.RuneSelf && isTermRune(r) {
 					i += size
 					continue
 				}
@@ -291,6 +293,12 @@ func lastNonSpace(text string, i int) int {
 		i--
 	}
 	return i
+}
+
+// isASCIITermByte is isTermRune for an ASCII byte, small enough to be
+// inlined in the cutting loop.
+func isASCIITermByte(c byte) bool {
+	return '0' <= c && c <= '9' || 'a' <= c|0x20 && c|0x20 <= 'z'
 }
 
 func isTermRune(r rune) bool {

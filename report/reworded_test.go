@@ -226,6 +226,14 @@ func TestTermText(t *testing.T) {
 	}
 }
 
+func TestASCIITermBytes(t *testing.T) {
+	for c := range 128 {
+		if isASCIITermByte(byte(c)) != isTermRune(rune(c)) {
+			t.Errorf("byte %#x: isASCIITermByte %v, isTermRune %v", c, isASCIITermByte(byte(c)), isTermRune(rune(c)))
+		}
+	}
+}
+
 func TestStopWordsFitTheLengthBound(t *testing.T) {
 	for w := range stopWords {
 		if len(w) > maxStopWord {
