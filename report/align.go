@@ -30,37 +30,34 @@ func newSetAside(common []pairs.CommonUnit, excluded []uint64) setAside {
 type sequence struct {
 	hashes   []uint64
 	counted  []bool             // unit may match: not common, not a template, within maxRepeats
-	where    map[uint64][]int32 // counted unit -> its positions, ascending (built on first use)
+	where    map[uint64][]int32 // counted unit -> its positions, ascending
 	distinct int                // distinct counted fingerprints
 }
 
 func newSequence(units []shingle.Unit, aside setAside) sequence {
-	s := sequence{hashes: make([]uint64, len(units)), counted: make([]bool, len(units))}
-	seen := make(map[uint64]int, len(units))
+	// The positions of each fingerprint are gathered as the units are
+	// read: every alignment looks B's units up by fingerprint, and one
+	// map built once costs less than a count map and then a position map
+	// (pprof, --unit reworded). A unit is counted while its fingerprint has
+	// fewer than maxRepeats earlier counted occurrences, which is while it
+	// has fewer than maxRepeats earlier occurrences.
+	s := sequence{hashes: make([]uint64, len(units)), counted: make([]bool, len(units)),
+		where: make(map[uint64][]int32, len(units))}
 	for i, u := range units {
 		s.hashes[i] = u.Hash
 		if _, ok := aside[u.Hash]; ok {
 			continue
 		}
-		k := seen[u.Hash]
-		seen[u.Hash] = k + 1
-		s.counted[i] = k < maxRepeats
+		if ps := s.where[u.Hash]; len(ps) < maxRepeats {
+			s.where[u.Hash] = append(ps, int32(i))
+			s.counted[i] = true
+		}
 	}
-	s.distinct = len(seen)
+	s.distinct = len(s.where)
 	return s
 }
 
-func (s *sequence) positions() map[uint64][]int32 {
-	if s.where == nil {
-		s.where = make(map[uint64][]int32)
-		for i, h := range s.hashes {
-			if s.counted[i] {
-				s.where[h] = append(s.where[h], int32(i))
-			}
-		}
-	}
-	return s.where
-}
+func (s *sequence) positions() map[uint64][]int32 { return s.where }
 
 // run is a passage in unit positions: units a..a+n-1 of A equal b..b+n-1 of B.
 type run struct{ a, b, n int }

@@ -884,6 +884,7 @@ type quoted struct {
 	units []shingle.Unit
 	seq   sequence
 	lines lineIndex
+	terms *termText // --unit reworded: the text's sentences and words (built on first use)
 }
 
 // quote loads document id for aligning: its text and units, and their

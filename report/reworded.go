@@ -21,7 +21,7 @@ import (
 // words replaced, its sentences reordered, split and joined keeps few such
 // runs: the engine may still pair the two documents, but the chains cover
 // only scattered pieces. For such pairs (Chaining.Reworded) the alignment
-// works on sentences and their content words instead, in four steps:
+// works on sentences and their content words instead, in five steps:
 //
 //  1. Terms. Both texts are cut into sentences (at a full stop, question
 //     or exclamation mark followed by white space, and at blank lines) and
@@ -52,6 +52,16 @@ import (
 //     left with no passage is not reported (Summary.Unconfirmed counts
 //     them): the engine's lower threshold makes it a candidate, the
 //     alignment confirms it.
+//  5. Exact edges. Dense chains of exact shingle matches (chain.go) join
+//     the passages (withChains), so verbatim and lightly edited stretches
+//     keep the edges chaining gives them; a verbatim run of two whole
+//     sentences or more needs only verbatimWords words, not MinWords. Then
+//     each side of a passage most of whose sentences agree with the other
+//     side word for word loses the edge sentences that do not
+//     (trimToEvidence: the extension of step 3 takes in a source's own
+//     neighbouring sentence when it speaks of the same things), and takes
+//     in the quotation marks and final punctuation written against its
+//     first and last word.
 //
 // Each passage carries its explanation (Explained): B's side of the text
 // and the words of either side whose term the other side of the passage
@@ -113,6 +123,18 @@ type Explained struct {
 	BTerms int `json:"b_terms"`
 }
 
+// verbatimWords is the shortest verbatim run (every word in a matched
+// shingle, in the same order on both sides) shown as a passage when
+// MinWords is larger, if it holds two whole sentences or more on each
+// side: a copied fragment of a few short sentences ("So sorry. Limited
+// interests. So sorry.") shares too few content words to seed, and is as
+// plainly copied as a long one, while one shared sentence may be a common
+// saying (the sentence unit, too, asks two shared sentences by default).
+// Ten words were chosen on the tuning corpus (EVALUATION.md, seed 11:
+// eight gave the same figures; eight without the two-sentence condition
+// reported a dateline two unrelated newspaper texts share).
+const verbatimWords = 10
+
 // maxPostings bounds the B sentences walked for one term.
 const maxPostings = 64
 
@@ -128,15 +150,24 @@ type sentenceSpan struct {
 	start, end int
 }
 
-// termText is a text cut into sentences and tokens.
+// termText is a text cut into sentences and tokens. Terms are found a
+// sentence at a time, when first asked for (fill): the alignment reads only
+// the sentences near the engine's evidence, often a small part of a long
+// document, and folding and hashing words is most of the cost of cutting.
 type termText struct {
+	text      string
 	tokens    []token
 	sentences []sentenceSpan
+	filled    []bool // sentence k's tokens have their terms
+	buf       []byte
 }
 
-// newTermText cuts text into sentences and words (step 1).
+// newTermText cuts text into sentences and words (step 1); their terms
+// come with fill.
 func newTermText(text string) *termText {
-	t := &termText{}
+	// About one word in six bytes of English prose: room for most texts'
+	// words at once (growing the slice was a third of the cutting).
+	t := &termText{text: text, tokens: make([]token, 0, len(text)/6+1)}
 	sentStart := -1
 	lo := 0
 	closeSentence := func(end int) {
@@ -145,23 +176,20 @@ func newTermText(text string) *termText {
 		}
 		sentStart, lo = -1, len(t.tokens)
 	}
-	var buf []byte
 	i := 0
 	for i < len(text) {
 		r, size := rune(text[i]), 1
 		if r >= utf8.RuneSelf {
 			r, size = utf8.DecodeRuneInString(text[i:])
 		}
-		if isTermRune(r) {
+		if r < utf8.RuneSelf && isASCIITermByte(byte(r)) || r >= utf8.RuneSelf && isTermRune(r) {
 			start := i
-			buf = buf[:0]
 			for i < len(text) {
 				r, size = rune(text[i]), 1
 				if r >= utf8.RuneSelf {
 					r, size = utf8.DecodeRuneInString(text[i:])
 				}
-				if isTermRune(r) {
-					buf = utf8.AppendRune(buf, unicode.ToLower(r))
+				if r < utf8.RuneSelf && isASCIITermByte(byte(r)) || r >= utf8.RuneSelf && isTermRune(r) {
 					i += size
 					continue
 				}
@@ -177,7 +205,7 @@ func newTermText(text string) *termText {
 			if sentStart < 0 {
 				sentStart = start
 			}
-			t.tokens = append(t.tokens, token{start: int32(start), end: int32(i), term: termOf(buf)})
+			t.tokens = append(t.tokens, token{start: int32(start), end: int32(i)})
 			continue
 		}
 		switch r {
@@ -212,7 +240,52 @@ func newTermText(text string) *termText {
 			}
 		}
 	}
+	t.filled = make([]bool, len(t.sentences))
 	return t
+}
+
+// fill gives the tokens of sentence k their terms: each word folded to
+// lower case (the letters and digits of its bytes, so a word hyphenated
+// across a line break is the whole word), then termOf.
+func (t *termText) fill(k int) {
+	if t.filled[k] {
+		return
+	}
+	t.filled[k] = true
+	s := t.sentences[k]
+	for x := s.lo; x < s.hi; x++ {
+		tok := &t.tokens[x]
+		w := t.text[tok.start:tok.end]
+		t.buf = t.buf[:0]
+		for i := 0; i < len(w); {
+			c := w[i]
+			if c < utf8.RuneSelf {
+				switch {
+				case 'A' <= c && c <= 'Z':
+					t.buf = append(t.buf, c+'a'-'A')
+				case 'a' <= c && c <= 'z' || '0' <= c && c <= '9':
+					t.buf = append(t.buf, c)
+				}
+				i++
+				continue
+			}
+			r, size := utf8.DecodeRuneInString(w[i:])
+			if isTermRune(r) {
+				t.buf = utf8.AppendRune(t.buf, unicode.ToLower(r))
+			}
+			i += size
+		}
+		tok.term = termOf(t.buf)
+	}
+}
+
+// fillWithin gives terms to the tokens of every sentence overlapping the
+// bytes [start, end).
+func (t *termText) fillWithin(start, end int) {
+	k, _ := slices.BinarySearchFunc(t.sentences, start, func(s sentenceSpan, b int) int { return cmp.Compare(s.end, b+1) })
+	for ; k < len(t.sentences) && t.sentences[k].start < end; k++ {
+		t.fill(k)
+	}
 }
 
 func lastNonSpace(text string, i int) int {
@@ -220,6 +293,12 @@ func lastNonSpace(text string, i int) int {
 		i--
 	}
 	return i
+}
+
+// isASCIITermByte is isTermRune for an ASCII byte, small enough to be
+// inlined in the cutting loop.
+func isASCIITermByte(c byte) bool {
+	return '0' <= c && c <= '9' || 'a' <= c|0x20 && c|0x20 <= 'z'
 }
 
 func isTermRune(r rune) bool {
@@ -250,7 +329,7 @@ func hyphenBreak(s string) int {
 
 // termOf returns the term of a folded word, 0 for none.
 func termOf(w []byte) uint64 {
-	if utf8.RuneCount(w) < 3 || isStopWord(string(w)) {
+	if utf8.RuneCount(w) < 3 || len(w) <= maxStopWord && isStopWord(string(w)) {
 		return 0
 	}
 	w = stem(w)
@@ -299,6 +378,10 @@ var stopWords = func() map[string]struct{} {
 	return m
 }()
 
+// maxStopWord is the bytes of the longest stop word: a longer word is not
+// looked up.
+const maxStopWord = len("themselves")
+
 func isStopWord(w string) bool {
 	_, ok := stopWords[w]
 	return ok
@@ -313,8 +396,7 @@ type bag struct {
 
 // rewordedPassages is the alignment of one pair of documents for
 // reworded copies (steps 2 to 4 of the comment above).
-func rewordedPassages(rw *Reworded, a, b *quoted, ta, tb *termText, minWords int) []rewordedPassage {
-	ea, eb := evidence(a, b, ta), evidence(b, a, tb)
+func rewordedPassages(rw *Reworded, a, b *quoted, ta, tb *termText, ea, eb []bool, minWords int) []rewordedPassage {
 	gap := rw.gap()
 	near := func(ev []bool) []bool {
 		out := make([]bool, len(ev))
@@ -366,6 +448,7 @@ func rewordedPassages(rw *Reworded, a, b *quoted, ta, tb *termText, minWords int
 			if 2*setAside > words {
 				continue
 			}
+			t.fill(k)
 			out[k] = bag{terms: slices.Clone(distinct(t, s)), ok: true}
 			for _, term := range out[k].terms {
 				sf[term]++
@@ -533,35 +616,36 @@ func rewordedPassages(rw *Reworded, a, b *quoted, ta, tb *termText, minWords int
 
 // withChains adds to ps the chained passages of exact shingle matches
 // (chain.go) that span at least minWords words in both documents, with a
-// matched shingle starting at one word in three or more: a
-// passage overlapping one of ps in both documents widens it, any other is
-// a passage of its own. Verbatim and lightly edited stretches so keep the
-// exact edges chaining gives them, whatever the sentences do.
-func withChains(ps []rewordedPassage, a, b *quoted, gap, minWords int) []rewordedPassage {
+// matched shingle starting at one word in three or more, and the verbatim
+// runs of two whole sentences on each side and verbatimWords words (ta and
+// tb give the sentences): a passage overlapping one of ps in both
+// documents widens it, any other is a passage of its own. Verbatim and
+// lightly edited stretches so keep the exact edges chaining gives them,
+// whatever the sentences do.
+func withChains(ps []rewordedPassage, a, b *quoted, ta, tb *termText, gap, minWords int) []rewordedPassage {
 	ua, ub := a.units, b.units
 	for _, l := range chainPassages(&a.seq, &b.seq, ua, ub, gap, 0) {
 		aWords := int(ua[l.aLast].Pos+ua[l.aLast].Words) - int(ua[l.aFirst].Pos)
 		bWords := int(ub[l.bLast].Pos+ub[l.bLast].Words) - int(ub[l.bFirst].Pos)
+		// A verbatim run (every word but the last K-1 starts a matched
+		// shingle) of two whole sentences or more needs only
+		// verbatimWords words.
+		k := int(ua[l.aFirst].Words)
+		if l.n+k-1 >= max(aWords, bWords) && min(aWords, bWords) >= min(minWords, verbatimWords) &&
+			ta.wholeSentences(int(ua[l.aFirst].Start), int(ua[l.aLast].End)) >= 2 &&
+			tb.wholeSentences(int(ub[l.bFirst].Start), int(ub[l.bLast].End)) >= 2 {
+			ps = joinChain(ps, rewordedPassage{aStart: int(ua[l.aFirst].Start), aEnd: int(ua[l.aLast].End),
+				bStart: int(ub[l.bFirst].Start), bEnd: int(ub[l.bLast].End)})
+			continue
+		}
 		// Dense chains only: a third of the words starting a matched
 		// shingle (a verbatim run has nearly all, a light edit more than
 		// half), not common phrases chained across wide gaps.
 		if aWords < max(minWords, 1) || bWords < max(minWords, 1) || 3*l.n < max(aWords, bWords) {
 			continue
 		}
-		c := rewordedPassage{aStart: int(ua[l.aFirst].Start), aEnd: int(ua[l.aLast].End),
-			bStart: int(ub[l.bFirst].Start), bEnd: int(ub[l.bLast].End)}
-		joined := false
-		for k := range ps {
-			p := &ps[k]
-			if c.aStart < p.aEnd && p.aStart < c.aEnd && c.bStart < p.bEnd && p.bStart < c.bEnd {
-				p.aStart, p.aEnd = min(p.aStart, c.aStart), max(p.aEnd, c.aEnd)
-				p.bStart, p.bEnd = min(p.bStart, c.bStart), max(p.bEnd, c.bEnd)
-				joined = true
-			}
-		}
-		if !joined {
-			ps = append(ps, c)
-		}
+		ps = joinChain(ps, rewordedPassage{aStart: int(ua[l.aFirst].Start), aEnd: int(ua[l.aLast].End),
+			bStart: int(ub[l.bFirst].Start), bEnd: int(ub[l.bLast].End)})
 	}
 	slices.SortFunc(ps, func(x, y rewordedPassage) int {
 		return cmp.Or(cmp.Compare(x.aStart, y.aStart), cmp.Compare(x.bStart, y.bStart),
@@ -573,6 +657,147 @@ func withChains(ps []rewordedPassage, a, b *quoted, gap, minWords int) []reworde
 	})
 }
 
+// joinChain widens every passage of ps that c overlaps in both documents
+// to cover c, or adds c when it overlaps none.
+func joinChain(ps []rewordedPassage, c rewordedPassage) []rewordedPassage {
+	joined := false
+	for k := range ps {
+		p := &ps[k]
+		if c.aStart < p.aEnd && p.aStart < c.aEnd && c.bStart < p.bEnd && p.bStart < c.bEnd {
+			p.aStart, p.aEnd = min(p.aStart, c.aStart), max(p.aEnd, c.aEnd)
+			p.bStart, p.bEnd = min(p.bStart, c.bStart), max(p.bEnd, c.bEnd)
+			joined = true
+		}
+	}
+	if !joined {
+		ps = append(ps, c)
+	}
+	return ps
+}
+
+// trimToEvidence drops, on each side of each passage, the sentences at
+// its ends that barely agree with the other side: fewer than half of their
+// words lie in a counted unit found on the other side of the passage. It
+// does so only when more than two thirds of the side's sentences agree so
+// (chosen on seed 11, EVALUATION.md: a half trimmed heavy copies, which
+// keep shingles in many sentences but not in all). A
+// copy that kept most of its words keeps nearly every word of every
+// sentence in a shared shingle; a sentence at the edge without is a
+// neighbour the extension took in because it speaks of the same things
+// (the source's own next sentence), not a copy. A reworded copy, many of
+// whose sentences keep no shingle, is left whole.
+func trimToEvidence(ps []rewordedPassage, a, b *quoted, ta, tb *termText) {
+	ua, ub := a.units, b.units
+	where := b.seq.positions()
+	// sentencesOf returns the sentences of t that bytes [start, end) touch.
+	sentencesOf := func(t *termText, start, end int) (int, int) {
+		lo, _ := slices.BinarySearchFunc(t.sentences, start, func(s sentenceSpan, b int) int { return cmp.Compare(s.end, b+1) })
+		hi := lo - 1
+		for hi+1 < len(t.sentences) && t.sentences[hi+1].start < end {
+			hi++
+		}
+		return lo, hi
+	}
+	// mark sets the tokens of t from first on that lie in [start, end).
+	mark := func(t *termText, marks []bool, first, start, end int) {
+		x, _ := slices.BinarySearchFunc(t.tokens, start, func(tok token, s int) int { return cmp.Compare(int(tok.start), s) })
+		for ; x < len(t.tokens) && int(t.tokens[x].start) < end; x++ {
+			if x-first >= 0 && x-first < len(marks) {
+				marks[x-first] = true
+			}
+		}
+	}
+	trim := func(t *termText, marks []bool, lo, hi int, start, end *int) {
+		first := t.sentences[lo].lo
+		agrees := func(k int) bool {
+			s, n := t.sentences[k], 0
+			for x := s.lo; x < s.hi; x++ {
+				if marks[x-first] {
+					n++
+				}
+			}
+			return 2*n >= s.hi-s.lo
+		}
+		n := 0
+		for k := lo; k <= hi; k++ {
+			if agrees(k) {
+				n++
+			}
+		}
+		if hi == lo || 3*n <= 2*(hi-lo+1) {
+			return
+		}
+		l, h := lo, hi
+		for !agrees(l) {
+			l++
+		}
+		for !agrees(h) {
+			h--
+		}
+		if l > lo {
+			*start = max(*start, t.sentences[l].start)
+		}
+		if h < hi {
+			*end = min(*end, t.sentences[h].end)
+		}
+	}
+	for k := range ps {
+		p := &ps[k]
+		aLo, aHi := sentencesOf(ta, p.aStart, p.aEnd)
+		bLo, bHi := sentencesOf(tb, p.bStart, p.bEnd)
+		if aHi < aLo || bHi < bLo {
+			continue
+		}
+		aFirst, bFirst := ta.sentences[aLo].lo, tb.sentences[bLo].lo
+		marksA := make([]bool, ta.sentences[aHi].hi-aFirst)
+		marksB := make([]bool, tb.sentences[bHi].hi-bFirst)
+		i, _ := slices.BinarySearchFunc(ua, p.aStart, func(u shingle.Unit, s int) int { return cmp.Compare(int(u.Start), s) })
+		for ; i < len(ua) && int(ua[i].Start) < p.aEnd; i++ {
+			if !a.seq.counted[i] {
+				continue
+			}
+			for _, j := range where[ua[i].Hash] {
+				u := ub[j]
+				if int(u.Start) < p.bStart || int(u.Start) >= p.bEnd {
+					continue
+				}
+				mark(ta, marksA, aFirst, int(ua[i].Start), int(ua[i].End))
+				mark(tb, marksB, bFirst, int(u.Start), int(u.End))
+			}
+		}
+		trim(ta, marksA, aLo, aHi, &p.aStart, &p.aEnd)
+		trim(tb, marksB, bLo, bHi, &p.bStart, &p.bEnd)
+	}
+}
+
+// widenToPunctuation takes into each side of each passage the marks
+// written against its first and last word: an opening quotation mark or
+// bracket before it, closing marks and final punctuation after it, up to
+// white space or the next word.
+func widenToPunctuation(ps []rewordedPassage, a, b string) {
+	widen := func(text string, start, end *int) {
+		for *start > 0 {
+			r, size := utf8.DecodeLastRuneInString(text[:*start])
+			if unicode.IsSpace(r) || isTermRune(r) || !(unicode.Is(unicode.Ps, r) || unicode.Is(unicode.Pi, r) || r == '"' || r == '\'') {
+				break
+			}
+			*start -= size
+		}
+		for *end < len(text) {
+			r, size := utf8.DecodeRuneInString(text[*end:])
+			if unicode.IsSpace(r) || isTermRune(r) || !unicode.IsPunct(r) || r == '-' || unicode.Is(unicode.Ps, r) || unicode.Is(unicode.Pi, r) {
+				break
+			}
+			*end += size
+		}
+	}
+	for k := range ps {
+		p := &ps[k]
+		widen(a, &p.aStart, &p.aEnd)
+		widen(b, &p.bStart, &p.bEnd)
+	}
+}
+
 // rewordedPassage is one passage in byte offsets, with the shared words'
 // spans (absolute offsets) on each side.
 type rewordedPassage struct {
@@ -580,6 +805,17 @@ type rewordedPassage struct {
 	seeds                      int
 	aShared, bShared           []span
 	terms, aTerms, bTerms      int
+}
+
+// wholeSentences counts the sentences of t all of whose words lie inside
+// the bytes [start, end).
+func (t *termText) wholeSentences(start, end int) int {
+	k, _ := slices.BinarySearchFunc(t.sentences, start, func(s sentenceSpan, b int) int { return cmp.Compare(s.start, b) })
+	n := 0
+	for ; k < len(t.sentences) && int(t.tokens[t.sentences[k].hi-1].end) <= end; k++ {
+		n++
+	}
+	return n
 }
 
 // within returns the tokens of t inside the bytes [start, end).
@@ -603,6 +839,8 @@ func (p *rewordedPassage) explain(ta, tb *termText) {
 		}
 		return m
 	}
+	ta.fillWithin(p.aStart, p.aEnd)
+	tb.fillWithin(p.bStart, p.bEnd)
 	wa, wb := ta.within(p.aStart, p.aEnd), tb.within(p.bStart, p.bEnd)
 	sa, sb := setOf(wa), setOf(wb)
 	p.aTerms, p.bTerms = len(sa), len(sb)
@@ -744,6 +982,16 @@ func unitsWithin(x, y *quoted, start, end int) int {
 	return n
 }
 
+// termText returns q's text cut into sentences and words, cut on first
+// use and kept: a document is the first of many pairs (BuildContext loads
+// it once for all of them), and only one goroutine aligns its pairs.
+func (q *quoted) termText() *termText {
+	if q.terms == nil {
+		q.terms = newTermText(q.text)
+	}
+	return q.terms
+}
+
 // errUnconfirmed: the sentence alignment found no passage in a pair the
 // engine gave; the pair is not reported.
 var errUnconfirmed = errors.New("report: no reworded passage confirms the pair")
@@ -752,11 +1000,15 @@ var errUnconfirmed = errors.New("report: no reworded passage confirms the pair")
 // sentence alignment, each with its explanation, and the pair's scores.
 func alignReworded(p *Pair, aSpans, bSpans *[]span, ch *Chaining, a, b *quoted, shared, textLimit int) error {
 	da, db := a.doc, b.doc
-	ta, tb := newTermText(a.text), newTermText(b.text)
-	passages := withChains(rewordedPassages(ch.Reworded, a, b, ta, tb, ch.MinWords), a, b, max(0, ch.Gap), ch.MinWords)
+	ta, tb := a.termText(), b.termText()
+	ea, eb := evidence(a, b, ta), evidence(b, a, tb)
+	passages := rewordedPassages(ch.Reworded, a, b, ta, tb, ea, eb, ch.MinWords)
+	passages = withChains(passages, a, b, ta, tb, max(0, ch.Gap), ch.MinWords)
 	if len(passages) == 0 {
 		return errUnconfirmed
 	}
+	trimToEvidence(passages, a, b, ta, tb)
+	widenToPunctuation(passages, a.text, b.text)
 	*p = Pair{A: da.Path, B: db.Path, Shared: shared}
 	for _, r := range passages {
 		r.explain(ta, tb)

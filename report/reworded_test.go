@@ -98,6 +98,70 @@ func TestRewordedPassages(t *testing.T) {
 	}
 }
 
+func TestRewordedTrimsToWhereTheSidesAgree(t *testing.T) {
+	// The source goes on about the keeper after the passage copied
+	// verbatim: the extension takes that neighbour in (it shares "keeper",
+	// "lighthouse", "lens"), the trimming takes it out again, since none of
+	// its words is in a shingle the copy has.
+	neighbour := "Each winter the keeper of the lighthouse also painted the lens housing and the iron stairs."
+	a := prefaceA + "\n\n" + lighthouse + " " + neighbour + "\n\n" + tailA
+	b := prefaceB + "\n\n" + lighthouse + "\n\n" + tailB
+	da, db := wordDoc("a.txt", a, 5), wordDoc("b.txt", b, 5)
+	in := Input{Docs: []Doc{da, db}}
+	qa, _ := in.quote(0, nil)
+	qb, _ := in.quote(1, nil)
+	ta, tb := qa.termText(), qb.termText()
+	rw := &Reworded{MinSimilarity: 0.4, Gap: 5}
+	untrimmed := rewordedPassages(rw, qa, qb, ta, tb, evidence(qa, qb, ta), evidence(qb, qa, tb), 24)
+	wantA, wantEnd := strings.Index(a, lighthouse), strings.Index(a, lighthouse)+len(lighthouse)
+	if len(untrimmed) != 1 || untrimmed[0].aEnd <= wantEnd {
+		t.Fatalf("control: the sentence alignment alone gives %+v; want one passage running into the neighbour (A's copy ends at %d)", untrimmed, wantEnd)
+	}
+	res := buildReworded(t, da, db, nil)
+	if len(res.Pairs) != 1 || len(res.Pairs[0].Passages) != 1 {
+		t.Fatalf("pairs %+v, want one pair with one passage", res.Pairs)
+	}
+	if g := res.Pairs[0].Passages[0]; g.AStart != wantA || g.AEnd != wantEnd {
+		t.Errorf("A passage %q, want the copied sentences only", a[g.AStart:g.AEnd])
+	}
+}
+
+func TestRewordedShortVerbatimFragments(t *testing.T) {
+	for _, tc := range []struct {
+		name     string
+		fragment string
+		reported bool
+	}{
+		{"three short sentences copied verbatim are a passage", "So sorry, my friend. Limited interests, sadly. So sorry again, truly.", true},
+		{"a verbatim run of under ten words is not", "So sorry, my friend. Limited interests.", false},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			a := prefaceA + "\n\n“" + tc.fragment + "”\n\n" + tailA
+			b := prefaceB + "\n\n“" + tc.fragment + "”\n\n" + tailB
+			res := buildReworded(t, wordDoc("a.txt", a, 5), wordDoc("b.txt", b, 5), nil)
+			if !tc.reported {
+				if len(res.Pairs) != 0 {
+					t.Fatalf("pairs %+v, want none", res.Pairs)
+				}
+				return
+			}
+			if len(res.Pairs) != 1 || len(res.Pairs[0].Passages) != 1 {
+				t.Fatalf("pairs %+v (unconfirmed %d), want one pair with one passage", res.Pairs, res.Summary.Unconfirmed)
+			}
+			// The quotation marks written against the first and last word
+			// are part of the passage.
+			quotedA := "“" + tc.fragment + "”"
+			g := res.Pairs[0].Passages[0]
+			if want := strings.Index(a, quotedA); g.AStart != want || g.AEnd != want+len(quotedA) {
+				t.Errorf("A passage %q, want %q", a[g.AStart:g.AEnd], quotedA)
+			}
+			if want := strings.Index(b, quotedA); g.BStart != want || g.BEnd != want+len(quotedA) {
+				t.Errorf("B passage %q, want %q", b[g.BStart:g.BEnd], quotedA)
+			}
+		})
+	}
+}
+
 func stemOf(w string) string { return string(stem([]byte(w))) }
 
 func TestRewordedDropsWhatItCannotConfirm(t *testing.T) {
@@ -143,14 +207,38 @@ func TestTermText(t *testing.T) {
 	if w := text[tt.tokens[1].start:tt.tokens[1].end]; w != "exam-\nple" {
 		t.Errorf("word hyphenated across a line break: %q", w)
 	}
+	tt.fill(0)
 	if tt.tokens[1].term != termOf([]byte("example")) {
 		t.Error("the hyphenated word's term is not that of the whole word")
+	}
+	if w := text[tt.tokens[8].start:tt.tokens[8].end]; w != "paragraph" || tt.tokens[8].term != 0 {
+		t.Errorf("token 8 %q has a term before its sentence is filled", w)
+	}
+	tt.fillWithin(len(text)-5, len(text))
+	if tt.tokens[8].term != termOf([]byte("paragraph")) {
+		t.Error("fillWithin left the last sentence without terms")
 	}
 	if termOf([]byte("the")) != 0 || termOf([]byte("it")) != 0 {
 		t.Error("function words and short words give a term")
 	}
 	if termOf([]byte("walked")) != termOf([]byte("walks")) || termOf([]byte("walking")) != termOf([]byte("walk")) {
 		t.Error("suffixes are not removed alike")
+	}
+}
+
+func TestASCIITermBytes(t *testing.T) {
+	for c := range 128 {
+		if isASCIITermByte(byte(c)) != isTermRune(rune(c)) {
+			t.Errorf("byte %#x: isASCIITermByte %v, isTermRune %v", c, isASCIITermByte(byte(c)), isTermRune(rune(c)))
+		}
+	}
+}
+
+func TestStopWordsFitTheLengthBound(t *testing.T) {
+	for w := range stopWords {
+		if len(w) > maxStopWord {
+			t.Errorf("stop word %q is longer than maxStopWord (%d): termOf would not look it up", w, maxStopWord)
+		}
 	}
 }
 

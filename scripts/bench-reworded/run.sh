@@ -3,7 +3,8 @@
 # scripts/bench (generate them first: go run ./scripts/bench -work DIR
 # -sizes 10000,100000 -generate-only). The two commands alternate, RUNS
 # times each, so that both see the same load; prints every wall time and
-# peak RSS, then the medians and their ratio.
+# peak RSS with the load average (1, 5, 15 minutes) before the run, then
+# the medians and their ratio.
 #
 #   scripts/bench-reworded/run.sh DIR [RUNS]
 set -eu
@@ -17,9 +18,10 @@ for corpus in "$dir"/corpus-*-v2; do
 	i=0
 	while [ "$i" -lt "$runs" ]; do
 		for unit in words reworded; do
+			load=$(cut -d' ' -f1-3 /proc/loadavg)
 			/usr/bin/time -f "%e %M" -o /tmp/bench-reworded.time "$bin" scan --format json -o /dev/null -q --unit "$unit" "$corpus"
 			t=$(cat /tmp/bench-reworded.time)
-			echo "$(basename "$corpus") $unit $t"
+			echo "$(basename "$corpus") $unit $t load $load"
 			if [ "$unit" = words ]; then w="$w ${t%% *}"; else r="$r ${t%% *}"; fi
 		done
 		i=$((i + 1))

@@ -116,6 +116,7 @@ func run() error {
 	quick := flag.Bool("quick", false, "only the default settings of each unit")
 	keep := flag.String("keep", "", "write the generated corpora under this folder and keep them")
 	try := flag.String("try", "", "only score these reprise scan flags (e.g. '--unit words --gap 40') at each level, for exploring")
+	misses := flag.Bool("misses", false, "-try: also list each case not matched exactly (its reported spans against the truth, in bytes)")
 	flag.Parse()
 
 	samples, err := brown.Load(filepath.Join(*data, "brown"))
@@ -181,7 +182,7 @@ func run() error {
 
 	ev := &evaluator{bin: bin, corpora: corpora}
 	if *try != "" {
-		return ev.try(strings.Fields(*try))
+		return ev.try(strings.Fields(*try), *misses)
 	}
 	if !*quick {
 		if err := ev.sweeps(); err != nil {
@@ -778,7 +779,9 @@ func edit(sentences []string, rate float64, shuffle bool, vocab []string, rng *r
 }
 
 // try prints every measure of one set of flags at each level.
-func (ev *evaluator) try(args []string) error {
+// With misses, each case whose pair is not reported, or whose passages
+// do not cover its two spans exactly, is listed after the level's row.
+func (ev *evaluator) try(args []string, misses bool) error {
 	fmt.Println("| level | pairs | pair P | pair R | char P | char R | granularity | plagdet | template passages |")
 	fmt.Println("|---|---|---|---|---|---|---|---|---|")
 	for _, c := range ev.corpora {
@@ -789,8 +792,51 @@ func (ev *evaluator) try(args []string) error {
 		m := c.measure(o, 0)
 		fmt.Printf("| %s | %d | %.3f | %.3f | %.3f | %.3f | %.3f | %.3f | %d |\n", c.level, m.pairs, m.pairP, m.pairR,
 			m.pan.Precision, m.pan.Recall, m.pan.Granularity, m.pan.Plagdet, m.templatePassages)
+		if misses {
+			c.listMisses(o)
+		}
 	}
 	return nil
+}
+
+// listMisses prints the cases of c that o does not match exactly: the
+// truth's spans (suspicious, source) and the reported passages' spans of
+// the pair in the same order, in bytes, and the start of the copied text.
+func (c *corpusOf) listMisses(o outcome) {
+	index := map[string]int{}
+	for i, d := range c.docs {
+		index[filepath.ToSlash(filepath.Join(c.dir, d.name))] = i
+	}
+	for _, t := range c.cases {
+		var got [][4]int
+		for _, p := range o.res.Pairs {
+			a, b := index[p.A], index[p.B]
+			if min(a, b) != min(t.susp, t.src) || max(a, b) != max(t.susp, t.src) {
+				continue
+			}
+			for _, g := range p.Passages {
+				if a == t.susp {
+					got = append(got, [4]int{g.AStart, g.AEnd, g.BStart, g.BEnd})
+				} else {
+					got = append(got, [4]int{g.BStart, g.BEnd, g.AStart, g.AEnd})
+				}
+			}
+		}
+		want := [4]int{t.suspStart, t.suspEnd, t.srcStart, t.srcEnd}
+		if len(got) == 1 && got[0] == want {
+			continue
+		}
+		copied := c.docs[t.susp].text[t.suspStart:t.suspEnd]
+		fmt.Printf("  - %s: %d sentences, %d words, truth %v, reported %v: %q\n", c.docs[t.susp].name, t.sentences,
+			shingle.CountWords(copied), want, got, firstBytes(copied, 100))
+	}
+}
+
+func firstBytes(s string, n int) string {
+	if len(s) <= n {
+		return s
+	}
+	return s[:n] + "…"
 }
 
 // rewrite is the rewrite level: in every sentence about a third of the
