@@ -116,6 +116,7 @@ func run() error {
 	quick := flag.Bool("quick", false, "only the default settings of each unit")
 	keep := flag.String("keep", "", "write the generated corpora under this folder and keep them")
 	try := flag.String("try", "", "only score these reprise scan flags (e.g. '--unit words --gap 40') at each level, for exploring")
+	check := flag.Bool("check", false, "-try: exit with status 1 when at any level a pair is reported that is not a case (pair precision under 0.99) or the shared template is reported (the invariants CI checks on a small corpus)")
 	misses := flag.Bool("misses", false, "-try: also list each case not matched exactly (its reported spans against the truth, in bytes)")
 	flag.Parse()
 
@@ -182,7 +183,7 @@ func run() error {
 
 	ev := &evaluator{bin: bin, corpora: corpora}
 	if *try != "" {
-		return ev.try(strings.Fields(*try), *misses)
+		return ev.try(strings.Fields(*try), *misses, *check)
 	}
 	if !*quick {
 		if err := ev.sweeps(); err != nil {
@@ -781,7 +782,12 @@ func edit(sentences []string, rate float64, shuffle bool, vocab []string, rng *r
 // try prints every measure of one set of flags at each level.
 // With misses, each case whose pair is not reported, or whose passages
 // do not cover its two spans exactly, is listed after the level's row.
-func (ev *evaluator) try(args []string, misses bool) error {
+//
+// With check, it returns an error when at any level the pair precision is
+// under 0.99 or a template passage is reported: the targets of every
+// level that do not depend on the corpus's size.
+func (ev *evaluator) try(args []string, misses, check bool) error {
+	var failed []string
 	fmt.Println("| level | pairs | pair P | pair R | char P | char R | granularity | plagdet | template passages |")
 	fmt.Println("|---|---|---|---|---|---|---|---|---|")
 	for _, c := range ev.corpora {
@@ -795,6 +801,12 @@ func (ev *evaluator) try(args []string, misses bool) error {
 		if misses {
 			c.listMisses(o)
 		}
+		if check && (m.pairP < 0.99 || m.templatePassages > 0) {
+			failed = append(failed, fmt.Sprintf("%s: pair precision %.3f, %d template passages", c.level, m.pairP, m.templatePassages))
+		}
+	}
+	if len(failed) > 0 {
+		return fmt.Errorf("-check: %s", strings.Join(failed, "; "))
 	}
 	return nil
 }
