@@ -2,7 +2,6 @@ package archive
 
 import (
 	"bytes"
-	"compress/flate"
 	"encoding/binary"
 	"encoding/json"
 	"errors"
@@ -13,6 +12,7 @@ import (
 	"strings"
 
 	"github.com/cockroachdb/pebble/v2"
+	"github.com/cockroachdb/pebble/v2/bloom"
 	"github.com/cockroachdb/pebble/v2/vfs"
 
 	"reprise/shingle"
@@ -135,7 +135,7 @@ type Archive struct {
 	settings Settings
 	readOnly bool
 	scratch  []byte
-	flate    *flate.Writer
+	flate    textCompressor
 	opts     *pebble.Options // as opened, defaults filled in: AddAll writes tables with them
 	fs       vfs.FS
 	// chunkDocs, when set, replaces AddAll's documents per chunk (tests).
@@ -189,6 +189,16 @@ func Open(dir string, opt Options) (*Archive, error) {
 		ReadOnly: opt.ReadOnly,
 		Logger:   quietLogger{},
 	}
+	// Bloom filters on every level (10 bits a key, about 1% false
+	// positives): most lookups are of absent keys (an add asks whether each
+	// new document's content and path are archived, a check asks for the
+	// posting of each new unit), and a filter answers them without reading
+	// the table's index and data blocks. An archive whose tables were
+	// written without filters reads as before.
+	for i := range po.Levels {
+		po.Levels[i].FilterPolicy = bloom.FilterPolicy(10)
+	}
+	po.L0CompactionThreshold, po.L0StopWritesThreshold = 12, 48
 	po.EnsureDefaults()
 	if !opt.ReadOnly {
 		// What a killed AddAll left before its ingestion: never part of the archive.
