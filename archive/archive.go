@@ -198,7 +198,15 @@ func Open(dir string, opt Options) (*Archive, error) {
 	for i := range po.Levels {
 		po.Levels[i].FilterPolicy = bloom.FilterPolicy(10)
 	}
-	po.L0CompactionThreshold, po.L0StopWritesThreshold = 12, 48
+	// Each chunk of AddAll ingests tables of h/, n/ and p/ keys that span
+	// the whole key range (hashes and fingerprints), so each lands in L0
+	// over the ones before it. Pebble's default compacts L0 once it is 4
+	// tables deep, rewriting all of the p/ keys below every few chunks (33
+	// compactions in an add of 10^5 documents, 3.4 s of CPU); at 24 it
+	// does so 5 times, and the ingestions never wait for it. A lookup then
+	// reads up to 24 tables of L0 more, each answered by its filter for an
+	// absent key (BENCHMARKS.md: check latency).
+	po.L0CompactionThreshold, po.L0StopWritesThreshold = 24, 96
 	po.EnsureDefaults()
 	if !opt.ReadOnly {
 		// What a killed AddAll left before its ingestion: never part of the archive.
