@@ -198,15 +198,12 @@ func Open(dir string, opt Options) (*Archive, error) {
 	for i := range po.Levels {
 		po.Levels[i].FilterPolicy = bloom.FilterPolicy(10)
 	}
-	// Each chunk of AddAll ingests tables of h/, n/ and p/ keys that span
-	// the whole key range (hashes and fingerprints), so each lands in L0
-	// over the ones before it. Pebble's default compacts L0 once it is 4
-	// tables deep, rewriting all of the p/ keys below every few chunks (33
-	// compactions in an add of 10^5 documents, 3.4 s of CPU); at 24 it
-	// does so 5 times, and the ingestions never wait for it. A lookup then
-	// reads up to 24 tables of L0 more, each answered by its filter for an
-	// absent key (BENCHMARKS.md: check latency).
-	po.L0CompactionThreshold, po.L0StopWritesThreshold = 24, 96
+	// L0 is compacted at pebble's default depth (4 tables). Each chunk of
+	// AddAll ingests tables of h/, n/ and p/ keys over the whole key range,
+	// which land in L0; at a depth of 24 an add of 10^5 documents did 5
+	// compactions instead of 33 (about 3 s of CPU less), but a check then
+	// read through up to 24 more tables and took half again as much CPU
+	// (BENCHMARKS.md), so the default stays.
 	po.EnsureDefaults()
 	if !opt.ReadOnly {
 		// What a killed AddAll left before its ingestion: never part of the archive.
