@@ -12,7 +12,6 @@ import (
 	"strings"
 
 	"github.com/cockroachdb/pebble/v2"
-	"github.com/cockroachdb/pebble/v2/bloom"
 	"github.com/cockroachdb/pebble/v2/vfs"
 
 	"reprise/shingle"
@@ -188,15 +187,6 @@ func Open(dir string, opt Options) (*Archive, error) {
 		Merger:   postingsMerger,
 		ReadOnly: opt.ReadOnly,
 		Logger:   quietLogger{},
-	}
-	// Bloom filters on every level (10 bits a key, about 1% false
-	// positives): most lookups are of absent keys (an add asks whether each
-	// new document's content and path are archived, a check asks for the
-	// posting of each new unit), and a filter answers them without reading
-	// the table's index and data blocks. An archive whose tables were
-	// written without filters reads as before.
-	for i := range po.Levels {
-		po.Levels[i].FilterPolicy = bloom.FilterPolicy(10)
 	}
 	// L0 is compacted at pebble's default depth (4 tables). Each chunk of
 	// AddAll ingests tables of h/, n/ and p/ keys over the whole key range,

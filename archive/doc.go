@@ -119,9 +119,11 @@
 // files, instead of through the write-ahead log, the memtable and a flush;
 // the tables of one chunk are written on every core too, while the next
 // chunk is prepared. It asks the store whether each new document's content
-// and path are archived (two point lookups, mostly of absent keys, which
-// the tables' Bloom filters answer) unless the archive was empty when it
-// began: then the documents of the run are all it needs to know. In an add
+// and path are archived (two point lookups) unless the archive was empty
+// when it began: then the documents of the run are all it needs to know.
+// (Bloom filters on the tables, tried to make those lookups cheaper, made
+// a check of one document cost half again as much CPU: each check is a new
+// process, which loads the filter of every table it touches.) In an add
 // of 10^5 documents on two cores, what is left is reading the files (a
 // fifth of the CPU), splitting them, compressing, writing the tables and
 // pebble's compactions of L0 (BENCHMARKS.md). A check of a document with
