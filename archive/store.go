@@ -52,8 +52,8 @@ type meta struct {
 // a file without changing its words is no change.
 //
 // The text is hashed in place, not copied into a byte slice first: the copy
-// cost more than the hashing (an allocation and a move of every byte; 2.8 s
-// of 6.2 s in the profile of an add of 10^5 documents, BENCHMARKS.md).
+// (an allocation, its clearing and a move of every byte) cost three times
+// the hashing in a profile of an add of 10^5 documents (BENCHMARKS.md).
 func ContentHash(text string) [32]byte {
 	return sha256.Sum256(unsafe.Slice(unsafe.StringData(text), len(text)))
 }
@@ -443,17 +443,13 @@ func decodeIDs(dst []uint64, b []byte) ([]uint64, error) {
 // standard library writes, so the t/ records keep their format: the
 // standard library's inflater reads them, old and new alike.
 //
-// Measured on the texts of scripts/bench-archive and on the Brown samples
-// (BENCHMARKS.md), one document a stream, as text size after / MB/s:
-//
-//	standard library, BestSpeed (before)   0.54 / 53    0.456 / 49
-//	klauspost, level 1                     0.55 / 108   0.448 / 100
-//	klauspost, Huffman only (this)         0.58 / 241   0.563 / 307
-//
-// Huffman only costs a quarter of level 1's CPU (4 s less in an add of
-// 10^5 documents, a fifth of the whole) for 4% more text on disk on the
-// bench corpus and 26% more on prose that repeats words and phrases; the
-// add's speed was the goal. kflate.BestSpeed here brings the smaller
+// Huffman only ran at about twice the speed of klauspost's level 1 and
+// four times the standard library's BestSpeed (the archive's before), for
+// texts of 0.575 of their size against 0.552 and 0.542 on the bench
+// corpus, but 0.568 against 0.460 and 0.463 on the Brown samples, prose
+// that repeats words and phrases (BenchmarkTextCompression; BENCHMARKS.md).
+// It saved about 4 s of the 20-25 s of CPU of an add of 10^5 documents;
+// the add's speed was the goal. kflate.BestSpeed here brings the smaller
 // archive back, in the same format.
 const textLevel = kflate.HuffmanOnly
 
