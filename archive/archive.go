@@ -2,7 +2,6 @@ package archive
 
 import (
 	"bytes"
-	"compress/flate"
 	"encoding/binary"
 	"encoding/json"
 	"errors"
@@ -135,7 +134,7 @@ type Archive struct {
 	settings Settings
 	readOnly bool
 	scratch  []byte
-	flate    *flate.Writer
+	flate    textCompressor
 	opts     *pebble.Options // as opened, defaults filled in: AddAll writes tables with them
 	fs       vfs.FS
 	// chunkDocs, when set, replaces AddAll's documents per chunk (tests).
@@ -189,6 +188,12 @@ func Open(dir string, opt Options) (*Archive, error) {
 		ReadOnly: opt.ReadOnly,
 		Logger:   quietLogger{},
 	}
+	// L0 is compacted at pebble's default depth (4 tables). Each chunk of
+	// AddAll ingests tables of h/, n/ and p/ keys over the whole key range,
+	// which land in L0; at a depth of 24 an add of 10^5 documents did 5
+	// compactions instead of 33 (about 3 s of CPU less), but a check then
+	// read through up to 24 more tables and took half again as much CPU
+	// (BENCHMARKS.md), so the default stays.
 	po.EnsureDefaults()
 	if !opt.ReadOnly {
 		// What a killed AddAll left before its ingestion: never part of the archive.

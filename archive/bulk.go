@@ -3,14 +3,12 @@ package archive
 import (
 	"bytes"
 	"cmp"
-	"compress/flate"
 	"context"
 	"crypto/sha256"
 	"encoding/binary"
 	"encoding/json"
 	"errors"
 	"fmt"
-	"io"
 	"os"
 	"path/filepath"
 	"runtime"
@@ -70,7 +68,7 @@ func (a *Archive) AddAll(ctx context.Context, docs []Doc, now time.Time, each fu
 		each = func(int, AddResult) {}
 	}
 	now = now.UTC().Truncate(time.Second)
-	b := &bulk{a: a, now: now, each: each, maxText: chunkTextBytes, maxDocs: firstChunkDocs, capDocs: chunkDocs}
+	b := &bulk{ctx: ctx, a: a, now: now, each: each, maxText: chunkTextBytes, maxDocs: firstChunkDocs, capDocs: chunkDocs}
 	if a.chunkDocs > 0 {
 		b.maxDocs, b.capDocs = a.chunkDocs, a.chunkDocs
 	}
@@ -95,17 +93,27 @@ func (a *Archive) AddAll(ctx context.Context, docs []Doc, now time.Time, each fu
 		for k := range ps {
 			if err := ctx.Err(); err != nil {
 				b.pending = nil // not ingested: the documents are not added
-				return cmp.Or(a.Sync(), err)
+				// The chunk being ingested is let finish (and told of).
+				return cmp.Or(b.wait(), a.Sync(), err)
 			}
 			if ps[k].err != nil {
-				return fmt.Errorf("archive: %s: %w", docs[lo+k].Path, ps[k].err)
+				return cmp.Or(b.wait(), fmt.Errorf("archive: %s: %w", docs[lo+k].Path, ps[k].err))
 			}
 			if err := b.add(lo+k, &docs[lo+k], &ps[k]); err != nil {
-				return err
+				if cerr := ctx.Err(); cerr != nil && errors.Is(err, cerr) {
+					return cmp.Or(b.wait(), a.Sync(), err)
+				}
+				return cmp.Or(b.wait(), err)
 			}
 		}
 	}
 	if err := b.flush(); err != nil {
+		if cerr := ctx.Err(); cerr != nil && errors.Is(err, cerr) {
+			return cmp.Or(a.Sync(), err)
+		}
+		return err
+	}
+	if err := b.wait(); err != nil {
 		return err
 	}
 	return a.Sync()
@@ -118,24 +126,12 @@ func prepareAll(docs []Doc) []prepared {
 	var wg sync.WaitGroup
 	for w := range workers {
 		wg.Go(func() {
-			var zw *flate.Writer
+			var zw textCompressor
 			for i := w; i < len(docs); i += workers {
 				d, p := &docs[i], &out[i]
 				p.hash = ContentHash(d.Text)
 				p.pathHash = sha256.Sum256([]byte(d.Path))
-				var buf bytes.Buffer
-				if zw == nil {
-					zw, p.err = flate.NewWriter(&buf, textLevel)
-					if p.err != nil {
-						continue
-					}
-				} else {
-					zw.Reset(&buf)
-				}
-				if _, p.err = io.WriteString(zw, d.Text); p.err == nil {
-					p.err = zw.Close()
-				}
-				p.text = buf.Bytes()
+				p.text, p.err = zw.compress(d.Text)
 				p.units = encodeUnits(d.UnitList)
 				p.fps = distinct(d.UnitList)
 			}
@@ -145,14 +141,32 @@ func prepareAll(docs []Doc) []prepared {
 	return out
 }
 
-// bulk is the state of one AddAll: the chunk being gathered.
+// bulk is the state of one AddAll: the chunk being gathered, and the one
+// being ingested meanwhile.
+//
+// A chunk is written and ingested in the background (ingest) while the
+// next one is gathered: the writing of its table files and the fsyncs of
+// its ingestion overlap with the preparing and the lookups of the
+// documents after it, instead of holding them up. One chunk at most is in
+// flight, so chunks are ingested in order and each is told of in order;
+// a document that goes through Add waits for it first (flush, then wait),
+// so that Add sees every document before it.
 type bulk struct {
+	ctx     context.Context // once done, no chunk is started
 	a       *Archive
 	now     time.Time
 	each    func(int, AddResult)
 	pending []pendingDoc
-	hashes  map[[32]byte]bool // content of the pending documents
-	paths   map[[32]byte]bool // paths of the pending documents
+	done    chan error // the ingestion in flight, or nil
+	// Content and path of every document this AddAll archived (ingested,
+	// in flight or pending, or added by Add): a document found in them is
+	// not new. An entry may outlive its document (replaced by Add): that
+	// only sends a new document through Add, which finds it new. Only
+	// what these miss is looked up in the store, and in an archive that
+	// held no documents when AddAll began (fresh) they miss nothing.
+	hashes  map[[32]byte]bool
+	paths   map[[32]byte]bool
+	fresh   bool
 	text    int
 	maxText int    // a chunk is ingested at this much text
 	maxDocs int    // or at this many documents
@@ -173,15 +187,23 @@ type pendingDoc struct {
 // through Add once the chunk is ingested.
 func (b *bulk) add(i int, d *Doc, p *prepared) error {
 	a := b.a
+	if b.hashes == nil {
+		b.hashes, b.paths = map[[32]byte]bool{}, map[[32]byte]bool{}
+		n, err := a.counter(keyCount)
+		if err != nil {
+			return err
+		}
+		b.fresh = n == 0
+	}
 	fast := !b.hashes[p.hash] && !b.paths[p.pathHash]
-	if fast {
+	if fast && !b.fresh {
 		if _, ok, err := a.lookup(hashKey('h', p.hash)); err != nil {
 			return err
 		} else if ok {
 			fast = false
 		}
 	}
-	if fast {
+	if fast && !b.fresh {
 		if _, ok, err := a.lookup(hashKey('n', p.pathHash)); err != nil {
 			return err
 		} else if ok {
@@ -192,9 +214,15 @@ func (b *bulk) add(i int, d *Doc, p *prepared) error {
 		if err := b.flush(); err != nil {
 			return err
 		}
+		if err := b.wait(); err != nil {
+			return err
+		}
 		r, err := a.Add(*d, b.now)
 		if err != nil {
 			return err
+		}
+		if r.Outcome == Added || r.Outcome == Replaced {
+			b.hashes[p.hash], b.paths[p.pathHash] = true, true
 		}
 		b.known = false // Add moved the counters
 		b.each(i, r)
@@ -221,9 +249,6 @@ func (b *bulk) add(i int, d *Doc, p *prepared) error {
 	if err != nil {
 		return fmt.Errorf("archive: %s: %w", d.Path, err)
 	}
-	if b.hashes == nil {
-		b.hashes, b.paths = map[[32]byte]bool{}, map[[32]byte]bool{}
-	}
 	b.hashes[p.hash], b.paths[p.pathHash] = true, true
 	b.pending = append(b.pending, pendingDoc{i: i, id: id, meta: m, p: p})
 	b.text += len(d.Text)
@@ -233,42 +258,62 @@ func (b *bulk) add(i int, d *Doc, p *prepared) error {
 	return nil
 }
 
-// flush ingests the pending chunk: one table file per key prefix (the
-// files of one ingestion may not overlap), all ingested at once.
+// flush starts the ingestion of the pending chunk in the background, once
+// the one before it is ingested.
 func (b *bulk) flush() error {
 	if len(b.pending) == 0 {
 		return nil
 	}
-	a := b.a
+	if err := b.wait(); err != nil {
+		return err
+	}
+	if err := b.ctx.Err(); err != nil {
+		b.pending = nil // not ingested: the documents are not added
+		return err
+	}
+	c := chunk{docs: b.pending, next: b.next, count: b.count}
+	b.pending = nil // the chunk's from here on
+	b.maxDocs = min(b.maxDocs+b.maxDocs/2, b.capDocs)
+	b.text = 0
+	done := make(chan error, 1)
+	b.done = done
+	a, each := b.a, b.each
+	go func() { done <- a.ingest(&c, each) }()
+	return nil
+}
+
+// wait waits for the ingestion in flight, if any, and returns its error.
+func (b *bulk) wait() error {
+	if b.done == nil {
+		return nil
+	}
+	err := <-b.done
+	b.done = nil
+	return err
+}
+
+// chunk is a run of new documents, with the counters as they stand after it.
+type chunk struct {
+	docs        []pendingDoc
+	next, count uint64
+}
+
+// ingest writes the chunk as table files, one per key prefix (the files
+// of one ingestion may not overlap), all written at once on every core
+// and then ingested in one step; each is then told of every document.
+func (a *Archive) ingest(c *chunk, each func(int, AddResult)) error {
+	ps := c.docs
 	tmp := filepath.Join(a.dir, ingestDir)
 	if err := os.MkdirAll(tmp, 0o700); err != nil {
 		return fmt.Errorf("archive: %w", err)
 	}
 	defer os.RemoveAll(tmp)
-	var files []string
-	var werr error
-	write := func(name string, keys bool, fill func(w *sstable.Writer) error) {
-		if werr != nil || !keys {
-			return
-		}
-		path := filepath.Join(tmp, name)
-		f, err := privateFS{a.fs}.Create(path, vfs.WriteCategoryUnspecified)
-		if err != nil {
-			werr = err
-			return
-		}
-		w := sstable.NewWriter(objstorageprovider.NewFileWritable(f), a.opts.MakeWriterOptions(0, a.db.TableFormat()))
-		err = fill(w)
-		if cerr := w.Close(); err == nil {
-			err = cerr
-		}
-		if err != nil {
-			werr = err
-			return
-		}
-		files = append(files, path)
+	type table struct {
+		name string
+		fill func(w *sstable.Writer) error
 	}
-	ps := b.pending
+	var tables []table
+	add := func(name string, fill func(w *sstable.Writer) error) { tables = append(tables, table{name, fill}) }
 	idv := func(id uint64) []byte { return binary.BigEndian.AppendUint64(nil, id) }
 	byID := func(prefix byte, val func(p *pendingDoc) []byte) func(w *sstable.Writer) error {
 		return func(w *sstable.Writer) error {
@@ -298,44 +343,68 @@ func (b *bulk) flush() error {
 			return nil
 		}
 	}
-	// Keys in byte order: d/, h/, m/, n/, p/, t/, u/.
-	write("d.sst", true, byID('d', func(p *pendingDoc) []byte { return p.meta }))
-	write("h.sst", true, byHash('h', func(p *pendingDoc) [32]byte { return p.p.hash }))
-	write("m.sst", true, func(w *sstable.Writer) error {
+	// Keys in byte order: d/, h/, m/, n/, p/, t/, u/. The largest first,
+	// so that the small ones fill in beside them.
+	add("t.sst", byID('t', func(p *pendingDoc) []byte { return p.p.text }))
+	units := 0
+	for k := range ps {
+		units += len(ps[k].p.fps)
+	}
+	if units > 0 {
+		add("p.sst", func(w *sstable.Writer) error {
+			type op struct{ fp, id uint64 }
+			ops := make([]op, 0, units)
+			for k := range ps {
+				for _, fp := range ps[k].p.fps {
+					ops = append(ops, op{fp, ps[k].id})
+				}
+			}
+			slices.SortFunc(ops, func(x, y op) int { return cmp.Or(cmp.Compare(x.fp, y.fp), cmp.Compare(x.id, y.id)) })
+			var key, val []byte
+			for j := 0; j < len(ops); {
+				val = val[:0]
+				fp := ops[j].fp
+				for ; j < len(ops) && ops[j].fp == fp; j++ {
+					val = binary.AppendUvarint(val, ops[j].id)
+				}
+				key = postingKey(key, fp)
+				if err := w.Merge(key, val); err != nil {
+					return err
+				}
+			}
+			return nil
+		})
+	}
+	add("u.sst", byID('u', func(p *pendingDoc) []byte { return p.p.units }))
+	add("d.sst", byID('d', func(p *pendingDoc) []byte { return p.meta }))
+	add("h.sst", byHash('h', func(p *pendingDoc) [32]byte { return p.p.hash }))
+	add("n.sst", byHash('n', func(p *pendingDoc) [32]byte { return p.p.pathHash }))
+	add("m.sst", func(w *sstable.Writer) error {
 		// m/count sorts before m/next; m/settings is never rewritten.
-		if err := w.Set(keyCount, idv(b.count)); err != nil {
+		if err := w.Set(keyCount, idv(c.count)); err != nil {
 			return err
 		}
-		return w.Set(keyNext, idv(b.next))
+		return w.Set(keyNext, idv(c.next))
 	})
-	write("n.sst", true, byHash('n', func(p *pendingDoc) [32]byte { return p.p.pathHash }))
-	type op struct{ fp, id uint64 }
-	var ops []op
-	for k := range ps {
-		for _, fp := range ps[k].p.fps {
-			ops = append(ops, op{fp, ps[k].id})
-		}
+	files := make([]string, len(tables))
+	errs := make([]error, len(tables))
+	work := make(chan int, len(tables))
+	for k := range tables {
+		work <- k
 	}
-	write("p.sst", len(ops) > 0, func(w *sstable.Writer) error {
-		slices.SortFunc(ops, func(x, y op) int { return cmp.Or(cmp.Compare(x.fp, y.fp), cmp.Compare(x.id, y.id)) })
-		var key, val []byte
-		for j := 0; j < len(ops); {
-			val = val[:0]
-			fp := ops[j].fp
-			for ; j < len(ops) && ops[j].fp == fp; j++ {
-				val = binary.AppendUvarint(val, ops[j].id)
+	close(work)
+	var wg sync.WaitGroup
+	for range min(runtime.GOMAXPROCS(0), len(tables)) {
+		wg.Go(func() {
+			for k := range work {
+				files[k] = filepath.Join(tmp, tables[k].name)
+				errs[k] = a.writeTable(files[k], tables[k].name == "t.sst", tables[k].fill)
 			}
-			key = postingKey(key, fp)
-			if err := w.Merge(key, val); err != nil {
-				return err
-			}
-		}
-		return nil
-	})
-	write("t.sst", true, byID('t', func(p *pendingDoc) []byte { return p.p.text }))
-	write("u.sst", true, byID('u', func(p *pendingDoc) []byte { return p.p.units }))
-	if werr != nil {
-		return fmt.Errorf("archive: write a chunk of %d documents: %w", len(ps), werr)
+		})
+	}
+	wg.Wait()
+	if err := errors.Join(errs...); err != nil {
+		return fmt.Errorf("archive: write a chunk of %d documents: %w", len(ps), err)
 	}
 	// Not under the add's context: an ingestion is whole or absent, and
 	// once begun it is let finish.
@@ -343,12 +412,27 @@ func (b *bulk) flush() error {
 		return fmt.Errorf("archive: ingest a chunk of %d documents: %w", len(ps), err)
 	}
 	for k := range ps {
-		b.each(ps[k].i, AddResult{Outcome: Added, ID: ps[k].id})
+		each(ps[k].i, AddResult{Outcome: Added, ID: ps[k].id})
 	}
-	b.pending = b.pending[:0]
-	b.maxDocs = min(b.maxDocs+b.maxDocs/2, b.capDocs)
-	clear(b.hashes)
-	clear(b.paths)
-	b.text = 0
 	return nil
+}
+
+// writeTable writes one table file of a chunk with the store's options;
+// precompressed (the t/ records, deflated already) means without block
+// compression, which would spend its time finding nothing to gain.
+func (a *Archive) writeTable(path string, precompressed bool, fill func(w *sstable.Writer) error) error {
+	wo := a.opts.MakeWriterOptions(0, a.db.TableFormat())
+	if precompressed {
+		wo.Compression = sstable.NoCompression
+	}
+	f, err := privateFS{a.fs}.Create(path, vfs.WriteCategoryUnspecified)
+	if err != nil {
+		return err
+	}
+	w := sstable.NewWriter(objstorageprovider.NewFileWritable(f), wo)
+	err = fill(w)
+	if cerr := w.Close(); err == nil {
+		err = cerr
+	}
+	return err
 }

@@ -64,15 +64,19 @@ func dump(t *testing.T, a *Archive) []string {
 
 // TestAddAllIsAddInTurn checks that AddAll gives the outcomes, the keys
 // and the values of Add called on each document in turn, on an archive
-// that already holds documents, with chunks of 1, 3 and the default size.
+// that already holds documents and on an empty one (where AddAll looks
+// nothing up in the store), with chunks of 1, 3 and the default size.
 func TestAddAllIsAddInTurn(t *testing.T) {
 	docs := bulkDocs()
 	seed := []Doc{doc("pre.txt", sentences("pre", 2)), doc("pre-copy.txt", sentences("m", 0)+docs[10].Text)}
-	build := func(name string, chunk int, all bool) (*Archive, []AddResult) {
+	build := func(name string, seeded bool, chunk int, all bool) (*Archive, []AddResult) {
 		a := openTest(t, filepath.Join(t.TempDir(), name))
 		t.Cleanup(func() { a.Close() })
 		a.chunkDocs = chunk
 		for _, d := range seed {
+			if !seeded {
+				break
+			}
 			if _, err := a.Add(d, testTime); err != nil {
 				t.Fatal(err)
 			}
@@ -99,35 +103,37 @@ func TestAddAllIsAddInTurn(t *testing.T) {
 		}
 		return a, got
 	}
-	_, want := build("ref", 0, false)
-	outcomes := map[Outcome]int{}
-	for _, r := range want {
-		outcomes[r.Outcome]++
-	}
-	if len(outcomes) != 4 {
-		t.Fatalf("the documents give the outcomes %v: want all four", outcomes)
-	}
-	for _, chunk := range []int{1, 3, 0} {
-		ref, _ := build(fmt.Sprint("ref", chunk), 0, false)
-		wantKeys := dump(t, ref)
-		a, got := build(fmt.Sprint("bulk", chunk), chunk, true)
-		if !slices.Equal(got, want) {
-			t.Errorf("chunks of %d: outcomes\n%v\nwant (Add in turn)\n%v", chunk, got, want)
+	for _, seeded := range []bool{true, false} {
+		_, want := build("ref", seeded, 0, false)
+		outcomes := map[Outcome]int{}
+		for _, r := range want {
+			outcomes[r.Outcome]++
 		}
-		if keys := dump(t, a); !slices.Equal(keys, wantKeys) {
-			t.Errorf("chunks of %d: %d keys differ from Add's %d:\n%s", chunk, len(keys), len(wantKeys), firstDiff(keys, wantKeys))
+		if len(outcomes) != 4 {
+			t.Fatalf("seeded %v: the documents give the outcomes %v: want all four", seeded, outcomes)
 		}
-		if p, err := a.Verify(true); err != nil || len(p) > 0 {
-			t.Errorf("chunks of %d: verify: %v %v", chunk, p, err)
-		}
-		// Removing reads postings written by ingestion.
-		for _, ar := range []*Archive{a, ref} {
-			if err := ar.Remove(want[1].ID); err != nil {
-				t.Fatal(err)
+		for _, chunk := range []int{1, 3, 0} {
+			ref, _ := build(fmt.Sprint("ref", chunk), seeded, 0, false)
+			wantKeys := dump(t, ref)
+			a, got := build(fmt.Sprint("bulk", chunk), seeded, chunk, true)
+			if !slices.Equal(got, want) {
+				t.Errorf("seeded %v, chunks of %d: outcomes\n%v\nwant (Add in turn)\n%v", seeded, chunk, got, want)
 			}
-		}
-		if keys, refKeys := dump(t, a), dump(t, ref); !slices.Equal(keys, refKeys) {
-			t.Errorf("chunks of %d, after a removal: keys differ:\n%s", chunk, firstDiff(keys, refKeys))
+			if keys := dump(t, a); !slices.Equal(keys, wantKeys) {
+				t.Errorf("seeded %v, chunks of %d: %d keys differ from Add's %d:\n%s", seeded, chunk, len(keys), len(wantKeys), firstDiff(keys, wantKeys))
+			}
+			if p, err := a.Verify(true); err != nil || len(p) > 0 {
+				t.Errorf("seeded %v, chunks of %d: verify: %v %v", seeded, chunk, p, err)
+			}
+			// Removing reads postings written by ingestion.
+			for _, ar := range []*Archive{a, ref} {
+				if err := ar.Remove(want[1].ID); err != nil {
+					t.Fatal(err)
+				}
+			}
+			if keys, refKeys := dump(t, a), dump(t, ref); !slices.Equal(keys, refKeys) {
+				t.Errorf("seeded %v, chunks of %d, after a removal: keys differ:\n%s", seeded, chunk, firstDiff(keys, refKeys))
+			}
 		}
 	}
 }

@@ -26,7 +26,7 @@
 //	m/settings             format version and unit settings (JSON)
 //	m/next, m/count        next document ID, number of documents
 //	d/<id>                 document metadata (JSON: path, hash, format, size, date, marks, notes)
-//	t/<id>                 extracted text, compressed with compress/flate (standard library)
+//	t/<id>                 extracted text, a DEFLATE stream (RFC 1951; Huffman coding only, see textLevel)
 //	u/<id>                 units in text order, in shingle's unit encoding (shingle.AppendUnits)
 //	h/<sha256 of content>  → id, for idempotent add
 //	n/<sha256 of path>     → id, so changed content at the same path replaces the old version
@@ -66,7 +66,10 @@
 //     holding the chunk's IDs in order, exactly as the operands Add would
 //     write folded together. A document that replaces a version or whose
 //     content is archived goes through Add, after the chunk before it is
-//     ingested. The chunk's files are written in DIR/ingest.tmp; a kill
+//     ingested. A chunk is written and ingested in the background while
+//     the next one is gathered, one chunk in flight at a time, so chunks
+//     are still ingested (and told of) in order. The chunk's files are
+//     written in DIR/ingest.tmp; a kill
 //     before their ingestion leaves them there (text included) until the
 //     next writable Open deletes the folder. Chunks grow from 8 documents
 //     by half each time up to 8192 documents or 32 MB of text: a small add is not
@@ -110,11 +113,20 @@
 // # Cost and the alternative rejected
 //
 // Add costs one batch of about 3 + u keys for a document with u distinct
-// units, plus the flate compression of its text (flate.BestSpeed: 2.3 s
-// of CPU instead of 3.4 s at the default level for 110.8 MB of text, for
-// 3% more on disk; BENCHMARKS.md).
+// units, plus the compression of its text (Huffman coding only: about 240
+// MB/s a core, where the standard library's BestSpeed did 53; textLevel).
 // AddAll compresses on every core and writes its keys once, into table
-// files, instead of through the write-ahead log, the memtable and a flush. A check of a document with
+// files, instead of through the write-ahead log, the memtable and a flush;
+// the tables of one chunk are written on every core too, while the next
+// chunk is prepared. It asks the store whether each new document's content
+// and path are archived (two point lookups) unless the archive was empty
+// when it began: then the documents of the run are all it needs to know.
+// (Bloom filters on the tables, tried to make those lookups cheaper, made
+// a check of one document cost half again as much CPU: each check is a new
+// process, which loads the filter of every table it touches.) In an add
+// of 10^5 documents on two cores, what is left is reading the files (a
+// fifth of the CPU), splitting them, compressing, writing the tables and
+// pebble's compactions of L0 (BENCHMARKS.md). A check of a document with
 // u distinct units costs u point lookups; the postings read are bounded by
 // the common-text cap. Loading a candidate costs two point reads and a
 // decompression. The alternative of a flat file of sorted (fingerprint,

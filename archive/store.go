@@ -12,8 +12,10 @@ import (
 	"io"
 	"slices"
 	"time"
+	"unsafe"
 
 	"github.com/cockroachdb/pebble/v2"
+	kflate "github.com/klauspost/compress/flate"
 
 	"reprise/corpus"
 	"reprise/shingle"
@@ -48,7 +50,13 @@ type meta struct {
 // Add is idempotent by. Extracted text, not file bytes, so that it is the
 // same for a file and for the same file inside a ZIP, and so that re-saving
 // a file without changing its words is no change.
-func ContentHash(text string) [32]byte { return sha256.Sum256([]byte(text)) }
+//
+// The text is hashed in place, not copied into a byte slice first: the copy
+// (an allocation, its clearing and a move of every byte) cost three times
+// the hashing in a profile of an add of 10^5 documents (BENCHMARKS.md).
+func ContentHash(text string) [32]byte {
+	return sha256.Sum256(unsafe.Slice(unsafe.StringData(text), len(text)))
+}
 
 // Outcome says what Add did.
 type Outcome int
@@ -428,33 +436,54 @@ func decodeIDs(dst []uint64, b []byte) ([]uint64, error) {
 	return dst, nil
 }
 
-// textLevel is the flate level of stored texts: on the 20,000 documents of
-// scripts/bench-archive, BestSpeed took 2.3 s of CPU where
-// DefaultCompression took 3.4 s, for 3% more on disk (BENCHMARKS.md).
-const textLevel = flate.BestSpeed
+// textLevel is the deflate level of stored texts: Huffman coding only,
+// no search for repeated strings. The stream is written by
+// github.com/klauspost/compress/flate (already in the build: pebble needs
+// the module) and is a plain DEFLATE stream (RFC 1951) of the kind the
+// standard library writes, so the t/ records keep their format: the
+// standard library's inflater reads them, old and new alike.
+//
+// Huffman only ran at about twice the speed of klauspost's level 1 and
+// four times the standard library's BestSpeed (the archive's before), for
+// texts of 0.575 of their size against 0.552 and 0.542 on the bench
+// corpus, but 0.568 against 0.460 and 0.463 on the Brown samples, prose
+// that repeats words and phrases (BenchmarkTextCompression; BENCHMARKS.md).
+// It saved about 4 s of the 20-25 s of CPU of an add of 10^5 documents;
+// the add's speed was the goal. kflate.BestSpeed here brings the smaller
+// archive back, in the same format.
+const textLevel = kflate.HuffmanOnly
 
-// compress deflates text with one reused writer (a flate.Writer holds
-// about a megabyte of tables: one per archive, not one per document).
-func (a *Archive) compress(text string) ([]byte, error) {
-	var buf bytes.Buffer
-	if a.flate == nil {
-		w, err := flate.NewWriter(&buf, textLevel)
+// textCompressor deflates texts with one reused writer (a writer holds
+// several hundred kilobytes of tables: one per goroutine, not one per
+// document). Its zero value is ready; it is not safe for concurrent use.
+type textCompressor struct{ w *kflate.Writer }
+
+// compress returns the deflated text in a new slice (sized for the usual
+// ratio, about a half, so that it rarely grows).
+func (c *textCompressor) compress(text string) ([]byte, error) {
+	buf := bytes.NewBuffer(make([]byte, 0, len(text)*5/8+64))
+	if c.w == nil {
+		w, err := kflate.NewWriter(buf, textLevel)
 		if err != nil {
 			return nil, err
 		}
-		a.flate = w
+		c.w = w
 	} else {
-		a.flate.Reset(&buf)
+		c.w.Reset(buf)
 	}
-	w := a.flate
-	if _, err := io.WriteString(w, text); err != nil {
+	// The writer reads the text in place (a Writer may not modify or keep
+	// what it is given), not a copy of it.
+	if _, err := c.w.Write(unsafe.Slice(unsafe.StringData(text), len(text))); err != nil {
 		return nil, err
 	}
-	if err := w.Close(); err != nil {
+	if err := c.w.Close(); err != nil {
 		return nil, err
 	}
 	return buf.Bytes(), nil
 }
+
+// compress deflates text with the archive's compressor.
+func (a *Archive) compress(text string) ([]byte, error) { return a.flate.compress(text) }
 
 func decompress(b []byte) (string, error) {
 	r := flate.NewReader(bytes.NewReader(b))

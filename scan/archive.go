@@ -42,6 +42,14 @@ func ReadBatch(ctx context.Context, paths []string, opt corpus.Options, sopt shi
 	}
 	b := &Batch{Skipped: skipped}
 	if ar != nil {
+		// An empty archive holds none of them: no hashing, no lookups.
+		if n, err := ar.Count(); err != nil {
+			return nil, err
+		} else if n == 0 {
+			ar = nil
+		}
+	}
+	if ar != nil {
 		kept := docs[:0]
 		for _, d := range docs {
 			id, ok, err := ar.FindHash(archive.ContentHash(d.Text))
