@@ -73,6 +73,9 @@ func main() {
 	ll := flag.String("ll", "1048576,16,64", "with -cache-sim: the simulated last-level cache, size,associativity,line (cachegrind --LL)")
 	readOnce := flag.String("read-once", "", "(used by -instructions) read this shape -reads times with corpus.Read and exit")
 	reads := flag.Int("reads", 1, "with -read-once: how many reads")
+	process := flag.Bool("process", false, "time one read of each shape at n, 2n and 4n, each size in processes of its own (see process.go), and print the table")
+	reps := flag.Int("reps", 3, "with -process: pairs of processes per size (the median is taken)")
+	extra := flag.Int("extra", 8, "with -process: the second process of a pair reads the file this many more times")
 	flag.Parse()
 	var err error
 	switch {
@@ -83,6 +86,13 @@ func main() {
 		ok, err = growthTable(os.Stdout, *count, *benchtime, *maxRatio, *strict, *shapes)
 		if err == nil && !ok {
 			fmt.Fprintf(os.Stderr, "hostile: a growth ratio of the code (allocations, or time in cache) is above %.2f\n", *maxRatio)
+			os.Exit(1)
+		}
+	case *process:
+		var ok bool
+		ok, err = processTable(os.Stdout, pick(*shapes, nil), *reps, *extra, *maxRatio)
+		if err == nil && !ok {
+			fmt.Fprintf(os.Stderr, "hostile: a time ratio is above %.2f\n", *maxRatio)
 			os.Exit(1)
 		}
 	case *readOnce != "":
