@@ -59,7 +59,7 @@ import (
 
 func main() {
 	out := flag.String("out", "", "write the shapes into this folder")
-	mult := flag.Int("mult", 1, "with -out: write each shape at this many times its base count")
+	mult := flag.Int("mult", 1, "with -out: write each shape at this many times its base count; with -process: n is this many times the base count")
 	shapes := flag.String("shapes", "", "comma-separated shape names (default: all; with -big: the Markdown ones)")
 	table := flag.Bool("table", false, "run the growth benchmark and print the table")
 	count := flag.Int("count", 5, "with -table: runs of the benchmark (medians are taken)")
@@ -75,7 +75,7 @@ func main() {
 	reads := flag.Int("reads", 1, "with -read-once: how many reads")
 	process := flag.Bool("process", false, "time one read of each shape at n, 2n and 4n, each size in processes of its own (see process.go), and print the table")
 	reps := flag.Int("reps", 3, "with -process: pairs of processes per size (the median is taken)")
-	extra := flag.Int("extra", 8, "with -process: the second process of a pair reads the file this many more times")
+	extra := flag.Int("extra", 8, "with -process: the second process of a pair reads the file this many more times at 4n (twice as many at 2n, four times at n)")
 	flag.Parse()
 	var err error
 	switch {
@@ -90,7 +90,7 @@ func main() {
 		}
 	case *process:
 		var ok bool
-		ok, err = processTable(os.Stdout, pick(*shapes, nil), *reps, *extra, *maxRatio)
+		ok, err = processTable(os.Stdout, pick(*shapes, nil), *mult, *reps, *extra, *maxRatio)
 		if err == nil && !ok {
 			fmt.Fprintf(os.Stderr, "hostile: a time ratio is above %.2f\n", *maxRatio)
 			os.Exit(1)
