@@ -39,10 +39,13 @@
 // the listing itself is not overlapped, only the stats.
 //
 // A worker reads a file with one buffer sized from the walk's stat, and a
-// plain UTF-8 text is that buffer (text.go), not a copy. When a ReadEach
-// digest gives the text back (sets it to ""), the worker reads its next
-// file into the same buffer (up to 1 MiB): a scan of small files then
-// allocates a few buffers, not one per file.
+// plain UTF-8 text is that buffer (text.go), and a Markdown text is that
+// buffer with its markup blanked in place, not a copy. When a ReadEach
+// digest does not keep the text (Loan), the worker reads its next file into
+// the same buffer (any file when the buffer is at most 1 MiB, else a file
+// that fills a quarter of it): a scan of small files then allocates a few
+// buffers, not one per file, and a batch of large ones takes no fresh
+// pages per file.
 //
 // Policy, in the order it is applied to each entry:
 //

@@ -44,12 +44,16 @@ type input struct {
 	opt    *Options // defaults applied
 	budget *int64   // uncompressed container bytes still allowed (see readMember)
 	depth  int      // ZIP nesting: 0 for a file on disk, 1 inside a ZIP, ...
-	// owned: raw is the buffer readFile allocated for this one file, and
-	// nothing writes to it once read, so a text may alias it (text.go).
+	// owned: raw is the buffer readFile read this one file into, and
+	// nothing reads it once the file is extracted, so a text may be that
+	// buffer (text.go), its markup blanked in place (markdown.go).
 	owned bool
 	// dl is the file's deadline (deadline.go), shared by the members of
 	// a ZIP archive; nil for none.
 	dl *deadline
+	// scratch is the reading worker's reusable memory (scratch.go),
+	// shared by the members of a ZIP archive; nil for none.
+	scratch *scratch
 }
 
 // An extraction is what an extractor hands back.

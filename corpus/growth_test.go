@@ -31,8 +31,10 @@ import (
 //	go test -run '^$' -bench BenchmarkHostileRatios -benchtime 9x -count 5 ./corpus
 
 // extractShape reads one hostile file as Read does (a .jsonl file
-// streamed line by line; the bytes owned by the extraction, as a file's
-// are, so a plain text is not copied), under the deadline dl.
+// streamed line by line; otherwise a copy of raw, as readFile reads a file
+// into a buffer of its own, owned by the extraction: a plain text is that
+// buffer, a Markdown text that buffer blanked in place), under the
+// deadline dl. raw itself is never written to.
 func extractShape(tb testing.TB, s hostile.Shape, raw []byte, opt *Options, dl *deadline) []part {
 	tb.Helper()
 	if s.Format == "jsonl" {
@@ -43,7 +45,7 @@ func extractShape(tb testing.TB, s hostile.Shape, raw []byte, opt *Options, dl *
 		return parts
 	}
 	budget := opt.MaxContainerBytes
-	return extractFile("hostile"+s.Ext, &input{raw: raw, opt: opt, budget: &budget, dl: dl, owned: true})
+	return extractFile("hostile"+s.Ext, &input{raw: bytes.Clone(raw), opt: opt, budget: &budget, dl: dl, owned: true})
 }
 
 func makeShape(tb testing.TB, s hostile.Shape, n int) []byte {

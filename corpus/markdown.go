@@ -2,9 +2,9 @@ package corpus
 
 import (
 	"bytes"
-	"slices"
 	"unicode"
 	"unicode/utf8"
+	"unsafe"
 )
 
 // markdown reads Markdown (.md, .markdown). The file is decoded like plain
@@ -22,20 +22,39 @@ func (markdown) sniff(_ []byte) bool { return false }
 
 func (markdown) claims(ext string) bool { return ext == ".md" || ext == ".markdown" }
 
+// extract blanks the markup in place, in the decoded text when decoding
+// made a new buffer and in the file's own buffer when in.owned says that
+// nothing reads it afterwards (readEntry), and the text is that buffer
+// (unsafe.String): nothing writes to it once blanked. Only the bytes of a
+// caller that may use them again (a ZIP member's, a test's) are copied
+// first. A Markdown file thus costs no copy of its size beyond the read,
+// which for a batch of large files also means no fresh pages per file.
 func (markdown) extract(in *input) (extraction, error) {
 	d, err := decode(in.raw)
 	if err != nil {
 		return extraction{}, err
 	}
-	b := bytes.Clone(d.text)
-	m := mdBlanker{dl: in.dl}
+	b := d.text
+	if !in.owned && overlaps(b, in.raw) {
+		b = bytes.Clone(b)
+	}
+	m := in.scratch.blanker(in.dl)
 	if err := m.blank(b); err != nil {
 		return extraction{}, err
 	}
 	if onlySpace(b) {
 		return extraction{}, refuse(reasonMarkupOnly)
 	}
-	return extraction{Text: string(b), Encoding: d.encoding, Notes: d.notes()}, nil
+	return extraction{Text: unsafe.String(unsafe.SliceData(b), len(b)), Encoding: d.encoding, Notes: d.notes()}, nil
+}
+
+// overlaps reports whether a and b share any byte of memory.
+func overlaps(a, b []byte) bool {
+	if len(a) == 0 || len(b) == 0 {
+		return false
+	}
+	a0, b0 := uintptr(unsafe.Pointer(unsafe.SliceData(a))), uintptr(unsafe.Pointer(unsafe.SliceData(b)))
+	return a0 < b0+uintptr(len(b)) && b0 < a0+uintptr(len(a))
 }
 
 // mdBlanker removes Markdown markup in place. It is not a CommonMark
@@ -176,10 +195,7 @@ func trimBlankEnd(b []byte, s, e int) int {
 
 func (m *mdBlanker) splitLines(b []byte) {
 	// One allocation: at most one line per line end, and a last one.
-	if n := bytes.Count(b, []byte{'\n'}) + bytes.Count(b, []byte{'\r'}) + 1; cap(m.lines) < n {
-		m.lines = make([]mdLine, 0, n)
-	}
-	m.lines = m.lines[:0]
+	m.lines = reuse(m.lines, bytes.Count(b, []byte{'\n'})+bytes.Count(b, []byte{'\r'})+1)
 	start := 0
 	if bytes.HasPrefix(b, []byte(bomUTF8)) {
 		start = len(bomUTF8) // the mark stays; markup detection starts after it
@@ -631,8 +647,8 @@ func (m *mdBlanker) inline(b []byte, s, e int) bool {
 	// allocation of the final size, where growing by append allocated
 	// about five times it (a paragraph of 10^5 runs: 50 MiB for 1 MiB).
 	p := b[s:e]
-	m.delims = slices.Grow(m.delims[:0], bytes.Count(p, []byte("*"))+bytes.Count(p, []byte("_"))+bytes.Count(p, []byte("~")))
-	m.brackets = slices.Grow(m.brackets[:0], bytes.Count(p, []byte("[")))
+	m.delims = reuse(m.delims, bytes.Count(p, []byte("*"))+bytes.Count(p, []byte("_"))+bytes.Count(p, []byte("~")))
+	m.brackets = reuse(m.brackets, bytes.Count(p, []byte("[")))
 	m.linkFloor = 0
 	for k := range m.noClose {
 		m.noClose[k], m.found[k] = -1, -1
@@ -1010,7 +1026,7 @@ func (m *mdBlanker) addDelim(b []byte, s, e, i, n int) {
 // ("*a *a ... a* a*") cost linear time too, not n².
 func (m *mdBlanker) emphasis(b []byte) {
 	d := m.delims
-	m.jump = slices.Grow(m.jump[:0], len(d))
+	m.jump = reuse(m.jump, len(d))
 	for k := range d {
 		m.jump = append(m.jump, k)
 	}

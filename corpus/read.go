@@ -104,14 +104,14 @@ func ReadEachContext[T any](ctx context.Context, paths []string, opt Options, di
 	var results chunked[read] // grown by this goroutine only, during the walk
 	jobs := make(chan job, jobQueue)
 	work := func() {
-		var scratch []byte // the buffer files are read into, while no document keeps it
+		var sc scratch // the worker's buffers, reused from file to file
 		for j := range jobs {
 			if ctx.Err() != nil {
 				continue // drained, not read
 			}
 			r, name0 := j.r, j.e.display
 			kept := false
-			used := readEntry(&j.e, &opt, scratch, func(p *part) {
+			used := readEntry(&j.e, &opt, &sc, func(p *part) {
 				name := name0 + p.sub
 				if p.reason != "" {
 					r.skipped = append(r.skipped, Skipped{Path: name, Reason: p.reason})
@@ -137,9 +137,9 @@ func ReadEachContext[T any](ctx context.Context, paths []string, opt Options, di
 			// A plain text file's text may be the buffer itself (text.go):
 			// it is read into again only when every document of the file
 			// gave its text back.
-			scratch = nil
-			if !kept && cap(used) <= maxReusedBuffer {
-				scratch = used
+			sc.raw = nil
+			if !kept {
+				sc.raw = used
 			}
 		}
 	}
@@ -252,13 +252,14 @@ func (c *chunked[V]) at(i int) *V {
 	return &c.chunks[i/chunkLen][i%chunkLen]
 }
 
-// readEntry reads one file, into buf when it is large enough, and hands
+// readEntry reads one file, into sc.raw when it serves (readBuffer), and hands
 // emit its documents (one, or one per member of a ZIP archive or line of a
 // JSON Lines file), or the reason there is none. It returns the buffer the
 // file was read into (nil when none was), which a document's text may
 // alias (text.go): the caller may read into it again only once no document
 // keeps its text.
-func readEntry(e *entry, opt *Options, buf []byte, emit func(*part)) []byte {
+func readEntry(e *entry, opt *Options, sc *scratch, emit func(*part)) []byte {
+	buf := sc.raw
 	if isJSONL(e.display) { // streamed, one document per line (jsonl.go)
 		readJSONLEach(e.osPath, opt, emit)
 		return buf
@@ -278,7 +279,7 @@ func readEntry(e *entry, opt *Options, buf []byte, emit func(*part)) []byte {
 		return raw
 	}
 	budget := opt.MaxContainerBytes
-	in := &input{raw: raw, osPath: e.osPath, opt: opt, budget: &budget, owned: true, dl: newDeadline(opt.FileTimeout)}
+	in := &input{raw: raw, osPath: e.osPath, opt: opt, budget: &budget, owned: true, dl: newDeadline(opt.FileTimeout), scratch: sc}
 	parts := extractFile(path.Base(e.display), in)
 	for k := range parts {
 		emit(&parts[k])
@@ -286,17 +287,23 @@ func readEntry(e *entry, opt *Options, buf []byte, emit func(*part)) []byte {
 	return raw
 }
 
-// maxReusedBuffer is the largest read buffer a worker keeps for the next
-// file: a corpus of small files reads them all into one buffer per worker
-// instead of allocating one per file (an eighth of a scan's allocations
-// and their collection), and one large file does not make its worker hold
-// its size for the rest of the run.
-const maxReusedBuffer = 1 << 20
+// smallBuffer is the capacity up to which a worker's read buffer serves
+// any smaller file. A larger buffer serves only files that fill at least a
+// quarter of it (readBuffer): a batch of large files is read into one
+// buffer per worker (a fresh buffer per file would cost its pages from the
+// kernel again, and the runtime hands a large freed buffer back to the
+// kernel sooner or later, so the cost per file jumped where files passed
+// a fixed cap on what is kept), while one large file does not make its
+// worker hold its size for the small files that follow. What a worker
+// holds is never more than the largest file it is reading or has just
+// read, which it held while reading it anyway.
+const smallBuffer = 1 << 20
 
-// readBuffer returns buf emptied when it has room for want bytes, else a
-// new buffer of capacity want.
+// readBuffer returns buf emptied when it has room for want bytes and is
+// not much larger than needed (see smallBuffer), else a new buffer of
+// capacity want.
 func readBuffer(buf []byte, want int64) []byte {
-	if int64(cap(buf)) >= want {
+	if c := int64(cap(buf)); c >= want && (c <= smallBuffer || want >= c/4) {
 		return buf[:0]
 	}
 	return make([]byte, 0, want)

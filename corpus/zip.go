@@ -168,7 +168,7 @@ func extractZip(in *input) []part {
 			parts = append(parts, part{sub: sub, reason: reasonOf(err)})
 			continue
 		}
-		inner := &input{raw: raw, opt: in.opt, budget: in.budget, depth: in.depth + 1, dl: in.dl}
+		inner := &input{raw: raw, opt: in.opt, budget: in.budget, depth: in.depth + 1, dl: in.dl, scratch: in.scratch}
 		for _, p := range extractFile(base, inner) {
 			p.sub = sub + p.sub
 			parts = append(parts, p)

@@ -10,6 +10,7 @@ import (
 	"regexp"
 	"strconv"
 	"strings"
+	"syscall"
 
 	"reprise/corpus"
 	"reprise/internal/hostile"
@@ -40,9 +41,50 @@ import (
 // development machine) and counts their misses per read, the same way:
 // data misses that grow faster than the input are the memory system's part.
 
+// readBatch writes reads copies of the shape at mult times its base count
+// into a temporary folder and reads the folder once with corpus.ReadEach
+// (one job), lending each text to a digest that keeps none of it, as
+// `reprise scan` reads a folder: the worker's buffers serve file after
+// file. It writes to out what the reads after the first cost (see
+// usageSince).
+func readBatch(out io.Writer, s hostile.Shape, mult, reads int) error {
+	raw, err := s.Make(s.Base * max(1, mult))
+	if err != nil {
+		return err
+	}
+	dir, err := os.MkdirTemp("", "reprise-hostile-")
+	if err != nil {
+		return err
+	}
+	defer os.RemoveAll(dir)
+	for k := range reads {
+		if err := os.WriteFile(filepath.Join(dir, fmt.Sprintf("%04d%s", k, s.Ext)), raw, 0o644); err != nil {
+			return err
+		}
+	}
+	var first syscall.Rusage
+	digested := 0
+	_, _, _, err = corpus.ReadEach([]string{dir}, corpus.Options{Jobs: 1}, func(_ *corpus.Document, text *corpus.Loan) int {
+		if digested++; digested == 1 {
+			// The digest runs on the worker between two files: from
+			// here on, the clock covers the reads of the other copies.
+			_ = syscall.Getrusage(syscall.RUSAGE_SELF, &first)
+		}
+		return len(text.Text())
+	})
+	if err != nil {
+		return err
+	}
+	if digested != reads {
+		return fmt.Errorf("%s: %d of %d copies read (a refused shape is skipped, not digested: read it without -batch)", s.Name, digested, reads)
+	}
+	return usageSince(out, &first)
+}
+
 // readShape writes the shape at mult times its base count to a temporary
-// file and reads it reads times with corpus.Read (one job).
-func readShape(s hostile.Shape, mult, reads int) error {
+// file and reads it reads times with corpus.Read (one job). It writes to
+// out what the reads after the first cost (see usageSince).
+func readShape(out io.Writer, s hostile.Shape, mult, reads int) error {
 	raw, err := s.Make(s.Base * max(1, mult))
 	if err != nil {
 		return err
@@ -56,12 +98,29 @@ func readShape(s hostile.Shape, mult, reads int) error {
 	if err := os.WriteFile(name, raw, 0o644); err != nil {
 		return err
 	}
-	for range reads {
+	var first syscall.Rusage
+	for k := range reads {
 		if _, _, err := corpus.Read([]string{name}, corpus.Options{Jobs: 1}); err != nil {
 			return err
 		}
+		if k == 0 {
+			_ = syscall.Getrusage(syscall.RUSAGE_SELF, &first)
+		}
 	}
-	return nil
+	return usageSince(out, &first)
+}
+
+// usageSince writes one line to out: the user and system time (in
+// nanoseconds, every thread of the process) and the minor page faults
+// since first, as processTable reads them.
+func usageSince(out io.Writer, first *syscall.Rusage) error {
+	var now syscall.Rusage
+	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &now); err != nil {
+		return err
+	}
+	ns := func(t syscall.Timeval) int64 { return t.Nano() }
+	_, err := fmt.Fprintf(out, "%d %d %d\n", ns(now.Utime)-ns(first.Utime), ns(now.Stime)-ns(first.Stime), now.Minflt-first.Minflt)
+	return err
 }
 
 // refusedReads is how many more reads of a refused shape the second run

@@ -73,6 +73,7 @@ func main() {
 	ll := flag.String("ll", "1048576,16,64", "with -cache-sim: the simulated last-level cache, size,associativity,line (cachegrind --LL)")
 	readOnce := flag.String("read-once", "", "(used by -instructions) read this shape -reads times with corpus.Read and exit")
 	reads := flag.Int("reads", 1, "with -read-once: how many reads")
+	batch := flag.Bool("batch", false, "with -process and -read-once: the reads are copies of the file in one folder, read by one corpus.ReadEach that lends the texts, as reprise scan reads a folder")
 	process := flag.Bool("process", false, "time one read of each shape at n, 2n and 4n, each size in processes of its own (see process.go), and print the table")
 	reps := flag.Int("reps", 3, "with -process: pairs of processes per size (the median is taken)")
 	extra := flag.Int("extra", 8, "with -process: the second process of a pair reads the file this many more times at 4n (twice as many at 2n, four times at n)")
@@ -90,13 +91,17 @@ func main() {
 		}
 	case *process:
 		var ok bool
-		ok, err = processTable(os.Stdout, pick(*shapes, nil), *mult, *reps, *extra, *maxRatio)
+		ok, err = processTable(os.Stdout, pick(*shapes, nil), *batch, *mult, *reps, *extra, *maxRatio)
 		if err == nil && !ok {
 			fmt.Fprintf(os.Stderr, "hostile: a time ratio is above %.2f\n", *maxRatio)
 			os.Exit(1)
 		}
 	case *readOnce != "":
-		err = readShape(pick(*readOnce, nil)[0], *mult, *reads)
+		if *batch {
+			err = readBatch(os.Stdout, pick(*readOnce, nil)[0], *mult, *reads)
+		} else {
+			err = readShape(os.Stdout, pick(*readOnce, nil)[0], *mult, *reads)
+		}
 	case *instr:
 		var ok bool
 		ok, err = instructionTable(os.Stdout, pick(*shapes, nil), *cacheSim, *ll, *maxRatio)

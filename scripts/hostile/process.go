@@ -7,43 +7,51 @@ import (
 	"os/exec"
 	"slices"
 	"strconv"
-	"syscall"
 
 	"reprise/internal/hostile"
 )
 
 // processTable measures each shape at n, 2n and 4n, every size in
 // processes of its own, as a batch of such files would be read: a child
-// (this program with -read-once) reads the shape once, another reads it
-// 1+k times, and the difference of their processor time (user and system,
-// all threads, the collector's included), over k, is the cost of one read
-// in a process that has already read that file: no other size's heap,
-// caches or garbage is in it. k is extra at 4n, twice that at 2n and four
-// times at n, so that every size's measure covers the same bytes read and
-// the small reads are not drowned by the noise of starting a process. Each
-// measure is the median of reps pairs of children. n is scale times each
-// shape's base count (scale 1: the sizes of the growth benchmark). It
+// (this program with -read-once) reads the shape 1+k times and reports the
+// processor time (user and system, all threads, the collector's included)
+// and the minor page faults of the k reads after the first (usageSince),
+// so that neither making the file, nor starting the process, nor the first
+// read's warm-up is in the measure, and no other size's heap, caches or
+// garbage is in the process. k is extra at 4n, twice that at 2n and four
+// times at n, so that every size's measure covers the same bytes read.
+// Each measure is the median of reps children. n is scale times each
+// shape's base count (scale 1: the sizes of the growth benchmark). With
+// batch, a child's reads are copies of the file in one folder read by one
+// corpus.ReadEach that lends the texts (readBatch), as reprise scan reads a
+// folder of such files, instead of separate corpus.Read calls (a refused
+// shape, skipped rather than read, is then read the separate way). It
 // prints a Markdown table and returns false when a time ratio is above
 // maxRatio.
-func processTable(w io.Writer, ss []hostile.Shape, scale, reps, extra int, maxRatio float64) (bool, error) {
+func processTable(w io.Writer, ss []hostile.Shape, batch bool, scale, reps, extra int, maxRatio float64) (bool, error) {
 	scale = max(1, scale)
 	self, err := os.Executable()
 	if err != nil {
 		return false, err
 	}
-	// cost is what one child spent: processor time (user and system) and
-	// minor page faults (fresh memory from the kernel, which this machine
-	// charges to system time).
+	// cost is what the timed reads of one child spent: processor time
+	// (user and system, ns) and minor page faults (fresh memory from the
+	// kernel, which this machine charges to system time).
 	type cost struct{ user, sys, faults float64 }
 	run := func(s hostile.Shape, mult, reads int) (cost, error) {
-		cmd := exec.Command(self, "-read-once", s.Name, "-mult", strconv.Itoa(mult), "-reads", strconv.Itoa(reads))
+		args := []string{"-read-once", s.Name, "-mult", strconv.Itoa(mult), "-reads", strconv.Itoa(reads)}
+		if batch && !s.Refused {
+			args = append(args, "-batch")
+		}
+		cmd := exec.Command(self, args...)
 		cmd.Stderr = os.Stderr
-		if err := cmd.Run(); err != nil {
+		out, err := cmd.Output()
+		if err != nil {
 			return cost{}, fmt.Errorf("%s at %dn: %w", s.Name, mult, err)
 		}
-		c := cost{user: float64(cmd.ProcessState.UserTime()), sys: float64(cmd.ProcessState.SystemTime())}
-		if ru, ok := cmd.ProcessState.SysUsage().(*syscall.Rusage); ok {
-			c.faults = float64(ru.Minflt)
+		var c cost
+		if _, err := fmt.Sscan(string(out), &c.user, &c.sys, &c.faults); err != nil {
+			return cost{}, fmt.Errorf("%s at %dn: the child wrote %q: %w", s.Name, mult, out, err)
 		}
 		return c, nil
 	}
@@ -51,7 +59,11 @@ func processTable(w io.Writer, ss []hostile.Shape, scale, reps, extra int, maxRa
 		slices.Sort(xs)
 		return xs[len(xs)/2]
 	}
-	fmt.Fprintf(w, "each size in its own processes: (time of 1+k reads - time of 1 read) / k, k = %d at 4n, %d at 2n, %d at n; median of %d; n = %d× the base count\n\n", extra, 2*extra, 4*extra, reps, scale)
+	how := "separate corpus.Read calls"
+	if batch {
+		how = "copies in one folder, one corpus.ReadEach lending the texts"
+	}
+	fmt.Fprintf(w, "each size in a process of its own (%s): the time of the k reads after the first, over k; k = %d at 4n, %d at 2n, %d at n; median of %d; n = %d× the base count\n\n", how, extra, 2*extra, 4*extra, reps, scale)
 	fmt.Fprintln(w, "| shape | file at n | ms per read at n, 2n, 4n | time 2n/n | time 4n/2n | user time 2n/n, 4n/2n | page faults per read at n, 2n, 4n |")
 	fmt.Fprintln(w, "|---|---:|---:|---:|---:|---:|---:|")
 	ok, worst, over := true, 0.0, []string{}
@@ -65,18 +77,14 @@ func processTable(w io.Writer, ss []hostile.Shape, scale, reps, extra int, maxRa
 			var ds, us, fs []float64
 			reads := extra * 4 / mult
 			for range reps {
-				one, err := run(s, scale*mult, 1)
-				if err != nil {
-					return false, err
-				}
-				many, err := run(s, scale*mult, 1+reads)
+				c, err := run(s, scale*mult, 1+reads)
 				if err != nil {
 					return false, err
 				}
 				k := float64(reads)
-				ds = append(ds, (many.user+many.sys-one.user-one.sys)/k)
-				us = append(us, (many.user-one.user)/k)
-				fs = append(fs, (many.faults-one.faults)/k)
+				ds = append(ds, (c.user+c.sys)/k)
+				us = append(us, c.user/k)
+				fs = append(fs, c.faults/k)
 			}
 			per[k], user[k], faults[k] = median(ds), median(us), median(fs)
 		}
