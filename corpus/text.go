@@ -19,15 +19,19 @@ func (plainText) claims(ext string) bool { return ext == ".txt" }
 // (readFile allocates one per file and nothing writes to it again), the
 // text aliases it (unsafe.String) instead of copying it: for a corpus of
 // small text files that copy and its garbage were a tenth of a scan's
-// reading and splitting. Any other caller's bytes (a ZIP member's, a
-// fuzz input the engine reuses, a test's) are copied, as string(raw).
+// reading and splitting. A text that decoding made (UTF-16,
+// Windows-1252) is that new buffer, not a copy of it. Only a text that is
+// another caller's bytes (a ZIP member's, a fuzz input the engine reuses,
+// a test's) is copied, as string(raw).
 func (plainText) extract(in *input) (extraction, error) {
 	d, err := decode(in.raw)
 	if err != nil {
 		return extraction{}, err
 	}
 	text := ""
-	if in.owned && len(d.text) > 0 && len(in.raw) > 0 && unsafe.SliceData(d.text) == unsafe.SliceData(in.raw) {
+	if in.owned || !overlaps(d.text, in.raw) {
+		// The file's own buffer, or one decoding made: nothing else
+		// holds it or writes to it.
 		text = unsafe.String(unsafe.SliceData(d.text), len(d.text))
 	} else {
 		text = string(d.text)

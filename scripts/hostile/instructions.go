@@ -45,9 +45,16 @@ import (
 // into a temporary folder and reads the folder once with corpus.ReadEach
 // (one job), lending each text to a digest that keeps none of it, as
 // `reprise scan` reads a folder: the worker's buffers serve file after
-// file. It writes to out what the reads after the first cost (see
-// usageSince).
+// file. The clock is read at the first digest of each file (the worker
+// digests a file's documents as it extracts them, one after the other):
+// from the second file's to the last file's is reads-2 files' worth of
+// reading, whatever the format's documents per file (one; a ZIP archive's
+// members, digested after the whole archive is read; a JSON Lines file's
+// lines, digested as they are read). It writes that to out (usageSince).
 func readBatch(out io.Writer, s hostile.Shape, mult, reads int) error {
+	if reads < 3 {
+		return fmt.Errorf("-batch needs -reads of at least 3, not %d", reads)
+	}
 	raw, err := s.Make(s.Base * max(1, mult))
 	if err != nil {
 		return err
@@ -62,23 +69,27 @@ func readBatch(out io.Writer, s hostile.Shape, mult, reads int) error {
 			return err
 		}
 	}
-	var first syscall.Rusage
-	digested := 0
-	_, _, _, err = corpus.ReadEach([]string{dir}, corpus.Options{Jobs: 1}, func(_ *corpus.Document, text *corpus.Loan) int {
-		if digested++; digested == 1 {
-			// The digest runs on the worker between two files: from
-			// here on, the clock covers the reads of the other copies.
-			_ = syscall.Getrusage(syscall.RUSAGE_SELF, &first)
+	var second, last syscall.Rusage
+	files, file := 0, ""
+	_, _, _, err = corpus.ReadEach([]string{dir}, corpus.Options{Jobs: 1}, func(d *corpus.Document, text *corpus.Loan) int {
+		if d.File != file {
+			file, files = d.File, files+1
+			switch {
+			case files == 2:
+				_ = syscall.Getrusage(syscall.RUSAGE_SELF, &second)
+			case files == reads:
+				_ = syscall.Getrusage(syscall.RUSAGE_SELF, &last)
+			}
 		}
 		return len(text.Text())
 	})
 	if err != nil {
 		return err
 	}
-	if digested != reads {
-		return fmt.Errorf("%s: %d of %d copies read (a refused shape is skipped, not digested: read it without -batch)", s.Name, digested, reads)
+	if files != reads {
+		return fmt.Errorf("%s: %d of %d copies read (a refused shape is skipped, not digested: read it without -batch)", s.Name, files, reads)
 	}
-	return usageSince(out, &first)
+	return usageBetween(out, &second, &last, reads-2)
 }
 
 // readShape writes the shape at mult times its base count to a temporary
@@ -107,19 +118,26 @@ func readShape(out io.Writer, s hostile.Shape, mult, reads int) error {
 			_ = syscall.Getrusage(syscall.RUSAGE_SELF, &first)
 		}
 	}
-	return usageSince(out, &first)
+	return usageSince(out, &first, reads-1)
 }
 
-// usageSince writes one line to out: the user and system time (in
-// nanoseconds, every thread of the process) and the minor page faults
-// since first, as processTable reads them.
-func usageSince(out io.Writer, first *syscall.Rusage) error {
+// usageSince writes to out what the process has spent since first, over
+// files files' reads (usageBetween).
+func usageSince(out io.Writer, first *syscall.Rusage, files int) error {
 	var now syscall.Rusage
 	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &now); err != nil {
 		return err
 	}
+	return usageBetween(out, first, &now, files)
+}
+
+// usageBetween writes one line to out: the user and system time (in
+// nanoseconds, every thread of the process) and the minor page faults
+// from a to b, and the number of files read in between, as processTable
+// reads them.
+func usageBetween(out io.Writer, a, b *syscall.Rusage, files int) error {
 	ns := func(t syscall.Timeval) int64 { return t.Nano() }
-	_, err := fmt.Fprintf(out, "%d %d %d\n", ns(now.Utime)-ns(first.Utime), ns(now.Stime)-ns(first.Stime), now.Minflt-first.Minflt)
+	_, err := fmt.Fprintf(out, "%d %d %d %d\n", ns(b.Utime)-ns(a.Utime), ns(b.Stime)-ns(a.Stime), b.Minflt-a.Minflt, files)
 	return err
 }
 
