@@ -71,7 +71,7 @@ func main() {
 	instr := flag.Bool("instructions", false, "count the instructions of one read at n, 2n and 4n under valgrind (cachegrind) and print the table")
 	cacheSim := flag.Bool("cache-sim", false, "with -instructions: also simulate the caches (cachegrind's --cache-sim, last level as -ll)")
 	ll := flag.String("ll", "1048576,16,64", "with -cache-sim: the simulated last-level cache, size,associativity,line (cachegrind --LL)")
-	readOnce := flag.String("read-once", "", "(used by -instructions) read this shape -reads times with corpus.Read and exit")
+	readOnce := flag.String("read-once", "", "(used by -instructions and -process) read this shape -reads times with corpus.Read (with -batch: -reads copies through corpus.ReadEach), print the time and page faults of the reads after the first, and exit")
 	reads := flag.Int("reads", 1, "with -read-once: how many reads")
 	batch := flag.Bool("batch", false, "with -process and -read-once: the reads are copies of the file in one folder, read by one corpus.ReadEach that lends the texts, as reprise scan reads a folder")
 	process := flag.Bool("process", false, "time one read of each shape at n, 2n and 4n, each size in processes of its own (see process.go), and print the table")
