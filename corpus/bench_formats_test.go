@@ -130,7 +130,7 @@ func BenchmarkExtractBrownText(b *testing.B) {
 		b.ReportAllocs()
 		for b.Loop() {
 			for _, raw := range files {
-				if _, err := decode(raw); err != nil {
+				if _, err := decode(raw, nil); err != nil {
 					b.Fatal(err)
 				}
 			}

@@ -5,10 +5,10 @@ import (
 	"encoding/binary"
 	"math/bits"
 	"unicode"
+	"unicode/utf16"
 	"unicode/utf8"
 
 	"golang.org/x/text/encoding/charmap"
-	xunicode "golang.org/x/text/encoding/unicode"
 )
 
 // Plain-words reasons for files that give no text. They are the Reason of
@@ -63,7 +63,7 @@ func (d decoded) notes() []string {
 //
 //  1. no bytes: "empty file";
 //  2. a UTF-16 byte-order mark (FF FE little-endian, FE FF big-endian):
-//     decoded with x/text, mark dropped, unpaired surrogates become U+FFFD;
+//     decoded (decodeUTF16), mark dropped, unpaired surrogates become U+FFFD;
 //     the binary test then runs on the decoded text;
 //  3. the binary test on the raw bytes (looksBinary);
 //  4. a UTF-8 byte-order mark followed by valid UTF-8: "utf-8-bom", bytes
@@ -73,22 +73,23 @@ func (d decoded) notes() []string {
 //     Western text files; every byte decodes (the five bytes it leaves
 //     undefined become U+FFFD), so the result is always valid UTF-8.
 //
-// Text that is empty or only white space once decoded is refused.
-func decode(raw []byte) (decoded, error) {
+// Text that is empty or only white space once decoded is refused. A text
+// that decoding makes is written into sc's decoding buffer
+// (scratch.decodeBuffer), so a worker decoding a batch of files of one
+// size allocates once; nil sc allocates one per call.
+func decode(raw []byte, sc *scratch) (decoded, error) {
 	if len(raw) == 0 {
 		return decoded{}, refuse(reasonEmpty)
 	}
 	var d decoded
 	switch {
 	case bytes.HasPrefix(raw, []byte(bomUTF16LE)) || bytes.HasPrefix(raw, []byte(bomUTF16BE)):
-		order, enc, note := xunicode.LittleEndian, encUTF16LE, noteUTF16LE
+		big, enc, note := false, encUTF16LE, noteUTF16LE
 		if raw[0] == 0xFE {
-			order, enc, note = xunicode.BigEndian, encUTF16BE, noteUTF16BE
+			big, enc, note = true, encUTF16BE, noteUTF16BE
 		}
-		text, err := xunicode.UTF16(order, xunicode.ExpectBOM).NewDecoder().Bytes(raw)
-		if err != nil { // not expected: the decoder replaces what it cannot read
-			return decoded{}, err
-		}
+		src := raw[len(bomUTF16LE):]
+		text := decodeUTF16(sc.decodeBuffer(utf16Len(src, big)), src, big)
 		if len(text) == 0 {
 			return decoded{}, refuse(reasonEmpty)
 		}
@@ -105,12 +106,12 @@ func decode(raw []byte) (decoded, error) {
 		if utf8.Valid(raw) {
 			d = decoded{text: raw, encoding: encUTF8BOM}
 		} else {
-			d = decoded{text: fromWindows1252(raw[len(bomUTF8):]), encoding: encWindows1252, note: noteBOMBad}
+			d = decoded{text: fromWindows1252(sc, raw[len(bomUTF8):]), encoding: encWindows1252, note: noteBOMBad}
 		}
 	case utf8.Valid(raw):
 		d = decoded{text: raw, encoding: encUTF8}
 	default:
-		d = decoded{text: fromWindows1252(raw), encoding: encWindows1252, note: noteCP1252}
+		d = decoded{text: fromWindows1252(sc, raw), encoding: encWindows1252, note: noteCP1252}
 	}
 	if onlySpace(d.text) {
 		return decoded{}, refuse(reasonBlank)
@@ -118,16 +119,99 @@ func decode(raw []byte) (decoded, error) {
 	return d, nil
 }
 
-// fromWindows1252 decodes raw, which need not be valid in any encoding.
-func fromWindows1252(raw []byte) []byte {
-	// Windows-1252 maps every byte, so the decoder cannot fail; if a
-	// future x/text did fail, keeping the valid-UTF-8 promise matters more
-	// than the exact characters.
-	text, err := charmap.Windows1252.NewDecoder().Bytes(raw)
-	if err != nil {
-		return bytes.ToValidUTF8(raw, []byte("\uFFFD"))
+// fromWindows1252 decodes raw, which need not be valid in any encoding:
+// Windows-1252 maps every byte (x/text's table, charmap.Windows1252, maps
+// the five bytes the code page leaves undefined to U+FFFD). The text is
+// measured first, so it is written into a buffer of its exact size.
+func fromWindows1252(sc *scratch, raw []byte) []byte {
+	m := charmap.Windows1252
+	n := len(raw)
+	for _, c := range raw {
+		if c >= utf8.RuneSelf {
+			n += utf8.RuneLen(m.DecodeByte(c)) - 1
+		}
+	}
+	text := sc.decodeBuffer(n)
+	for _, c := range raw {
+		if c < utf8.RuneSelf {
+			text = append(text, c)
+		} else {
+			text = utf8.AppendRune(text, m.DecodeByte(c))
+		}
 	}
 	return text
+}
+
+// utf16Len is the length in UTF-8 of the UTF-16 text src (big-endian when
+// big) as decodeUTF16 decodes it.
+func utf16Len(src []byte, big bool) int {
+	lo, hi := 0, 1
+	if big {
+		lo, hi = 1, 0
+	}
+	n := 0
+	for i := 0; i+1 < len(src); i += 2 {
+		switch u := rune(src[i+hi])<<8 | rune(src[i+lo]); {
+		case u < 0x80:
+			n++
+		case u < 0x800:
+			n += 2
+		case utf16.IsSurrogate(u) && i+3 < len(src):
+			n += 3 // U+FFFD, unless a pair
+			if v := rune(src[i+2+hi])<<8 | rune(src[i+2+lo]); v >= 0xDC00 && v < 0xE000 {
+				if u < 0xDC00 {
+					n++ // a pair: one character of four bytes
+				}
+				i += 2
+			}
+		default: // the rest of the BMP, and a surrogate last as U+FFFD
+			n += 3
+		}
+	}
+	if len(src)%2 == 1 {
+		n += 3 // a lone last byte: U+FFFD
+	}
+	return n
+}
+
+// decodeUTF16 appends to dst the UTF-8 of the UTF-16 text src (big-endian
+// when big, no byte-order mark), as x/text's UTF-16 decoder does (the
+// differential test, TestUTF16MatchesXText): a surrogate pair is one
+// character (RFC 2781, 2.2), an unpaired surrogate and a lone last byte
+// are U+FFFD, and a U+FEFF after the first is kept. As in x/text, any
+// surrogate followed by a low surrogate takes both units, so two low
+// surrogates in a row are one U+FFFD: the texts read before this decoder
+// replaced x/text's stay the same. By hand rather than
+// with x/text so that the text goes into the worker's buffer: x/text's
+// Bytes allocates its own and grows it as it goes.
+func decodeUTF16(dst, src []byte, big bool) []byte {
+	lo, hi := 0, 1
+	if big {
+		lo, hi = 1, 0
+	}
+	for i := 0; i+1 < len(src); i += 2 {
+		u := rune(src[i+hi])<<8 | rune(src[i+lo])
+		switch {
+		case u < utf8.RuneSelf:
+			dst = append(dst, byte(u))
+			continue
+		case !utf16.IsSurrogate(u):
+		case i+3 < len(src):
+			if v := rune(src[i+2+hi])<<8 | rune(src[i+2+lo]); v >= 0xDC00 && v < 0xE000 {
+				u = utf16.DecodeRune(u, v) // U+FFFD for two low surrogates
+				i += 2
+			} else {
+				u = utf8.RuneError
+			}
+		default:
+			u = utf8.RuneError
+		}
+		dst = utf8.AppendRune(dst, u)
+	}
+	if len(src)%2 == 1 {
+		dst = utf8.AppendRune(dst, utf8.RuneError)
+	}
+	return dst
 }
 
 // Binary test. A file is binary when it contains a NUL byte anywhere

@@ -2,16 +2,18 @@ package corpus
 
 import (
 	"errors"
+	"math/rand/v2"
 	"strings"
 	"testing"
 	"unicode/utf8"
 
+	"golang.org/x/text/encoding/charmap"
 	"golang.org/x/text/encoding/unicode"
 )
 
-// utf16 encodes s as UTF-16 with a byte-order mark, with x/text's
+// encodeUTF16 encodes s as UTF-16 with a byte-order mark, with x/text's
 // encoder, to build the files the decoder must accept.
-func utf16(t testing.TB, s string, order unicode.Endianness) []byte {
+func encodeUTF16(t testing.TB, s string, order unicode.Endianness) []byte {
 	t.Helper()
 	b, err := unicode.UTF16(order, unicode.UseBOM).NewEncoder().Bytes([]byte(s))
 	if err != nil {
@@ -22,7 +24,7 @@ func utf16(t testing.TB, s string, order unicode.Endianness) []byte {
 
 func TestDecode(t *testing.T) {
 	const sample = "Grüße, “quoted” — naïve café.\r\nSecond line.\n"
-	le, be := utf16(t, sample, unicode.LittleEndian), utf16(t, sample, unicode.BigEndian)
+	le, be := encodeUTF16(t, sample, unicode.LittleEndian), encodeUTF16(t, sample, unicode.BigEndian)
 	tests := []struct {
 		name     string
 		raw      []byte
@@ -49,7 +51,7 @@ func TestDecode(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			d, err := decode(tc.raw)
+			d, err := decode(tc.raw, nil)
 			if err != nil {
 				t.Fatalf("decode: %v", err)
 			}
@@ -77,7 +79,7 @@ func TestDecodeRefuses(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			_, err := decode(tc.raw)
+			_, err := decode(tc.raw, nil)
 			var r *refusal
 			if !errors.As(err, &r) || r.reason != tc.reason {
 				t.Errorf("decode error = %v, want refusal %q", err, tc.reason)
@@ -118,7 +120,7 @@ func FuzzDecode(f *testing.F) {
 	f.Add([]byte("\x00\x01"))
 	seedHostile(f, "text")
 	f.Fuzz(func(t *testing.T, raw []byte) {
-		d, err := decode(raw)
+		d, err := decode(raw, nil)
 		if err != nil {
 			var r *refusal
 			if !errors.As(err, &r) {
@@ -145,14 +147,127 @@ func BenchmarkDecode(b *testing.B) {
 	for _, bc := range []struct {
 		name string
 		raw  []byte
-	}{{"utf-8", utf}, {"windows-1252", cp}, {"utf-16le", utf16(b, string(utf), unicode.LittleEndian)}} {
+	}{{"utf-8", utf}, {"windows-1252", cp}, {"utf-16le", encodeUTF16(b, string(utf), unicode.LittleEndian)}} {
 		b.Run(bc.name, func(b *testing.B) {
 			b.SetBytes(int64(len(bc.raw)))
 			for b.Loop() {
-				if _, err := decode(bc.raw); err != nil {
+				if _, err := decode(bc.raw, nil); err != nil {
 					b.Fatal(err)
 				}
 			}
 		})
+	}
+}
+
+// TestUTF16MatchesXText: decodeUTF16 gives the bytes x/text's UTF-16
+// decoder gives (golang.org/x/text/encoding/unicode, the reference here),
+// and utf16Len their length, on both byte orders, for edge cases
+// (surrogate pairs, unpaired high and low surrogates, a high surrogate
+// last, a lone last byte, a U+FEFF after the mark) and for random bytes
+// drawn so that surrogates are frequent.
+func TestUTF16MatchesXText(t *testing.T) {
+	cases := [][]byte{
+		{}, {'a'}, {'a', 0}, {0x3D, 0xD8, 0x00, 0xDE}, // U+1F600 as a pair (little-endian)
+		{0x00, 0xD8}, {0x00, 0xDC, 'a', 0}, {0x00, 0xD8, 'a', 0}, {0x00, 0xD8, 0x00, 0xD8, 0x00, 0xDC},
+		{0x00, 0xD8, 'x'}, {0xFF, 0xFE, 'a', 0}, {0xE9, 0, 0x1C, 0x20, 0xFF, 0xFF, 0x00, 0x08},
+	}
+	rng := rand.New(rand.NewPCG(17, 4))
+	for range 2000 {
+		b := make([]byte, rng.IntN(40))
+		for k := range b {
+			switch rng.IntN(4) {
+			case 0:
+				b[k] = byte(0xD8 + rng.IntN(8)) // a surrogate's high byte
+			case 1:
+				b[k] = byte(rng.IntN(0x80))
+			default:
+				b[k] = byte(rng.IntN(256))
+			}
+		}
+		cases = append(cases, b)
+	}
+	for _, order := range []unicode.Endianness{unicode.LittleEndian, unicode.BigEndian} {
+		big := order == unicode.BigEndian
+		for _, src := range cases {
+			want, err := unicode.UTF16(order, unicode.IgnoreBOM).NewDecoder().Bytes(src)
+			if err != nil {
+				t.Fatalf("x/text on % x: %v", src, err)
+			}
+			got := decodeUTF16(nil, src, big)
+			if string(got) != string(want) {
+				t.Fatalf("big-endian %v, % x: got %q, x/text %q", big, src, got, want)
+			}
+			if n := utf16Len(src, big); n != len(want) {
+				t.Fatalf("big-endian %v, % x: utf16Len %d, decoded %d bytes", big, src, n, len(want))
+			}
+		}
+	}
+}
+
+// TestWindows1252MatchesXText: fromWindows1252 gives what x/text's
+// Windows-1252 decoder gives (golang.org/x/text/encoding/charmap, the
+// reference here) for every byte value and for random bytes.
+func TestWindows1252MatchesXText(t *testing.T) {
+	all := make([]byte, 256)
+	for k := range all {
+		all[k] = byte(k)
+	}
+	cases := [][]byte{all}
+	rng := rand.New(rand.NewPCG(12, 52))
+	for range 500 {
+		b := make([]byte, rng.IntN(60))
+		for k := range b {
+			b[k] = byte(rng.IntN(256))
+		}
+		cases = append(cases, b)
+	}
+	for _, raw := range cases {
+		want, err := charmap.Windows1252.NewDecoder().Bytes(raw)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := fromWindows1252(nil, raw); string(got) != string(want) || cap(got) != len(want) {
+			t.Fatalf("% x: got %q (capacity %d), x/text %q", raw, got, cap(got), want)
+		}
+	}
+}
+
+// TestDecodeBufferLifetime: a worker's decoding buffer is written again
+// only after done says no document kept the text it holds; a kept text
+// stays as it was, and a second text of one file (a ZIP member) gets a
+// buffer of its own.
+func TestDecodeBufferLifetime(t *testing.T) {
+	first := encodeUTF16(t, "the first text of the batch\n", unicode.LittleEndian)
+	second := encodeUTF16(t, "a second one, of a like size\n", unicode.LittleEndian)
+	var sc scratch
+	d1, err := decode(first, &sc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	d2, err := decode(second, &sc) // the same file: must not share d1's buffer
+	if err != nil {
+		t.Fatal(err)
+	}
+	if overlaps(d1.text, d2.text[:cap(d2.text)]) || string(d1.text) != "the first text of the batch\n" {
+		t.Fatalf("two texts of one file share a buffer: %q, %q", d1.text, d2.text)
+	}
+	sc.done(nil, true) // kept: neither buffer comes back
+	d3, err := decode(first, &sc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if overlaps(d3.text[:cap(d3.text)], d2.text[:cap(d2.text)]) || overlaps(d3.text[:cap(d3.text)], d1.text[:cap(d1.text)]) {
+		t.Fatal("a kept text's buffer was reused")
+	}
+	sc.done(nil, false) // given back: the next file decodes into it
+	d4, err := decode(first, &sc) // the same size: d3's buffer serves
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !overlaps(d4.text, d3.text[:cap(d3.text)]) {
+		t.Error("a buffer given back was not reused")
+	}
+	if string(d4.text) != "the first text of the batch\n" {
+		t.Errorf("text %q", d4.text)
 	}
 }

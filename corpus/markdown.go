@@ -30,7 +30,7 @@ func (markdown) claims(ext string) bool { return ext == ".md" || ext == ".markdo
 // first. A Markdown file thus costs no copy of its size beyond the read,
 // which for a batch of large files also means no fresh pages per file.
 func (markdown) extract(in *input) (extraction, error) {
-	d, err := decode(in.raw)
+	d, err := decode(in.raw, in.scratch)
 	if err != nil {
 		return extraction{}, err
 	}

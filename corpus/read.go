@@ -134,13 +134,10 @@ func ReadEachContext[T any](ctx context.Context, paths []string, opt Options, di
 				}
 				r.docs = append(r.docs, d)
 			})
-			// A plain text file's text may be the buffer itself (text.go):
-			// it is read into again only when every document of the file
-			// gave its text back.
-			sc.raw = nil
-			if !kept {
-				sc.raw = used
-			}
+			// A plain text file's text may be the buffer itself (text.go)
+			// or the decoding buffer: they are written again only when
+			// every document of the file gave its text back.
+			sc.done(used, kept)
 		}
 	}
 	var wg sync.WaitGroup

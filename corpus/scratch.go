@@ -22,6 +22,39 @@ import "unsafe"
 type scratch struct {
 	raw []byte    // the read buffer, while no document keeps it (Loan)
 	md  mdBlanker // its dl is set per file; its slices are kept
+	// dec is the buffer a text that is not UTF-8 is decoded into
+	// (decode), while no document keeps it; lent is the one the current
+	// file's text was decoded into, back in dec after the file (done)
+	// when no document of the file kept its text.
+	dec, lent []byte
+}
+
+// decodeBuffer returns an empty buffer with room for need bytes for the
+// current file's decoded text: the worker's, taken out of the scratch
+// until done gives it back, or a new one (a nil scratch, or one whose
+// buffer does not serve: see reuse). A second text of the same file (a
+// ZIP member) gets a new buffer, as the first may still be read.
+func (sc *scratch) decodeBuffer(need int) []byte {
+	if sc == nil {
+		return make([]byte, 0, need)
+	}
+	b := reuse(sc.dec, need)
+	sc.dec, sc.lent = nil, b
+	return b
+}
+
+// done ends a file whose bytes were read into read: its buffers serve
+// the next file when no document kept its text (Loan.Keep), and are left
+// to the documents otherwise.
+func (sc *scratch) done(read []byte, kept bool) {
+	sc.raw = nil
+	if !kept {
+		sc.raw = read
+		if sc.lent != nil {
+			sc.dec = sc.lent
+		}
+	}
+	sc.lent = nil
 }
 
 // blanker returns the Markdown blanker for one text under the deadline

@@ -96,12 +96,12 @@ func refDecode(raw []byte) (decoded, error) {
 		if utf8.Valid(raw) {
 			d = decoded{text: raw, encoding: encUTF8BOM}
 		} else {
-			d = decoded{text: fromWindows1252(raw[len(bomUTF8):]), encoding: encWindows1252, note: noteBOMBad}
+			d = decoded{text: fromWindows1252(nil, raw[len(bomUTF8):]), encoding: encWindows1252, note: noteBOMBad}
 		}
 	case utf8.Valid(raw):
 		d = decoded{text: raw, encoding: encUTF8}
 	default:
-		d = decoded{text: fromWindows1252(raw), encoding: encWindows1252, note: noteCP1252}
+		d = decoded{text: fromWindows1252(nil, raw), encoding: encWindows1252, note: noteCP1252}
 	}
 	if onlySpace(d.text) {
 		return decoded{}, refuse(reasonBlank)
@@ -127,7 +127,7 @@ func sameDecode(t testing.TB, raw []byte) {
 	if got, want := looksBinary(raw), refLooksBinary(raw); got != want {
 		t.Fatalf("looksBinary = %v, reference %v, for %q", got, want, raw)
 	}
-	d, err := decode(raw)
+	d, err := decode(raw, nil)
 	rd, rerr := refDecode(raw)
 	if reasonOrNil(err) != reasonOrNil(rerr) {
 		t.Fatalf("decode error %v, reference %v, for %q", err, rerr, raw)

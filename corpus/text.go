@@ -24,7 +24,7 @@ func (plainText) claims(ext string) bool { return ext == ".txt" }
 // another caller's bytes (a ZIP member's, a fuzz input the engine reuses,
 // a test's) is copied, as string(raw).
 func (plainText) extract(in *input) (extraction, error) {
-	d, err := decode(in.raw)
+	d, err := decode(in.raw, in.scratch)
 	if err != nil {
 		return extraction{}, err
 	}
