@@ -135,6 +135,7 @@ type emailBody struct {
 	others          int // attachments and parts of other types, not read
 	narrowed        int // parts whose Content-Type was read for charset and boundary only
 	parts           int
+	room            int // the message's body in bytes: no part is longer
 }
 
 func charsetReader(cs string, r io.Reader) (io.Reader, error) {
@@ -146,8 +147,8 @@ func charsetReader(cs string, r io.Reader) (io.Reader, error) {
 }
 
 func (emailText) extract(in *input) (extraction, error) {
-	raw, fields := narrowHeader(in.raw)
-	msg, err := mail.ReadMessage(bytes.NewReader(raw))
+	h := narrowHeader(in.raw)
+	msg, err := mail.ReadMessage(io.MultiReader(bytes.NewReader(h.head), bytes.NewReader(h.body)))
 	if err != nil {
 		return extraction{}, refuse("malformed e-mail: " + err.Error())
 	}
@@ -156,13 +157,16 @@ func (emailText) extract(in *input) (extraction, error) {
 	if s, err := dec.DecodeHeader(subject); err == nil {
 		subject = s
 	}
-	var b emailBody
+	b := emailBody{room: h.bodyLen}
 	if err := b.walk(in, msg.Header.Get("Content-Type"), msg.Header.Get("Content-Transfer-Encoding"), "", msg.Body, 0); err != nil {
 		return extraction{}, err
 	}
 	var notes []string
-	if fields > 0 {
-		notes = append(notes, fmt.Sprintf("header of %d fields: only the subject and the MIME fields were read (more than %d)", fields, maxHeaderFields))
+	if h.fields > 0 {
+		notes = append(notes, fmt.Sprintf("header of %d fields: only the subject and the MIME fields were read (more than %d)", h.fields, maxHeaderFields))
+	}
+	if h.subject > 0 {
+		notes = append(notes, fmt.Sprintf("subject field of %d bytes: only its first %d bytes were read (more than %d)", h.subject, h.kept-2, maxFieldBytes))
 	}
 	var body, encName string
 	switch {
@@ -215,17 +219,36 @@ func (emailText) extract(in *input) (extraction, error) {
 // header of 10^5 fields is read from memory rather than cache.
 const maxHeaderFields = 1000
 
-// narrowHeader returns raw as it is when its header has at most
-// maxHeaderFields fields. Otherwise it returns a copy whose header keeps
-// only the fields the extractor reads (Subject, MIME-Version,
-// Content-Type, Content-Transfer-Encoding, each with its folded lines),
-// followed by the body as it was, and the number of fields of the
-// original header. Lines of the header that are not fields (no colon) go
-// with the fields dropped, so such a message is read where net/mail would
-// have refused it.
-func narrowHeader(raw []byte) ([]byte, int) {
+// maxFieldBytes is the longest header field, folded lines included, that
+// a header is read with whole, and the most of a subject that is read. A
+// subject has tens of bytes; net/textproto joins a folded field's lines
+// into a buffer grown as it goes and then copies it, so a field of
+// megabytes cost several times its size in fresh memory.
+const maxFieldBytes = 64 << 10
+
+// emailHeader is a message's header as it is handed to net/mail, and what
+// narrowing it left out.
+type emailHeader struct {
+	head, body []byte // read as one stream: head, then body
+	fields     int    // the header's fields when there were too many, else 0
+	subject    int    // the subject's length in bytes when it was cut, else 0
+	kept       int    // how much of the subject was kept when it was cut
+	bodyLen    int    // the bytes of raw from the header's end on
+}
+
+// narrowHeader returns raw as it is (as head) when its header has at most
+// maxHeaderFields fields and none longer than maxFieldBytes. Otherwise
+// head is a new header with only the fields the extractor reads
+// (Subject, MIME-Version, Content-Type, Content-Transfer-Encoding, each
+// with its folded lines; a subject cut to at most maxFieldBytes, at the
+// last white space before that when there is one), and body the rest of
+// raw from the blank line on, not copied. Lines of the header that are
+// not fields (no colon) go with the fields dropped, so such a message is
+// read where net/mail would have refused it. The Content-Type is kept
+// whole: its parameters are narrowed when it is parsed (narrowMediaType).
+func narrowHeader(raw []byte) emailHeader {
 	end := len(raw) // the header's end: the blank line, or the whole file
-	fields := 0
+	fields, longest, start := 0, 0, 0
 	for p := 0; p < len(raw); {
 		line := raw[p:]
 		if line[0] == '\n' || (line[0] == '\r' && len(line) > 1 && line[1] == '\n') {
@@ -234,6 +257,8 @@ func narrowHeader(raw []byte) ([]byte, int) {
 		}
 		if line[0] != ' ' && line[0] != '\t' {
 			fields++
+			longest = max(longest, p-start)
+			start = p
 		}
 		n := bytes.IndexByte(line, '\n')
 		if n < 0 {
@@ -241,31 +266,65 @@ func narrowHeader(raw []byte) ([]byte, int) {
 		}
 		p += n + 1
 	}
-	if fields <= maxHeaderFields {
-		return raw, 0
+	longest = max(longest, end-start)
+	if fields <= maxHeaderFields && longest <= maxFieldBytes {
+		return emailHeader{head: raw, bodyLen: len(raw) - end}
 	}
-	out := make([]byte, 0, 1024+len(raw)-end)
-	keep := false
+	h := emailHeader{body: raw[end:], bodyLen: len(raw) - end}
+	if fields > maxHeaderFields {
+		h.fields = fields
+	}
+	var out []byte
 	for p := 0; p < end; {
-		line := raw[p:end]
-		if n := bytes.IndexByte(line, '\n'); n >= 0 {
-			line = line[:n+1]
-		}
-		p += len(line)
-		if line[0] != ' ' && line[0] != '\t' {
-			keep = false
-			for _, f := range [...]string{"subject:", "mime-version:", "content-type:", "content-transfer-encoding:"} {
-				if hasFoldPrefix(line, f) {
-					keep = true
-					break
-				}
+		q := p + 1 // the field's end: the next line that is not a fold
+		for q < end {
+			n := bytes.IndexByte(raw[q:end], '\n')
+			if n < 0 {
+				q = end
+				break
+			}
+			q += n + 1
+			if q < end && raw[q] != ' ' && raw[q] != '\t' {
+				break
 			}
 		}
-		if keep {
-			out = append(out, line...)
+		field := raw[p:q]
+		p = q
+		switch {
+		case hasFoldPrefix(field, "subject:"):
+			if len(field) > maxFieldBytes {
+				h.subject = len(field)
+				field = cutField(field)
+				h.kept = len(field)
+			}
+		case hasFoldPrefix(field, "mime-version:"), hasFoldPrefix(field, "content-type:"), hasFoldPrefix(field, "content-transfer-encoding:"):
+		default:
+			continue
+		}
+		out = append(out, field...)
+		if field[len(field)-1] != '\n' {
+			out = append(out, "\r\n"...)
 		}
 	}
-	return append(out, raw[end:]...), fields
+	h.head = out
+	return h
+}
+
+// cutField returns field cut to at most maxFieldBytes, at its last space,
+// tab or line end that leaves some of its value, else at a character's
+// start, without the white space and line ends it would end with, plus
+// one line end.
+func cutField(field []byte) []byte {
+	cut := field[:maxFieldBytes]
+	if k := bytes.LastIndexAny(cut, " \t\n"); k > bytes.IndexByte(cut, ':')+1 {
+		cut = cut[:k]
+	} else {
+		for len(cut) > 0 && !utf8.RuneStart(field[len(cut)]) {
+			cut = cut[:len(cut)-1]
+		}
+	}
+	cut = bytes.TrimRight(cut, " \t\r\n")
+	return append(cut[:len(cut):len(cut)], "\r\n"...)
 }
 
 // maxMediaParams is the most parameters a Content-Type is parsed with
@@ -364,12 +423,12 @@ func (b *emailBody) walk(in *input, ct, cte, disp string, r io.Reader, depth int
 	case "quoted-printable":
 		r = quotedprintable.NewReader(r)
 	}
-	// Read into room for the whole message at once (a part is never
-	// larger than the message it is in; a base64 one is smaller): io.ReadAll
-	// grows its buffer a quarter at a time, copying a large body about
-	// five times over.
+	// Read into room for the whole body at once (a part is never larger
+	// than the body it is in; a base64 one is smaller): io.ReadAll grows
+	// its buffer a quarter at a time, copying a large body about five
+	// times over.
 	var buf bytes.Buffer
-	buf.Grow(int(min(int64(len(in.raw)), in.opt.MaxMemberBytes+1)) + bytes.MinRead)
+	buf.Grow(int(min(int64(b.room), in.opt.MaxMemberBytes+1)) + bytes.MinRead)
 	_, err := buf.ReadFrom(io.LimitReader(r, in.opt.MaxMemberBytes+1))
 	data := buf.Bytes()
 	if err != nil {

@@ -5,6 +5,7 @@ import (
 	"slices"
 	"strings"
 	"testing"
+	"unicode/utf8"
 )
 
 // TestLongHeaderIsNarrowed: a message whose header has more than
@@ -83,5 +84,48 @@ func TestLongMediaTypeIsNarrowed(t *testing.T) {
 	}
 	if n := narrowMediaType(`text/plain; a="x;y"; charset=utf-8`); n != `text/plain; a="x;y"; charset=utf-8` {
 		t.Errorf("a short type was changed: %q", n)
+	}
+}
+
+// TestLongFieldsAreNarrowed: a subject longer than maxFieldBytes, folded
+// (RFC 5322 2.2.3) or on one line, is read for its first maxFieldBytes at
+// most, cut at white space or at a character's start, and the document
+// says so; a long field that is not read (an X- field, RFC 5322 3.6.8)
+// changes nothing in the text and adds no note. The body is read as
+// without the long field.
+func TestLongFieldsAreNarrowed(t *testing.T) {
+	opt := testOptions(t)
+	const head = "From: ana@example.org\r\nDate: Tue, 1 Dec 2026 10:00:00 +0000\r\n"
+	const body = "\r\nThe committee met on Tuesday.\r\n"
+	short := extractBytes(t, "m.eml", []byte(head+"Subject: Budget\r\n"+body), opt)
+	if len(short) != 1 || short[0].reason != "" {
+		t.Fatalf("short: %+v", short)
+	}
+	long := extractBytes(t, "m.eml", []byte(head+"X-Trace: hop"+strings.Repeat("\r\n hop", 40000)+"\r\nSubject: Budget\r\n"+body), opt)
+	if len(long) != 1 || long[0].Text != short[0].Text || len(long[0].Notes) != len(short[0].Notes) {
+		t.Errorf("a long field not read: %+v, want %+v", long, short)
+	}
+	for name, subject := range map[string]string{
+		"folded":   "Subject: start" + strings.Repeat("\r\n word", 30000),
+		"one line": "Subject: " + strings.Repeat("é", 60000),
+	} {
+		got := extractBytes(t, "m.eml", []byte(head+subject+"\r\n"+body), opt)
+		if len(got) != 1 || got[0].reason != "" {
+			t.Fatalf("%s: %+v", name, got)
+		}
+		text := got[0].Text
+		if !strings.HasSuffix(text, "\n\nThe committee met on Tuesday.\n") || !utf8.ValidString(text) {
+			t.Errorf("%s: text ends %q", name, text[max(0, len(text)-60):])
+		}
+		// Unfolding (RFC 5322 2.2.3) drops each fold's CRLF.
+		whole := strings.ReplaceAll(strings.TrimPrefix(subject, "Subject: "), "\r\n", "")
+		subj, _, _ := strings.Cut(text, "\n\n")
+		if !strings.HasPrefix(whole, subj) || len(subj) > maxFieldBytes || len(subj) < maxFieldBytes/2 || strings.ContainsRune(subj, utf8.RuneError) {
+			t.Errorf("%s: subject of %d bytes read, want a part of the subject under %d", name, len(subj), maxFieldBytes)
+		}
+		note := fmt.Sprintf("subject field of %d bytes: only its first ", len(subject)+2)
+		if !slices.ContainsFunc(got[0].Notes, func(n string) bool { return strings.HasPrefix(n, note) }) {
+			t.Errorf("%s: no note %q… in %q", name, note, got[0].Notes)
+		}
 	}
 }
