@@ -259,7 +259,7 @@ func TestDecodeBufferLifetime(t *testing.T) {
 	if overlaps(d3.text[:cap(d3.text)], d2.text[:cap(d2.text)]) || overlaps(d3.text[:cap(d3.text)], d1.text[:cap(d1.text)]) {
 		t.Fatal("a kept text's buffer was reused")
 	}
-	sc.done(nil, false) // given back: the next file decodes into it
+	sc.done(nil, false)           // given back: the next file decodes into it
 	d4, err := decode(first, &sc) // the same size: d3's buffer serves
 	if err != nil {
 		t.Fatal(err)
