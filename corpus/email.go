@@ -166,7 +166,7 @@ func (emailText) extract(in *input) (extraction, error) {
 		notes = append(notes, fmt.Sprintf("header of %d fields: only the subject and the MIME fields were read (more than %d)", h.fields, maxHeaderFields))
 	}
 	if h.subject > 0 {
-		notes = append(notes, fmt.Sprintf("subject field of %d bytes: only its first %d bytes were read (more than %d)", h.subject, h.kept-2, maxFieldBytes))
+		notes = append(notes, fmt.Sprintf("subject field of %d bytes: only its first %d bytes were read (more than %d)", h.subject, h.kept, maxFieldBytes))
 	}
 	var body, encName string
 	switch {
@@ -232,7 +232,7 @@ type emailHeader struct {
 	head, body []byte // read as one stream: head, then body
 	fields     int    // the header's fields when there were too many, else 0
 	subject    int    // the subject's length in bytes when it was cut, else 0
-	kept       int    // how much of the subject was kept when it was cut
+	kept       int    // the bytes of the subject field kept when it was cut, line end not counted
 	bodyLen    int    // the bytes of raw from the header's end on
 }
 
@@ -295,7 +295,7 @@ func narrowHeader(raw []byte) emailHeader {
 			if len(field) > maxFieldBytes {
 				h.subject = len(field)
 				field = cutField(field)
-				h.kept = len(field)
+				h.kept = len(field) - len("\r\n") // cutField ends it with one line end
 			}
 		case hasFoldPrefix(field, "mime-version:"), hasFoldPrefix(field, "content-type:"), hasFoldPrefix(field, "content-transfer-encoding:"):
 		default:
