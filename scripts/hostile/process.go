@@ -20,7 +20,8 @@ import (
 // read's warm-up is in the measure, and no other size's heap, caches or
 // garbage is in the process. k is extra at 4n, twice that at 2n and four
 // times at n, so that every size's measure covers the same bytes read.
-// Each measure is the median of reps children. n is scale times each
+// Each measure is the median of reps children, the three sizes' children
+// taking turns. n is scale times each
 // shape's base count (scale 1: the sizes of the growth benchmark). With
 // batch, a child's reads are copies of the file in one folder read by one
 // corpus.ReadEach that lends the texts (readBatch), as reprise scan reads a
@@ -65,7 +66,7 @@ func processTable(w io.Writer, ss []hostile.Shape, batch bool, scale, reps, extr
 	if batch {
 		how = "1+k copies in one folder, one corpus.ReadEach lending the texts: the time from the second file's first document to the last file's, over k-1"
 	}
-	fmt.Fprintf(w, "each size in a process of its own (%s); k = %d at 4n, %d at 2n, %d at n; median of %d; n = %d× the base count\n\n", how, extra, 2*extra, 4*extra, reps, scale)
+	fmt.Fprintf(w, "each size in a process of its own (%s); k = %d at 4n, %d at 2n, %d at n; median of %d, the sizes taking turns; n = %d× the base count\n\n", how, extra, 2*extra, 4*extra, reps, scale)
 	fmt.Fprintln(w, "| shape | file at n | ms per read at n, 2n, 4n | time 2n/n | time 4n/2n | user time 2n/n, 4n/2n | page faults per read at n, 2n, 4n |")
 	fmt.Fprintln(w, "|---|---:|---:|---:|---:|---:|---:|")
 	ok, worst, over := true, 0.0, []string{}
@@ -74,21 +75,27 @@ func processTable(w io.Writer, ss []hostile.Shape, batch bool, scale, reps, extr
 		if err != nil {
 			return false, err
 		}
-		var per, user, faults [3]float64
-		for k, mult := range []int{1, 2, 4} {
-			var ds, us, fs []float64
-			reads := extra * 4 / mult
-			for range reps {
-				c, err := run(s, scale*mult, 1+reads)
+		// The sizes take turns, in an order that rotates from one round to
+		// the next, so that a spell of load on the machine (seconds long)
+		// falls on every size's children alike rather than on all of one
+		// size's (common practice: interleave what is compared).
+		var ds, us, fs [3][]float64
+		mults := [3]int{1, 2, 4}
+		for round := range reps {
+			for turn := range 3 {
+				k := (round + turn) % 3
+				c, err := run(s, scale*mults[k], 1+extra*4/mults[k])
 				if err != nil {
 					return false, err
 				}
-				k := c.files
-				ds = append(ds, (c.user+c.sys)/k)
-				us = append(us, c.user/k)
-				fs = append(fs, c.faults/k)
+				ds[k] = append(ds[k], (c.user+c.sys)/c.files)
+				us[k] = append(us[k], c.user/c.files)
+				fs[k] = append(fs[k], c.faults/c.files)
 			}
-			per[k], user[k], faults[k] = median(ds), median(us), median(fs)
+		}
+		var per, user, faults [3]float64
+		for k := range 3 {
+			per[k], user[k], faults[k] = median(ds[k]), median(us[k]), median(fs[k])
 		}
 		r1, r2 := per[1]/per[0], per[2]/per[1]
 		cell := func(r float64) string {
