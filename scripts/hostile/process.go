@@ -21,16 +21,14 @@ import (
 // garbage is in the process. k is extra at 4n, twice that at 2n and four
 // times at n, so that every size's measure covers the same bytes read.
 // Each measure is the median of reps children, the three sizes' children
-// taking turns. n is scale times each
-// shape's base count (scale 1: the sizes of the growth benchmark). With
-// batch, a child's reads are copies of the file in one folder read by one
-// corpus.ReadEach that lends the texts (readBatch), as reprise scan reads a
-// folder of such files, instead of separate corpus.Read calls, and the
-// measure is the k-1 files from the second file's first document to the
-// last file's (a refused shape, skipped rather than read, is read the
-// separate way). It
-// prints a Markdown table and returns false when a time ratio is above
-// maxRatio.
+// taking turns. n is scale times each shape's base count (scale 1: the
+// sizes of the growth benchmark). With batch, a child's reads are copies
+// of the file in one folder read by one corpus.ReadEach that lends the
+// texts (readBatch), as reprise scan reads a folder of such files, instead
+// of separate corpus.Read calls, and the measure is the k-1 files from the
+// second file's first document to the last file's (a refused shape,
+// skipped rather than read, is read the separate way). It prints a
+// Markdown table and returns false when a time ratio is above maxRatio.
 func processTable(w io.Writer, ss []hostile.Shape, batch bool, scale, reps, extra int, maxRatio float64) (bool, error) {
 	scale = max(1, scale)
 	self, err := os.Executable()
