@@ -54,6 +54,32 @@ func BenchmarkExtract(b *testing.B) {
 			}
 		}
 	})
+	b.Run("eml", func(b *testing.B) {
+		// A message of ordinary shape: a dozen header fields and a
+		// multipart/alternative body of the essay as plain text and as HTML.
+		var m strings.Builder
+		m.WriteString("From: Ada Reviewer <ada@example.org>\r\nTo: Editors <desk@example.org>\r\n" +
+			"Subject: Essay for the spring issue\r\nDate: Thu, 03 Dec 2026 09:30:00 +0000\r\n" +
+			"Message-ID: <essay-1@example.org>\r\nMIME-Version: 1.0\r\n" +
+			"Content-Type: multipart/alternative; boundary=\"part-boundary\"\r\n\r\n")
+		for _, p := range []struct{ ext, media string }{{"txt", "text/plain"}, {"html", "text/html"}} {
+			m.WriteString("--part-boundary\r\nContent-Type: " + p.media + "; charset=utf-8\r\n\r\n")
+			m.Write(readFixture(b, filepath.Join("essay", "essay."+p.ext)))
+			m.WriteString("\r\n")
+		}
+		m.WriteString("--part-boundary--\r\n")
+		raw := []byte(m.String())
+		opt := testOptions(b)
+		b.SetBytes(int64(len(raw)))
+		b.ReportAllocs()
+		for b.Loop() {
+			for _, p := range extractBytes(b, "essay.eml", raw, opt) {
+				if p.reason != "" {
+					b.Fatal(p.sub, p.reason)
+				}
+			}
+		}
+	})
 }
 
 // brownTextFiles cuts the first samples of the Brown corpus (fetched by
